@@ -1,0 +1,126 @@
+"""Printing helpers shared by the commands: JSON to stdout, tables with units, progress."""
+
+from __future__ import annotations
+
+import json
+import math
+import sys
+from collections.abc import Iterable, Sequence
+from typing import Any
+
+__all__ = ["print_json", "print_table", "progress", "to_jsonable"]
+
+
+def to_jsonable(obj: Any) -> Any:
+    """Turn numpy scalars/arrays, tuples, dataclass-like dicts into plain JSON types.
+
+    Non-finite floats become ``null`` (JSON has no NaN).
+    """
+    try:
+        import numpy as np
+    except ImportError:  # pragma: no cover
+        np = None
+    if isinstance(obj, dict):
+        return {str(k): to_jsonable(v) for k, v in obj.items()}
+    if isinstance(obj, list | tuple):
+        return [to_jsonable(v) for v in obj]
+    if np is not None:
+        if isinstance(obj, np.ndarray):
+            return [to_jsonable(v) for v in obj.tolist()]
+        if isinstance(obj, np.bool_):
+            return bool(obj)
+        if isinstance(obj, np.integer):
+            return int(obj)
+        if isinstance(obj, np.floating):
+            obj = float(obj)
+    if isinstance(obj, float) and not math.isfinite(obj):
+        return None
+    return obj
+
+
+def print_json(data: Any, stream=None) -> None:
+    """Print ``data`` as indented JSON (UTF-8, no NaN)."""
+    stream = stream or sys.stdout
+    json.dump(to_jsonable(data), stream, indent=2, ensure_ascii=False, allow_nan=False)
+    stream.write("\n")
+
+
+def print_table(
+    rows: Iterable[Sequence[Any]],
+    *,
+    title: str | None = None,
+    headers: Sequence[str] = ("quantity", "value", "unit"),
+    stream=None,
+) -> None:
+    """Print rows as an aligned table (rich when the output is a terminal, plain otherwise)."""
+    rows = [[("" if c is None else str(c)) for c in r] for r in rows]
+    stream = stream or sys.stdout
+    try:
+        from rich.console import Console
+        from rich.table import Table
+    except ImportError:  # pragma: no cover - rich is a dependency, but stay usable
+        Console = None
+    if Console is not None and getattr(stream, "isatty", lambda: False)():
+        table = Table(title=title, show_lines=False)
+        for i, h in enumerate(headers):
+            table.add_column(h, justify="right" if i == 1 else "left")
+        for r in rows:
+            table.add_row(*r)
+        Console(file=stream).print(table)
+        return
+    widths = [max(len(h), *(len(r[i]) for r in rows)) if rows else len(h)
+              for i, h in enumerate(headers)]
+    if title:
+        stream.write(f"{title}\n")
+    line = "  ".join(h.ljust(w) for h, w in zip(headers, widths, strict=True))
+    stream.write(line.rstrip() + "\n")
+    stream.write("  ".join("-" * w for w in widths) + "\n")
+    for r in rows:
+        cells = [
+            (c.rjust(w) if i == 1 else c.ljust(w))
+            for i, (c, w) in enumerate(zip(r, widths, strict=True))
+        ]
+        stream.write("  ".join(cells).rstrip() + "\n")
+
+
+class progress:  # noqa: N801 - used as a context manager like a function
+    """Progress on stderr for work that may take more than a second.
+
+    ``with progress("searching designs", total=n) as step: ... step(k)``.  Silent when stderr
+    is not a terminal unless ``force`` is set, so JSON on stdout stays clean.
+    """
+
+    def __init__(self, label: str, total: int | None = None, *, force: bool = False):
+        self.label = label
+        self.total = total
+        self.enabled = force or sys.stderr.isatty()
+        self._rich = None
+
+    def __enter__(self):
+        if self.enabled:
+            try:
+                from rich.progress import Progress
+
+                self._rich = Progress(transient=True)
+                self._rich.start()
+                self._task = self._rich.add_task(self.label, total=self.total)
+            except ImportError:  # pragma: no cover
+                self._rich = None
+        return self.update
+
+    def update(self, completed: float | None = None, *, total: float | None = None,
+               label: str | None = None) -> None:
+        """Report progress: ``completed`` units of ``total``; a new ``label`` if given."""
+        if self._rich is not None:
+            kwargs = {}
+            if completed is not None:
+                kwargs["completed"] = completed
+            if total is not None:
+                kwargs["total"] = total
+            if label is not None:
+                kwargs["description"] = label
+            self._rich.update(self._task, **kwargs)
+
+    def __exit__(self, *exc) -> None:
+        if self._rich is not None:
+            self._rich.stop()

@@ -1,0 +1,110 @@
+"""One glossary: name, symbol, unit and meaning of every quantity stowflow reads or writes.
+
+The README's nomenclature, the CSV/JSON column names and the input validation all read from
+:data:`GLOSSARY`.  ``plausible`` gives the range, in the trade unit, outside which an input is
+refused as absurd (a typo or a wrong unit, e.g. 1e9 L/min); it is deliberately wide and is
+*not* a design limit.  The ranges are our own choice (common practice, no published source).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = ["GLOSSARY", "Term", "term"]
+
+
+@dataclass(frozen=True)
+class Term:
+    """A quantity of the glossary.
+
+    Attributes
+    ----------
+    key : str
+        Name used in code, CSV headers and JSON keys.
+    symbol : str
+        Symbol used in formulas and docstrings.
+    unit : str
+        Unit in which the quantity is shown to the user (trade unit).
+    si_unit : str
+        Unit in which it is held internally.
+    dimension : str
+        Dimension key understood by :mod:`optimiser.units`.
+    meaning : str
+        One-sentence meaning.
+    plausible : tuple[float, float] | None
+        Inclusive range in ``unit`` outside which an input is refused as absurd.
+    """
+
+    key: str
+    symbol: str
+    unit: str
+    si_unit: str
+    dimension: str
+    meaning: str
+    plausible: tuple[float, float] | None = None
+
+
+_TERMS = (
+    Term("time", "t", "s", "s", "time", "Time from the start of the cycle.", (0.0, 7 * 86400.0)),
+    Term("duration", "Δt", "s", "s", "time", "Length of one phase of constant demand.",
+         (0.0, 86400.0)),
+    Term("flow", "Q_d", "L/min", "m³/s", "flow",
+         "Flow the machine draws from the pressure line (demand), ≥ 0.", (0.0, 100_000.0)),
+    Term("pressure", "p_req", "bar", "Pa", "pressure",
+         "Pressure the consumer needs at that moment, gauge (what a gauge reads).",
+         (-1.0, 2_000.0)),
+    Term("demand", "Q_d", "L/min", "m³/s", "flow", "Demand flow of the time step."),
+    Term("required_pressure", "p_req", "bar", "Pa", "pressure",
+         "Required pressure of the time step, gauge."),
+    Term("pump_flow", "Q_p", "L/min", "m³/s", "flow",
+         "Effective pump delivery, displacement × speed × volumetric efficiency."),
+    Term("pump_loaded", "u", "-", "-", "none", "1 while the pump delivers into the system, 0 "
+         "while it is unloaded to tank."),
+    Term("accumulator_oil", "S", "L", "m³", "volume",
+         "Oil stored in the accumulator bank (zero at or below precharge)."),
+    Term("nominal_volume", "V_0", "L", "m³", "volume",
+         "Gas-side volume of an accumulator at precharge (its nominal size).", (0.01, 5_000.0)),
+    Term("precharge", "p_0", "bar", "Pa", "pressure",
+         "Nitrogen precharge pressure, gauge, stated at 20 °C with no oil in the accumulator."),
+    Term("min_pressure", "p_1", "bar", "Pa", "pressure",
+         "Minimum working pressure (the pump loads at or above it), gauge."),
+    Term("max_pressure", "p_2", "bar", "Pa", "pressure",
+         "Maximum working pressure (the pump unloads at it), gauge."),
+    Term("max_allowable_pressure", "PS", "bar", "Pa", "pressure",
+         "Maximum allowable pressure of a component (pressure-equipment term), gauge.",
+         (1.0, 2_000.0)),
+    Term("relief_setting", "p_r", "bar", "Pa", "pressure",
+         "Cracking pressure of the relief valve, gauge."),
+    Term("displacement", "V_g", "cm³/rev", "m³", "displacement",
+         "Geometric displacement of the pump per revolution.", (0.01, 10_000.0)),
+    Term("speed", "n", "rpm", "1/s", "speed", "Shaft speed of pump and motor.",
+         (1.0, 10_000.0)),
+    Term("rated_power", "P_m", "kW", "W", "power", "Rated output power of the electric motor.",
+         (0.01, 10_000.0)),
+    Term("volumetric_efficiency", "η_v", "-", "-", "none",
+         "Effective over theoretical pump flow.", (0.05, 1.0)),
+    Term("overall_efficiency", "η_o", "-", "-", "none",
+         "Hydraulic output power over shaft input power of the pump.", (0.05, 1.0)),
+    Term("efficiency", "η_m", "-", "-", "none",
+         "Electric motor efficiency (mechanical output over electric input).", (0.05, 1.0)),
+    Term("temperature", "T", "°C", "K", "temperature",
+         "Gas and oil temperature in operation.", (-60.0, 200.0)),
+    Term("price", "C", "-", "-", "none", "Unit price in the catalogue's currency.",
+         (0.0, 1e9)),
+    Term("bore", "d", "mm", "m", "length", "Piston bore, for the piston-speed flow limit.",
+         (0.0, 2_000.0)),
+    Term("hydraulic_power", "P_h", "kW", "W", "power",
+         "Flow × gauge pressure delivered to the consumer."),
+    Term("energy_per_cycle", "E", "kJ", "J", "energy",
+         "Electrical energy drawn by the motor over one cycle."),
+    Term("time_constant", "τ", "s", "s", "time",
+         "Thermal time constant of the gas charge, m·c_v/(h·A_w).", (0.01, 10_000.0)),
+)
+
+#: All terms by key.
+GLOSSARY: dict[str, Term] = {t.key: t for t in _TERMS}
+
+
+def term(key: str) -> Term:
+    """Return the glossary entry ``key`` (KeyError if it is not in the glossary)."""
+    return GLOSSARY[key]
