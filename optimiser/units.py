@@ -102,12 +102,12 @@ def registry() -> pint.UnitRegistry:
 
     try:
         ureg = pint.UnitRegistry(cache_folder=":auto:")
-    except Exception:  # noqa: BLE001 - an unwritable cache folder must not stop the tool
+    except Exception:
         ureg = pint.UnitRegistry()
     for line in _EXTRA_DEFINITIONS:
         try:
             ureg.define(line)
-        except Exception:  # noqa: BLE001 - already defined in this pint version
+        except Exception:
             pass
     return ureg
 
@@ -211,7 +211,9 @@ def parse_quantity(text: str, dimension: str, *, default_unit: str | None = None
     value = float(m.group(1))
     unit = m.group(2) or default_unit
     if not unit:
-        raise UnitsError(f"'{text}' has no unit; write it with one, e.g. {value:g}{_EXAMPLE[dimension]}")
+        raise UnitsError(
+            f"'{text}' has no unit; write it with one, e.g. {value:g}{_EXAMPLE[dimension]}"
+        )
     if not np.isfinite(value):
         raise UnitsError(f"'{text}' is not a finite number")
     return value * si_factor(unit, dimension)
@@ -268,15 +270,19 @@ def gauge_to_abs(p_gauge, p_ambient: float = P_AMBIENT):
     float or numpy.ndarray
         Absolute pressure, [Pa].
     """
-    return np.asarray(p_gauge, dtype=float) + p_ambient if not np.isscalar(p_gauge) else (
-        float(p_gauge) + p_ambient
+    return (
+        np.asarray(p_gauge, dtype=float) + p_ambient
+        if not np.isscalar(p_gauge)
+        else (float(p_gauge) + p_ambient)
     )
 
 
 def abs_to_gauge(p_abs, p_ambient: float = P_AMBIENT):
     """Absolute to gauge pressure, [Pa] → [Pa]."""
-    return np.asarray(p_abs, dtype=float) - p_ambient if not np.isscalar(p_abs) else (
-        float(p_abs) - p_ambient
+    return (
+        np.asarray(p_abs, dtype=float) - p_ambient
+        if not np.isscalar(p_abs)
+        else (float(p_abs) - p_ambient)
     )
 
 

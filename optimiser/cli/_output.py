@@ -68,8 +68,9 @@ def print_table(
             table.add_row(*r)
         Console(file=stream).print(table)
         return
-    widths = [max(len(h), *(len(r[i]) for r in rows)) if rows else len(h)
-              for i, h in enumerate(headers)]
+    widths = [
+        max(len(h), *(len(r[i]) for r in rows)) if rows else len(h) for i, h in enumerate(headers)
+    ]
     if title:
         stream.write(f"{title}\n")
     line = "  ".join(h.ljust(w) for h, w in zip(headers, widths, strict=True))
@@ -83,7 +84,7 @@ def print_table(
         stream.write("  ".join(cells).rstrip() + "\n")
 
 
-class progress:  # noqa: N801 - used as a context manager like a function
+class progress:
     """Progress on stderr for work that may take more than a second.
 
     ``with progress("searching designs", total=n) as step: ... step(k)``.  Silent when stderr
@@ -108,8 +109,13 @@ class progress:  # noqa: N801 - used as a context manager like a function
                 self._rich = None
         return self.update
 
-    def update(self, completed: float | None = None, *, total: float | None = None,
-               label: str | None = None) -> None:
+    def update(
+        self,
+        completed: float | None = None,
+        *,
+        total: float | None = None,
+        label: str | None = None,
+    ) -> None:
         """Report progress: ``completed`` units of ``total``; a new ``label`` if given."""
         if self._rich is not None:
             kwargs = {}

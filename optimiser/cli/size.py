@@ -1,0 +1,288 @@
+"""``stowflow size``: gas volume and admissible accumulator types for one duty point.
+
+The parser is built from option groups so that further duties can add their own group
+(:func:`add_storage_options` holds the energy-storage inputs; :func:`add_condition_options`
+the gas, process and temperature; :func:`add_output_options` PS and JSON).  :func:`run` turns
+the arguments into SI values (:func:`storage_inputs`), sizes (:func:`size_storage`) and prints.
+"""
+
+from __future__ import annotations
+
+import argparse
+import re
+
+from optimiser.cli._output import print_json, print_table
+from optimiser.errors import SettingsError, UnitsError
+from optimiser.glossary import term
+from optimiser.units import (
+    abs_to_gauge,
+    celsius_to_kelvin,
+    gauge_to_abs,
+    parse_quantity,
+    to_unit,
+)
+
+__all__ = [
+    "add_condition_options",
+    "add_output_options",
+    "add_storage_options",
+    "register",
+    "run",
+    "size_storage",
+    "storage_inputs",
+]
+
+_EXAMPLE = """\
+example:
+  stowflow size --volume 5L --min-pressure 100bar --max-pressure 200bar \\
+                --temperature 10..50 --ps 330bar
+  stowflow size --volume 2827in3 --precharge 1200psi --min-pressure 1800psi \\
+                --max-pressure 3000psi --absolute --process isothermal --gas ideal \\
+                --temperature 20
+
+Pressures are gauge unless --absolute is given; PS is always gauge (as on the nameplate).
+The precharge is stated at 20 °C. Type limits are common practice, no published source.
+"""
+
+
+def register(subparsers, common: argparse.ArgumentParser) -> argparse.ArgumentParser:
+    """Add the ``size`` command to ``subparsers`` and return its parser."""
+    parser = subparsers.add_parser(
+        "size",
+        parents=[common],
+        help="size an accumulator for one oil volume and pressure window",
+        description=(
+            "Gas volume (nominal size) that exchanges an oil volume between two working "
+            "pressures at the worst temperature of the range, with the precharge at 20 °C, the "
+            "oil stored at each temperature and the accumulator types that meet their limits."
+        ),
+        epilog=_EXAMPLE,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    add_storage_options(parser)
+    add_condition_options(parser)
+    add_output_options(parser)
+    parser.set_defaults(func=run)
+    return parser
+
+
+def add_storage_options(parser: argparse.ArgumentParser) -> None:
+    """Options of the energy-storage duty: oil volume and pressure window."""
+    g = parser.add_argument_group("energy storage")
+    g.add_argument(
+        "--volume",
+        required=True,
+        metavar="VOL",
+        help="oil volume to exchange, with unit (5L, 2827in3, 1.3gal)",
+    )
+    g.add_argument(
+        "--min-pressure",
+        required=True,
+        metavar="P",
+        help="minimum working pressure p1, with unit (100bar, 1800psi)",
+    )
+    g.add_argument(
+        "--max-pressure", required=True, metavar="P", help="maximum working pressure p2, with unit"
+    )
+    g.add_argument(
+        "--precharge",
+        metavar="P",
+        help="nitrogen precharge p0 at 20 °C; default: each type's rule "
+        "(0.9·p1 for bladder/diaphragm, p1 − 5 bar for piston types) at the "
+        "hottest temperature",
+    )
+    g.add_argument(
+        "--absolute", action="store_true", help="the pressures given are absolute (default: gauge)"
+    )
+
+
+def add_condition_options(parser: argparse.ArgumentParser) -> None:
+    """Options of the gas: process, model and temperature range."""
+    g = parser.add_argument_group("gas")
+    g.add_argument(
+        "--process",
+        default="adiabatic",
+        metavar="PROC",
+        help="isothermal | adiabatic | polytropic:N (default adiabatic, the "
+        "conservative choice for fast strokes)",
+    )
+    g.add_argument(
+        "--gas",
+        default="real",
+        choices=("real", "ideal"),
+        help="nitrogen model: real (Span et al. 2000 EOS) or ideal (default real)",
+    )
+    g.add_argument(
+        "--temperature",
+        default="20",
+        metavar="T[..T]",
+        help="operating temperature range in °C, e.g. 10..50 or -20..60 (default 20)",
+    )
+
+
+def add_output_options(parser: argparse.ArgumentParser) -> None:
+    """Options of the output: PS for the category hint and JSON."""
+    g = parser.add_argument_group("output")
+    g.add_argument(
+        "--ps",
+        metavar="P",
+        help="maximum allowable pressure PS of the vessel, gauge, for the limit "
+        "check and the pressure-equipment category hint (e.g. 330bar)",
+    )
+    g.add_argument("--json", action="store_true", help="print the result as JSON")
+
+
+_NUM = r"(-?(?:\d+(?:\.\d*)?|\.\d+))\s*(?:°?c)?"
+_RANGE_RE = re.compile(rf"^\s*{_NUM}\s*(?:\.\.\s*{_NUM})?\s*$", re.IGNORECASE)
+
+
+def parse_temperature_range(text: str) -> tuple[float, float]:
+    """``"10..50"`` or ``"20"`` (°C) → (T_min, T_max) [K]."""
+    m = _RANGE_RE.match(text)
+    try:
+        lo = float(m.group(1))
+        hi = float(m.group(2)) if m.group(2) is not None else lo
+    except (AttributeError, ValueError):
+        raise SettingsError(
+            f"--temperature '{text}' is not a range in °C; write e.g. 10..50 or 20"
+        ) from None
+    lo_ok, hi_ok = term("temperature").plausible
+    for v in (lo, hi):
+        if not lo_ok <= v <= hi_ok:
+            raise SettingsError(
+                f"--temperature {v:g} °C is outside the plausible {lo_ok:g}…{hi_ok:g} °C"
+            )
+    if hi < lo:
+        raise SettingsError(f"--temperature '{text}': the first value must be the lower one")
+    return celsius_to_kelvin(lo), celsius_to_kelvin(hi)
+
+
+def _quantity(text: str, dimension: str, option: str) -> float:
+    try:
+        return parse_quantity(text, dimension)
+    except UnitsError as exc:
+        raise UnitsError(f"{option}: {exc}") from None
+
+
+def storage_inputs(args: argparse.Namespace) -> dict:
+    """SI keyword arguments for :func:`optimiser.sizing.size_accumulator` from the options."""
+
+    def pressure(text: str, option: str) -> float:
+        p = _quantity(text, "pressure", option)
+        return p if args.absolute else gauge_to_abs(p)
+
+    t_min, t_max = parse_temperature_range(args.temperature)
+    kwargs = {
+        "oil_volume": _quantity(args.volume, "volume", "--volume"),
+        "p_min": pressure(args.min_pressure, "--min-pressure"),
+        "p_max": pressure(args.max_pressure, "--max-pressure"),
+        "precharge": None if args.precharge is None else pressure(args.precharge, "--precharge"),
+        "process": args.process,
+        "model": args.gas,
+        "T_min": t_min,
+        "T_max": t_max,
+    }
+    if args.ps is not None:
+        kwargs["max_allowable_pressure"] = gauge_to_abs(_quantity(args.ps, "pressure", "--ps"))
+    return kwargs
+
+
+def size_storage(args: argparse.Namespace):
+    """Energy-storage sizing for the parsed options (a :class:`SizingResult`)."""
+    from optimiser.sizing import size_accumulator
+
+    return size_accumulator(**storage_inputs(args))
+
+
+def run(args: argparse.Namespace) -> int:
+    """Size, then print a table (or JSON with ``--json``); return the exit code."""
+    result = size_storage(args)
+    data = result.as_dict()
+    if args.json:
+        print_json(data)
+        return 0
+    _print_human(result, data)
+    return 0
+
+
+def _fmt(x: float, digits: int = 4) -> str:
+    return f"{x:.{digits}g}"
+
+
+def _print_human(result, data: dict) -> None:
+    g = result.governing
+    bar = lambda p: _fmt(to_unit(abs_to_gauge(p), "bar", "pressure"))  # noqa: E731
+    rows = [
+        ("oil volume to exchange", _fmt(data["oil_volume_l"]), "L"),
+        ("minimum working pressure p1", bar(result.p_min), "bar gauge"),
+        ("maximum working pressure p2", bar(result.p_max), "bar gauge"),
+        ("gas model / process", f"{data['gas_model']} / {result.process}", ""),
+        (
+            "temperature range",
+            f"{data['temperature_c']['min']:g} … {data['temperature_c']['max']:g}",
+            "°C",
+        ),
+        ("governing type", g.type.value, ""),
+        (
+            "precharge at 20 °C" + (" (by rule)" if data["precharge_by_rule"] else ""),
+            _fmt(data["precharge_bar_at_20c"]),
+            "bar gauge",
+        ),
+        ("required gas volume V0 (worst case)", _fmt(data["required_gas_volume_l"]), "L"),
+        ("worst temperature", _fmt(data["worst_temperature_c"]), "°C"),
+        ("shell volume", _fmt(g.as_dict()["shell_volume_l"]), "L"),
+    ]
+    print_table(rows, title="stowflow size: energy storage")
+    print()
+    headers = (
+        "T [°C]",
+        "p0(T) [bar]",
+        "oil at p1 [L]",
+        "oil at p2 [L]",
+        "exchange [L]",
+        "V0 needed [L]",
+        "gas T at p2 [°C]",
+    )
+    keys = (
+        "temperature_c",
+        "precharge_bar",
+        "oil_at_min_pressure_l",
+        "oil_at_max_pressure_l",
+        "oil_exchange_l",
+        "required_gas_volume_l",
+        "gas_temperature_at_max_pressure_c",
+    )
+    table = [[_fmt(r[k]) for k in keys] for r in data["temperatures"]]
+    print_table(
+        table,
+        headers=headers,
+        title=f"per temperature, V0 = {_fmt(data['required_gas_volume_l'])} L ({g.type.value})",
+    )
+    print()
+    type_rows, notes = [], []
+    for c in result.cases:
+        d = c.as_dict()
+        verdict = "yes" if c.admissible else "no: " + "; ".join(d["reasons"])
+        v0, p0 = _fmt(d["required_gas_volume_l"]), _fmt(d["precharge_bar_at_20c"])
+        type_rows.append((c.type.value, v0, p0, verdict))
+        notes += [f"note ({c.type.value}): {n}" for n in d["notes"]]
+    print_table(
+        type_rows,
+        headers=("type", "V0 [L]", "p0 at 20 °C [bar]", "admissible"),
+        title="accumulator types (limits: common practice, no published source)",
+    )
+    for note in notes:
+        print(note)
+    pe = data["pressure_equipment"]
+    if pe is not None:
+        print()
+        print(
+            f"pressure-equipment category for one {_fmt(pe['volume_l'])} L vessel at PS "
+            f"{_fmt(pe['ps_bar'])} bar: {pe['category']}"
+        )
+        print(f"  {pe['note']}")
+    print()
+    print(
+        "Precharge with nitrogen only, never air or oxygen. Design support only: a competent "
+        "person checks it against local codes and standards."
+    )

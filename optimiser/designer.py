@@ -1,0 +1,496 @@
+"""``design()``: the lexicographic search from a cycle and a catalogue to a :class:`Design`.
+
+1. :func:`optimiser.search.screen` settles level 1 (least installed motor power) and level 2
+   (least capex) exactly by enumeration on the precharge grid.
+2. Among the combinations tied at both levels, each (component set, precharge) is scheduled by
+   the greedy last-moment rule; the best few go to the schedule MILP
+   (:func:`optimiser.model.solve_schedule`) for level 3, the energy per cycle.
+3. The chosen schedule is checked again at full resolution by an independent routine
+   (:func:`optimiser.schedule.check_schedule`); a schedule that fails it is never returned.
+"""
+
+from __future__ import annotations
+
+import math
+import time
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from optimiser import accumulator as acc
+from optimiser import gas
+from optimiser.baseline import compensated_baseline, fixed_baseline
+from optimiser.catalogue import Catalogue
+from optimiser.cycle import DutyCycle
+from optimiser.model import ScheduleProblem, solve_schedule
+from optimiser.schedule import (
+    check_schedule,
+    deficit_from_full,
+    greedy_schedule,
+    lowest_trajectory,
+)
+from optimiser.search import Candidate, Problem, bank_bounds, make_problem, screen
+from optimiser.settings import DesignSettings
+from optimiser.solution import Bank, Design, SearchStats
+
+__all__ = ["Family", "design", "family_problem"]
+
+#: Most tied families that get the schedule MILP (the rest are ranked by the greedy rule).
+MILP_FAMILIES = 1
+#: Most precharges per tied component set that are ranked by the greedy rule.
+PRECHARGES_PER_SET = 24
+#: Chords of the gas curve in the schedule model's energy law.
+CHORDS = 4
+
+
+@dataclass(frozen=True)
+class Family:
+    """A component set with one precharge: everything but the schedule is fixed.
+
+    Attributes
+    ----------
+    candidate : Candidate
+        Pump, motor, accumulator row and count.
+    precharge : float
+        Precharge at 20 °C, absolute, [Pa].
+    p_max : float
+        Unload pressure, absolute, [Pa].
+    sp : ScheduleProblem
+        The schedule model's data for it.
+    volume : float
+        Bank gas volume, [m³].
+    robust : bool
+        True when one open-loop schedule holds at every temperature of the range; False when
+        it is planned at the middle temperature.
+    """
+
+    candidate: Candidate
+    precharge: float
+    p_max: float
+    sp: ScheduleProblem
+    volume: float
+    robust: bool = True
+
+
+def _dwell_steps(seconds: float, dt: float) -> int:
+    return max(1, math.ceil(seconds / dt - 1e-9)) if seconds > 0 else 1
+
+
+def family_problem(
+    problem: Problem, cand: Candidate, p0: float, p_max: float, catalogue: Catalogue
+) -> Family:
+    """Build the schedule data for one component set and precharge.
+
+    Parameters
+    ----------
+    problem : Problem
+        The prepared cycle.
+    cand : Candidate
+        Component set with a bank.
+    p0 : float
+        Precharge at 20 °C, absolute, [Pa].
+    p_max : float
+        Unload pressure, absolute, [Pa].
+    catalogue : Catalogue
+        For the accumulator type rules.
+
+    Returns
+    -------
+    Family
+    """
+    s = problem.settings
+    opt = cand.option
+    rules = acc.rules_for(opt.type, (catalogue.limits or {}).get(opt.type))
+    levels, inverse = np.unique(problem.p_end, return_inverse=True)
+    t_mid = 0.5 * (s.t_min + s.t_max)
+    temps = (s.t_min, s.t_max, t_mid)
+    lo, up, pm = bank_bounds(problem, opt.type, np.array([p0]), p_max, levels, rules, temps)
+    volume = cand.count * opt.nominal_volume
+    swept = cand.count * opt.swept_volume if opt.swept_volume else np.inf
+    # One open-loop schedule for the whole temperature range when the bank allows it (the
+    # store then keeps the coldest lower bound and the hottest upper bound); otherwise the
+    # schedule is planned at the middle temperature and the pressure switch adapts at the
+    # extremes (the screen has proven each temperature feasible on its own).
+    lower = volume * np.max(lo[:2, 0, :], axis=0)[inverse]
+    upper = min(volume * float(np.min(up[:2, 0])), swept)
+    deficit = deficit_from_full((cand.pump.flow - problem.demand) * problem.dt)
+    robust = deficit is not None and bool(np.all(upper - lower >= deficit - 1e-12 * volume))
+    if not robust:
+        lower = volume * lo[2, 0, :][inverse]
+        upper = min(volume * float(up[2, 0]), swept)
+    q_bank = cand.count * acc.unit_flow_limit(
+        opt.type, opt.nominal_volume, opt.bore, opt.max_flow, rules
+    )
+    pump, motor = cand.pump, cand.motor
+    eta = pump.overall_efficiency * motor.efficiency
+    s_lo = float(max(lower.min(), 0.0))
+    knots = np.linspace(s_lo, upper, CHORDS + 1)
+    p_knots = (
+        gas.pressure_at_oil_fraction(
+            np.clip(knots / volume, 0.0, 0.999), p0, t_mid, problem.process, s.gas_model
+        )
+        - s.p_ambient
+    )
+    cuts = []
+    for j in range(CHORDS):
+        ds = knots[j + 1] - knots[j]
+        slope = (p_knots[j + 1] - p_knots[j]) / ds if ds > 0 else 0.0
+        cuts.append((float(p_knots[j] - slope * knots[j]), float(slope)))
+    sp = ScheduleProblem(
+        dt=problem.dt,
+        demand=problem.demand,
+        lower=lower,
+        upper=upper,
+        qp=pump.flow,
+        discharge_limit=q_bank,
+        pressure_cuts=tuple(cuts),
+        efficiency=eta,
+        unloaded_power=pump.flow * s.standby_pressure / eta,
+        min_up=_dwell_steps(s.min_loaded_dwell, problem.dt),
+        min_down=_dwell_steps(s.min_unloaded_dwell, problem.dt),
+        max_events_per_hour=s.max_load_events_per_hour,
+    )
+    return Family(cand, float(p0), float(pm[0]), sp, volume, robust)
+
+
+def _energy(
+    problem: Problem, fam: Family, u: np.ndarray, oil: np.ndarray, spill: np.ndarray
+) -> float:
+    """Quasi-static electrical energy per cycle on the gas curve itself, [J].
+
+    The pump's hydraulic work over a periodic cycle equals the work the machine draws at the
+    accumulator pressure (the gas returns what it stores); the unloaded share of the time pays
+    the standby circulation.
+    """
+    s = problem.settings
+    t_mid = 0.5 * (s.t_min + s.t_max)
+    mid = 0.5 * (np.roll(oil, 1) + oil)
+    frac = np.clip(mid / fam.volume, 0.0, 0.999)
+    p = gas.pressure_at_oil_fraction(frac, fam.precharge, t_mid, problem.process, s.gas_model)
+    hyd = problem.demand * (p - s.p_ambient)
+    sp = fam.sp
+    idle = (1 - np.asarray(u, float) + np.asarray(spill, float) / sp.qp) * sp.unloaded_power
+    return float((hyd.sum() / sp.efficiency + idle.sum()) * problem.dt)
+
+
+def _block_size(problem: Problem, sp: ScheduleProblem) -> int:
+    s = problem.settings
+    if problem.n <= s.max_model_steps:
+        return 1
+    b = math.ceil(problem.n / s.max_model_steps)
+    return max(b, sp.min_up, sp.min_down)
+
+
+def _pressures(problem: Problem, fam: Family, oil: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    s = problem.settings
+    frac = np.clip(oil / fam.volume, 0.0, 0.999)
+    out = []
+    for t_k in (s.t_min, s.t_max):
+        p = gas.pressure_at_oil_fraction(frac, fam.precharge, t_k, problem.process, s.gas_model)
+        p0_t = gas.precharge_at(fam.precharge, t_k, s.gas_model)
+        out.append(np.maximum(p, p0_t))
+    return out[0], out[1]
+
+
+def design(
+    cycle: DutyCycle,
+    catalogue: Catalogue,
+    settings: DesignSettings | None = None,
+    *,
+    extra_pressure: np.ndarray | float = 0.0,
+    progress: Callable[[float, str], None] | None = None,
+    **overrides,
+) -> Design:
+    """Find the least-installed-power supply for a cycle.
+
+    Parameters
+    ----------
+    cycle : DutyCycle
+        The duty cycle (with a required pressure).
+    catalogue : Catalogue
+        Components to choose from.
+    settings : DesignSettings, optional
+        Settings; keyword ``overrides`` replace single fields.
+    extra_pressure : float or numpy.ndarray
+        Extra pressure on every step's requirement (the verification's tightening), [Pa].
+    progress : callable, optional
+        ``progress(fraction, label)``.
+
+    Returns
+    -------
+    Design
+        Status ``optimal``/``feasible`` with components and schedule, or ``infeasible`` with
+        the binding limit.
+    """
+    t_start = time.perf_counter()
+    s = settings or DesignSettings()
+    if overrides:
+        s = s.with_(**overrides)
+    report = progress or (lambda frac, label: None)
+    report(0.0, "screening the catalogue")
+    problem = make_problem(cycle, s, extra_pressure)
+    dt, demand = problem.dt, problem.demand
+
+    # Physical lower bound on installed power: mean hydraulic power over the best efficiencies.
+    hyd = demand * (problem.p_step - s.p_ambient)
+    best_eta = max(p.overall_efficiency for p in catalogue.pumps) * max(
+        m.efficiency for m in catalogue.motors
+    )
+    lb_power = float(hyd.mean()) / best_eta
+    baselines = (
+        fixed_baseline(demand, problem.p_step, dt, catalogue, s),
+        compensated_baseline(demand, problem.p_step, dt, catalogue, s),
+    )
+    sr = screen(problem, catalogue, report=lambda f, lab: report(0.4 * f, lab))
+    notes = [f"gas process: {problem.process_note}"]
+    empty = pd.DataFrame()
+    if not sr.candidates:
+        stats = SearchStats(
+            candidates=sr.evaluated,
+            screen_time=sr.elapsed,
+            total_time=time.perf_counter() - t_start,
+        )
+        return Design(
+            "infeasible",
+            sr.reason,
+            None,
+            None,
+            None,
+            math.nan,
+            math.nan,
+            math.nan,
+            _process_label(problem),
+            empty,
+            math.nan,
+            math.nan,
+            math.nan,
+            {},
+            lb_power,
+            baselines,
+            stats,
+            tuple(notes),
+        )
+
+    # Level 3 among the ties: rank by the ideal controller, then the MILP for the best few.
+    report(0.45, "ranking tied designs by energy")
+    ranked: list[tuple[float, Family | None, Candidate, np.ndarray]] = []
+    for cand in sr.candidates:
+        if cand.option is None:
+            ranked.append((_pump_only_energy(problem, cand), None, cand, np.ones(problem.n, int)))
+            continue
+        idx = np.arange(cand.precharges.size)
+        if idx.size > PRECHARGES_PER_SET:
+            idx = np.unique(np.linspace(0, idx.size - 1, PRECHARGES_PER_SET).round().astype(int))
+        for i in idx:
+            fam = family_problem(problem, cand, cand.precharges[i], cand.p_max[i], catalogue)
+            # Rank by the ideal controller: loaded whenever the store must rise, unloaded
+            # part-way as soon as it may (the lowest trajectory); the MILP adds the limits.
+            ideal = lowest_trajectory(
+                np.ones(problem.n), demand, fam.sp.lower, fam.sp.upper, fam.sp.qp, dt
+            )
+            if ideal is None:
+                continue
+            e_rank = _energy(problem, fam, np.ones(problem.n), ideal.oil, ideal.spill)
+            ranked.append((e_rank, fam, cand, None))
+    ranked.sort(key=lambda r: r[0])
+    build_time = solve_time = 0.0
+    solved = 0
+    best = None  # (energy, fam, cand, u, oil, spill, gap, bound, status, block)
+    for k, (e_rank, fam, cand, u0) in enumerate(ranked[: max(MILP_FAMILIES, 1)]):
+        report(0.5 + 0.4 * k / MILP_FAMILIES, "solving the schedule model")
+        if fam is None:
+            cand_best = (e_rank, None, cand, u0, None, None, 0.0, e_rank, "optimal", 1)
+        else:
+            u0 = greedy_schedule(
+                demand,
+                fam.sp.lower,
+                fam.sp.upper,
+                fam.sp.qp,
+                dt,
+                min_up=fam.sp.min_up,
+                min_down=fam.sp.min_down,
+                max_events_per_hour=fam.sp.max_events_per_hour,
+                discharge_limit=fam.sp.discharge_limit,
+            )
+            block = _block_size(problem, fam.sp)
+            sol = solve_schedule(
+                fam.sp,
+                warm_u=u0 if block == 1 else None,
+                block=block,
+                mip_gap=s.mip_gap,
+                time_limit=s.time_limit,
+            )
+            solved += 1
+            build_time += sol.build_time
+            solve_time += sol.solve_time
+            cand_best = None
+            if sol.status != "failed":
+                cand_best = _accept(
+                    problem, fam, cand, sol.u, sol.gap, sol.bound, sol.status, sol.block, notes
+                )
+            if cand_best is None:  # the greedy schedule is feasible by construction
+                cand_best = _accept(
+                    problem, fam, cand, u0, math.nan, math.nan, "feasible", 1, notes
+                )
+            if cand_best is None:
+                continue
+        if best is None or cand_best[0] < best[0]:
+            best = cand_best
+    if best is None:
+        stats = SearchStats(
+            candidates=sr.evaluated,
+            screen_time=sr.elapsed,
+            total_time=time.perf_counter() - t_start,
+        )
+        return Design(
+            "infeasible",
+            "no schedule passed the full-resolution check",
+            None,
+            None,
+            None,
+            math.nan,
+            math.nan,
+            math.nan,
+            _process_label(problem),
+            empty,
+            math.nan,
+            math.nan,
+            math.nan,
+            {},
+            lb_power,
+            baselines,
+            stats,
+            tuple(notes),
+        )
+    energy, fam, cand, u, oil, spill, gap, bound, status, block = best
+    if len(ranked) > MILP_FAMILIES:
+        notes.append(
+            f"{len(ranked)} designs tie on installed power and capex; the one with the least "
+            "energy under an ideal pressure switch was optimised by the schedule model (level 3 "
+            "is optimal for that component set and precharge)"
+        )
+    report(0.95, "writing the schedule")
+    schedule, bank, p_min, p_max, relief = _assemble(problem, fam, cand, u, oil, spill)
+    if block > 1:
+        notes.append(
+            f"schedule model aggregated {block} steps per block (certified feasible "
+            "at full resolution)"
+        )
+    stats = SearchStats(
+        candidates=sr.evaluated,
+        screen_time=sr.elapsed,
+        build_time=build_time,
+        solve_time=solve_time,
+        total_time=time.perf_counter() - t_start,
+        families_solved=solved,
+        block=block,
+        notes=(),
+    )
+    levels = {
+        "installed_power [W]": cand.motor.rated_power,
+        "capex": cand.capex,
+        "energy_per_cycle [J]": energy,
+    }
+    return Design(
+        status=status if status in ("optimal", "feasible") else "feasible",
+        reason=None,
+        bank=bank,
+        pump=cand.pump,
+        motor=cand.motor,
+        p_min=p_min,
+        p_max=p_max,
+        relief=relief,
+        process=_process_label(problem),
+        schedule=schedule,
+        energy_per_cycle=energy,
+        mip_gap=0.0 if fam is None else (gap if math.isfinite(gap) else math.nan),
+        best_bound=bound,
+        levels=levels,
+        lower_bound_power=lb_power,
+        baselines=baselines,
+        stats=stats,
+        notes=tuple(notes),
+    )
+
+
+def _process_label(problem: Problem) -> str:
+    p = problem.process
+    if p.kind == "polytropic":
+        return f"polytropic:{p.n:.3f}"
+    return p.kind
+
+
+def _accept(problem, fam, cand, u, gap, bound, status, block, notes):
+    """Check a schedule at full resolution; return the search's record of it, or None."""
+    chk = _check(problem, fam, u)
+    low = lowest_trajectory(u, problem.demand, fam.sp.lower, fam.sp.upper, fam.sp.qp, problem.dt)
+    if not chk.ok or low is None:
+        notes.append(
+            "a schedule failed the full-resolution check ("
+            + "; ".join(chk.problems or ("no periodic store trajectory",))
+            + ")"
+        )
+        return None
+    e = _energy(problem, fam, u, low.oil, low.spill)
+    return (e, fam, cand, u, low.oil, low.spill, gap, bound, status, block)
+
+
+def _check(problem: Problem, fam: Family, u: np.ndarray):
+    sp = fam.sp
+    return check_schedule(
+        u,
+        problem.demand,
+        sp.lower,
+        sp.upper,
+        sp.qp,
+        problem.dt,
+        min_up=sp.min_up,
+        min_down=sp.min_down,
+        max_events_per_hour=sp.max_events_per_hour,
+        discharge_limit=sp.discharge_limit,
+        tol=1e-9 * max(sp.upper, 1e-6),
+    )
+
+
+def _pump_only_energy(problem: Problem, cand: Candidate) -> float:
+    s = problem.settings
+    relief = s.relief_setting(float(problem.p_end.max()))
+    shaft = cand.pump.flow * (relief - s.p_ambient) / cand.pump.overall_efficiency
+    return shaft / cand.motor.efficiency * problem.n * problem.dt
+
+
+def _assemble(problem: Problem, fam: Family | None, cand: Candidate, u, oil, spill):
+    s = problem.settings
+    n, dt = problem.n, problem.dt
+    time_s = np.arange(n) * dt
+    qp = cand.pump.flow
+    if fam is None:
+        p_sys = float(problem.p_end.max())
+        relief = s.relief_setting(p_sys)
+        oil = np.zeros(n)
+        spill = qp - problem.demand
+        p_cold = p_hot = np.full(n, relief)
+        bank = None
+        p_min, p_max = p_sys, relief
+    else:
+        p_cold, p_hot = _pressures(problem, fam, oil)
+        bank = Bank(cand.option, cand.count, fam.precharge)
+        p_min = float(p_cold.min())
+        p_max = float(max(p_hot.max(), problem.p_end.max()))
+        relief = s.relief_setting(p_max)
+    schedule = pd.DataFrame(
+        {
+            "demand [m³/s]": problem.demand,
+            "required_pressure [Pa]": problem.p_step,
+            "pump_loaded [-]": np.asarray(u, int),
+            "pump_flow [m³/s]": qp * np.asarray(u, float),
+            "spill [m³/s]": spill,
+            "accumulator_oil [m³]": oil,
+            "pressure_cold [Pa]": p_cold,
+            "pressure_hot [Pa]": p_hot,
+        },
+        index=pd.Index(time_s, name="time [s]"),
+    )
+    return schedule, bank, p_min, p_max, relief

@@ -1,0 +1,555 @@
+"""Design space, exact screening and the lexicographic search for the least installed power.
+
+How the search is decomposed
+----------------------------
+For one pump, let it stay loaded and spill what the store cannot take.  The deficit below a
+full store, ``D_t``, then follows Lindley's recursion and does not depend on the bank
+(:func:`optimiser.schedule.deficit_from_full`).  For a bank of gas volume ``V0``, precharge
+``p0`` and unload pressure ``p_max``, the store must stay between ``V0·l_t`` (the oil the
+required pressure needs, at the coldest temperature) and ``V0·u`` (the oil at the unload
+pressure, at the hottest temperature), so the pump and bank work together exactly when
+
+.. math::
+    V_0 \\ge \\max_t \\frac{D_t}{u - l_t}
+
+Always loaded is a schedule that keeps every dwell and start limit, and it draws the least
+from the bank at every step, so this screen is exact for feasibility: a pair passes it if and
+only if some schedule works.  Everything nonlinear (real-gas nitrogen, temperature, the
+precharge rules of each accumulator type) is inside ``l_t`` and ``u``, precomputed per
+precharge on a grid.
+
+The objective is lexicographic: (1) installed motor power, (2) capital cost from catalogue
+prices, (3) energy per cycle.  Levels 1 and 2 are settled by exhaustive enumeration of the
+catalogue on the precharge grid with this exact screen; level 3, the schedule under dwell and
+start limits, by the Pyomo model of :mod:`optimiser.model`, solved by HiGHS, with levels 1
+and 2 held at their optimum.
+"""
+
+from __future__ import annotations
+
+import math
+import time
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import numpy as np
+
+from optimiser import accumulator as acc
+from optimiser import gas
+from optimiser.catalogue import AccumulatorOption, Catalogue, MotorOption, PumpOption
+from optimiser.cycle import DutyCycle
+from optimiser.errors import SettingsError
+from optimiser.schedule import deficit_from_full
+from optimiser.settings import DesignSettings
+
+__all__ = [
+    "Candidate",
+    "Problem",
+    "ScreenResult",
+    "bank_bounds",
+    "make_problem",
+    "resolve_process",
+    "screen",
+]
+
+
+@dataclass(frozen=True)
+class Problem:
+    """A cycle prepared for the search (SI).
+
+    Attributes
+    ----------
+    dt : float
+        Step length, [s].
+    demand : numpy.ndarray
+        Demand per step, [m³/s].
+    p_step : numpy.ndarray
+        Required pressure of each step plus line loss and any extra margin, absolute, [Pa].
+    p_end : numpy.ndarray
+        Pressure the store must hold at the end of each step: the larger of the requirements of
+        the step and of the next one (the store must meet a step's requirement at its start
+        and its end), absolute, [Pa].
+    process : gas.Process
+        Quasi-static gas process.
+    process_note : str
+        How the process was chosen.
+    settings : DesignSettings
+        The settings.
+    """
+
+    dt: float
+    demand: np.ndarray
+    p_step: np.ndarray
+    p_end: np.ndarray
+    process: gas.Process
+    process_note: str
+    settings: DesignSettings
+
+    @property
+    def n(self) -> int:
+        """Number of steps, [-]."""
+        return int(self.demand.size)
+
+    @property
+    def cycle_time(self) -> float:
+        """Cycle duration, [s]."""
+        return self.n * self.dt
+
+    @property
+    def temperatures(self) -> tuple[float, float]:
+        """Coldest and hottest operating temperature, [K]."""
+        return (self.settings.t_min, self.settings.t_max)
+
+
+def _discharge_time(demand: np.ndarray, dt: float) -> float:
+    """Longest stretch in which the demand is above its mean, [s] (the bank's discharge)."""
+    above = demand > demand.mean() * (1 + 1e-9)
+    if not above.any():
+        return demand.size * dt
+    if above.all():
+        return demand.size * dt
+    k = int(np.flatnonzero(~above)[0])
+    r = np.roll(above, -k)
+    best = run = 0
+    for a in r:
+        run = run + 1 if a else 0
+        best = max(best, run)
+    return best * dt
+
+
+def resolve_process(demand: np.ndarray, dt: float, settings: DesignSettings):
+    """Choose the quasi-static gas process.
+
+    ``"auto"`` integrates the thermal time-constant model (Otis & Pourmovahed) over the
+    cycle's longest discharge and uses the effective polytropic index it gives.
+
+    Parameters
+    ----------
+    demand : numpy.ndarray
+        Demand per step, [m³/s].
+    dt : float
+        Step length, [s].
+    settings : DesignSettings
+        Settings (process, time constant, gas model).
+
+    Returns
+    -------
+    (gas.Process, str)
+        The process and a sentence saying how it was chosen.
+    """
+    if settings.process != "auto":
+        try:
+            proc = gas.parse_process(settings.process)
+        except Exception as exc:
+            raise SettingsError(f"design settings: process: {exc}") from None
+        return proc, f"{proc.kind} (n = {proc.n:.3g}) as set"
+    from optimiser import thermal
+
+    t_d = _discharge_time(demand, dt)
+    n_eff = float(
+        thermal.effective_polytropic_index(t_d, settings.time_constant, 1.5, model="ideal")
+    )
+    n_eff = min(max(n_eff, 1.0), 1.4)
+    proc = gas.Process("polytropic", n_eff)
+    note = (
+        f"polytropic n = {n_eff:.3f}: thermal time-constant model (τ = "
+        f"{settings.time_constant:g} s) over the longest discharge of {t_d:.3g} s"
+    )
+    return proc, note
+
+
+def make_problem(
+    cycle: DutyCycle, settings: DesignSettings, extra_pressure: np.ndarray | float = 0.0
+) -> Problem:
+    """Prepare a cycle for the search.
+
+    Parameters
+    ----------
+    cycle : DutyCycle
+        The duty cycle; it must carry a required pressure.
+    settings : DesignSettings
+        Design settings.
+    extra_pressure : float or numpy.ndarray
+        Extra pressure added to the requirement of every step (used when the verification
+        tightens the bounds), [Pa].
+
+    Returns
+    -------
+    Problem
+    """
+    if cycle.pressure is None:
+        raise SettingsError(
+            f"{cycle.source}: the cycle has no pressure column; give the minimum working "
+            "pressure as an option (e.g. --min-pressure 150bar)"
+        )
+    p_step = np.asarray(cycle.pressure, float) + settings.line_loss + extra_pressure
+    p_end = np.maximum(p_step, np.roll(p_step, -1))
+    proc, note = resolve_process(cycle.flow, cycle.dt, settings)
+    return Problem(
+        dt=float(cycle.dt),
+        demand=np.asarray(cycle.flow, float),
+        p_step=p_step,
+        p_end=p_end,
+        process=proc,
+        process_note=note,
+        settings=settings,
+    )
+
+
+def bank_bounds(
+    problem: Problem,
+    acc_type: str,
+    p0: np.ndarray,
+    p_allowed: float,
+    p_levels: np.ndarray,
+    rules,
+    temperatures: tuple[float, ...] | None = None,
+) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Oil fractions of a bank for a grid of precharges, at each temperature.
+
+    At temperature ``T`` the precharge, stated at 20 °C, has become ``p0(T)`` (isochoric);
+    the store must hold at least the oil that gives each required pressure and at least the
+    oil the type's precharge rule asks for (the working pressure must stay above the
+    precharge by the type's margin), and at most the oil at the unload pressure.
+
+    Parameters
+    ----------
+    problem : Problem
+        The prepared cycle.
+    acc_type : str
+        Accumulator type.
+    p0 : numpy.ndarray
+        Precharges at 20 °C, absolute, shape (P,), [Pa].
+    p_allowed : float
+        Highest unload pressure the pump, motor, relief and shell allow, absolute, [Pa].
+    p_levels : numpy.ndarray
+        Distinct pressures the store must hold, absolute, shape (K,), [Pa].
+    rules : TypeRules
+        Rules of the accumulator type.
+    temperatures : tuple of float, optional
+        Temperatures, [K]; default the coldest and hottest operating temperature.
+
+    Returns
+    -------
+    (lower, upper, p_max)
+        ``lower`` (T, P, K): least oil fraction for each level; ``upper`` (T, P): most oil
+        fraction at the unload pressure; ``p_max`` (P,): unload pressure after the type's own
+        limits (the pressure ratio counts at the coldest temperature, where the precharge is
+        lowest), [Pa].  Combinations the type rules out have ``upper = -inf``.
+    """
+    s = problem.settings
+    model = s.gas_model
+    proc = problem.process
+    temps = temperatures or problem.temperatures
+    p0 = np.asarray(p0, float)
+    p0_cold = gas.precharge_at(p0, s.t_min, model)
+    p_type = acc.max_pressure_for_precharge(acc_type, p0_cold, rules)
+    p_max = np.minimum(p_allowed, p_type)
+    ok = (p_max >= p_levels.max() - 1e-6) & (p_max > p0_cold)
+    lower = np.empty((len(temps), p0.size, p_levels.size))
+    upper = np.empty((len(temps), p0.size))
+    for i, t_k in enumerate(temps):
+        p0_t = gas.precharge_at(p0, t_k, model)
+        floor = acc.min_working_pressure_for_precharge(acc_type, p0_t, rules)
+        need = np.maximum(p_levels[None, :], np.asarray(floor)[:, None])
+        lower[i] = gas.oil_fraction(need, p0[:, None], t_k, proc, model)
+        upper[i] = np.where(ok, gas.oil_fraction(p_max, p0, t_k, proc, model), -np.inf)
+    return lower, upper, p_max
+
+
+@dataclass(frozen=True)
+class Candidate:
+    """One component combination that meets the cycle (levels 1 and 2 of the objective).
+
+    Attributes
+    ----------
+    pump, motor : PumpOption, MotorOption
+        Catalogue rows.
+    option : AccumulatorOption | None
+        Accumulator row (None: pump only).
+    count : int
+        Accumulators in the bank, [-].
+    precharges : numpy.ndarray
+        Precharges at 20 °C at which this count suffices, absolute, [Pa].
+    p_max : numpy.ndarray
+        Unload pressure for each of those precharges, absolute, [Pa].
+    capex : float
+        Price of bank + pump + motor, [currency].
+    """
+
+    pump: PumpOption
+    motor: MotorOption
+    option: AccumulatorOption | None
+    count: int
+    precharges: np.ndarray
+    p_max: np.ndarray
+    capex: float
+
+    @property
+    def installed_power(self) -> float:
+        """Rated motor power, [W]."""
+        return self.motor.rated_power
+
+
+@dataclass(frozen=True)
+class ScreenResult:
+    """Outcome of the exact screen.
+
+    Attributes
+    ----------
+    candidates : tuple[Candidate, ...]
+        Every combination at the least installed power and the least capex (ties).
+    installed_power : float
+        Least installed motor power, [W] (nan if none).
+    capex : float
+        Least capex at that power, [currency].
+    evaluated : int
+        Combinations screened, [-].
+    reason : str | None
+        Binding limit when nothing meets the cycle.
+    elapsed : float
+        Wall-clock time, [s].
+    """
+
+    candidates: tuple[Candidate, ...]
+    installed_power: float
+    capex: float
+    evaluated: int
+    reason: str | None
+    elapsed: float
+
+
+def pump_unload_limit(pump: PumpOption, motor: MotorOption, s: DesignSettings) -> float:
+    """Highest unload pressure at which the motor covers the pump's shaft power, [Pa abs].
+
+    Shaft power :math:`P = Q_p\\,(p - p_{amb}) / \\eta_o`; the motor covers it when
+    :math:`P \\le P_m`.  The pump's own maximum pressure must also carry the relief setting.
+    """
+    by_motor = s.p_ambient + motor.rated_power * pump.overall_efficiency / pump.flow
+    by_pump = s.max_unload_for_relief(pump.max_pressure)
+    return min(by_motor, by_pump)
+
+
+def _precharge_grid(s: DesignSettings, p_hi: float) -> np.ndarray:
+    """Precharges at 20 °C from 2 bar gauge to just below ``p_hi``, absolute, [Pa]."""
+    lo = s.p_ambient + 2e5
+    if p_hi <= lo:
+        return np.empty(0)
+    return np.arange(lo, p_hi, s.precharge_step)
+
+
+def screen(
+    problem: Problem,
+    catalogue: Catalogue,
+    *,
+    report: Callable[[float, str], None] | None = None,
+) -> ScreenResult:
+    """Exhaustive exact screen for levels 1 and 2 (least installed power, then least capex).
+
+    Parameters
+    ----------
+    problem : Problem
+        The prepared cycle.
+    catalogue : Catalogue
+        Components to choose from.
+    report : callable, optional
+        ``report(fraction_done, label)`` for progress.
+
+    Returns
+    -------
+    ScreenResult
+    """
+    t0 = time.perf_counter()
+    s = problem.settings
+    dt = problem.dt
+    demand = problem.demand
+    p_need_max = float(problem.p_end.max())
+    levels, inverse = np.unique(problem.p_end, return_inverse=True)
+    peak = float(demand.max())
+    float(demand.mean())
+
+    motors = sorted(catalogue.motors, key=lambda m: (m.rated_power, m.price))
+    pumps = sorted(catalogue.pumps, key=lambda p: (p.flow, p.price))
+    options = [o for o in catalogue.accumulators if o.type in s.types]
+    rules = {t: acc.rules_for(t, (catalogue.limits or {}).get(t)) for t in s.types}
+    evaluated = 0
+
+    # Deficits depend on the pump only.
+    deficit_max: dict[int, np.ndarray | None] = {}
+    for j, pump in enumerate(pumps):
+        d = deficit_from_full((pump.flow - demand) * dt)
+        if d is None:
+            deficit_max[j] = None
+            continue
+        dm = np.zeros(levels.size)
+        np.maximum.at(dm, inverse, d)
+        deficit_max[j] = dm
+
+    bounds_cache: dict[tuple, tuple] = {}
+
+    def bank_counts(j: int, pump: PumpOption, p_allowed: float, option: AccumulatorOption):
+        """Least count per precharge for one pump and row (inf where impossible)."""
+        dm = deficit_max[j]
+        key = (option.type, round(p_allowed, -2))
+        if key not in bounds_cache:
+            grid = _precharge_grid(s, p_allowed)
+            if grid.size:
+                lo, up, pm = bank_bounds(
+                    problem, option.type, grid, p_allowed, levels, rules[option.type]
+                )
+            else:
+                lo, up, pm = np.empty((0, levels.size)), np.empty(0), np.empty(0)
+            bounds_cache[key] = (grid, lo, up, pm)
+        grid, lo, up, pm = bounds_cache[key]
+        if grid.size == 0:
+            return grid, np.empty(0), pm
+        vu = option.nominal_volume
+        cap = vu * up  # (T, P), m³ per unit
+        if option.swept_volume:
+            cap = np.minimum(cap, option.swept_volume)
+        room = cap[:, :, None] - vu * lo  # (T, P, K), m³ per unit
+        with np.errstate(divide="ignore", invalid="ignore"):
+            need = np.where(room > 0, dm / room, np.inf)
+        # A level with no deficit only needs room ≥ 0 (the store may sit at its top).
+        need = np.where((dm <= 0) & (room >= -1e-12 * vu), 0.0, need)
+        n_store = np.ceil(np.max(need, axis=(0, 2)) - 1e-9)
+        n_store[~np.all(np.isfinite(up), axis=0)] = np.inf
+        q_unit = acc.unit_flow_limit(
+            option.type, option.nominal_volume, option.bore, option.max_flow, rules[option.type]
+        )
+        n_rate = math.ceil(max(peak - pump.flow, 0.0) / q_unit - 1e-9) if q_unit > 0 else math.inf
+        n = np.maximum(np.maximum(n_store, n_rate), 1)
+        return grid, n, pm
+
+    feasible: list[Candidate] = []
+    best_power = math.nan
+    closest_reason: list[str] = []
+    motor_powers = sorted({m.rated_power for m in motors})
+    for level_no, power in enumerate(motor_powers):
+        if report:
+            report(level_no / max(len(motor_powers), 1), f"motor {power / 1e3:g} kW")
+        level_motors = [m for m in motors if m.rated_power == power]
+        found: list[Candidate] = []
+        for j, pump in enumerate(pumps):
+            if deficit_max[j] is None:
+                continue
+            for motor in level_motors:
+                p_allowed = pump_unload_limit(pump, motor, s)
+                if p_allowed < p_need_max:
+                    continue
+                # Pump only: loaded all the time against the relief valve, so the motor must
+                # cover the pump at the relief setting.
+                if s.allow_pump_only and pump.flow >= peak * (1 - 1e-12):
+                    relief = s.relief_setting(p_need_max)
+                    shaft = pump.flow * (relief - s.p_ambient) / pump.overall_efficiency
+                    if shaft <= motor.rated_power and relief <= pump.max_pressure:
+                        found.append(
+                            Candidate(
+                                pump,
+                                motor,
+                                None,
+                                0,
+                                np.empty(0),
+                                np.array([p_need_max]),
+                                pump.price + motor.price,
+                            )
+                        )
+                for option in options:
+                    evaluated += 1
+                    p_opt = min(p_allowed, s.max_unload_for_relief(option.max_pressure))
+                    if p_opt < p_need_max:
+                        continue
+                    grid, n, pm = bank_counts(j, pump, p_opt, option)
+                    if n.size == 0:
+                        continue
+                    n_best = float(np.min(n))
+                    if not math.isfinite(n_best) or n_best > s.max_count:
+                        continue
+                    sel = n == n_best
+                    found.append(
+                        Candidate(
+                            pump,
+                            motor,
+                            option,
+                            int(n_best),
+                            grid[sel],
+                            pm[sel],
+                            int(n_best) * option.price + pump.price + motor.price,
+                        )
+                    )
+        if found:
+            best_power = power
+            feasible = found
+            break
+    elapsed = time.perf_counter() - t0
+    if not feasible:
+        reason = infeasibility_reason(problem, catalogue, deficit_max, pumps)
+        return ScreenResult((), math.nan, math.nan, evaluated, reason, elapsed)
+    best_capex = min(c.capex for c in feasible)
+    ties = tuple(c for c in feasible if c.capex <= best_capex * (1 + 1e-12) + 1e-9)
+    del closest_reason
+    return ScreenResult(ties, best_power, best_capex, evaluated, None, elapsed)
+
+
+def infeasibility_reason(problem: Problem, catalogue: Catalogue, deficit_max, pumps) -> str:
+    """Name the limit that rules out every design, in one sentence with numbers."""
+    s = problem.settings
+    demand = problem.demand
+    p_need_max = float(problem.p_end.max())
+    bar = 1e5
+    g = (p_need_max - s.p_ambient) / bar
+    relief_ok = [p for p in pumps if s.max_unload_for_relief(p.max_pressure) >= p_need_max]
+    if not relief_ok:
+        best = (max(p.max_pressure for p in pumps) - s.p_ambient) / bar
+        return (
+            f"required {g:.0f} bar (line loss included) with a relief setting above it exceeds "
+            f"every pump's maximum pressure in the catalogue (highest {best:.0f} bar)"
+        )
+    mean = float(demand.mean())
+    if all(deficit_max[j] is None for j in range(len(pumps))):
+        q = max(p.flow for p in pumps)
+        return (
+            f"mean demand {mean * 6e4:.1f} L/min exceeds the largest pump's delivery "
+            f"{q * 6e4:.1f} L/min"
+        )
+    big_motor = max(catalogue.motors, key=lambda m: m.rated_power)
+    if not any(
+        pump_unload_limit(p, big_motor, s) >= p_need_max and deficit_max[j] is not None
+        for j, p in enumerate(pumps)
+    ):
+        return (
+            f"no motor in the catalogue (largest {big_motor.rated_power / 1e3:g} kW) drives a pump "
+            f"that covers the mean demand {mean * 6e4:.1f} L/min at {g:.0f} bar"
+        )
+    options = [o for o in catalogue.accumulators if o.type in s.types]
+    if not options:
+        return (
+            f"peak demand {demand.max() * 6e4:.1f} L/min needs storage, but the catalogue has no "
+            f"accumulator of the allowed types {list(s.types)}"
+        )
+    ps_ok = [o for o in options if s.max_unload_for_relief(o.max_pressure) >= p_need_max]
+    if not ps_ok:
+        best = max(o.max_pressure for o in options)
+        return (
+            f"required {g:.0f} bar with a relief setting above it exceeds every accumulator's "
+            f"maximum allowable pressure PS (highest {(best - s.p_ambient) / bar:.0f} bar)"
+        )
+    rules = {t: acc.rules_for(t, (catalogue.limits or {}).get(t)) for t in s.types}
+    fastest = max(
+        s.max_count
+        * acc.unit_flow_limit(o.type, o.nominal_volume, o.bore, o.max_flow, rules[o.type])
+        for o in ps_ok
+    )
+    qmax = max(p.flow for p in pumps)
+    if demand.max() - qmax > fastest:
+        return (
+            f"peak flow {demand.max() * 6e4:,.0f} L/min exceeds the largest pump "
+            f"({qmax * 6e4:,.0f} L/min) plus the fastest bank discharge in the catalogue "
+            f"({s.max_count} units, {fastest * 1e3:,.0f} L/s)"
+        )
+    return (
+        f"no bank of at most {s.max_count} accumulators stores enough oil between the required "
+        f"{g:.0f} bar and the highest unload pressure the pumps, motors, relief margin and "
+        "shells allow; allow more units per bank (--max-count), larger sizes or higher-pressure "
+        "components"
+    )
