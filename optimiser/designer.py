@@ -233,11 +233,10 @@ def design(
     problem = make_problem(cycle, s, extra_pressure)
     dt, demand = problem.dt, problem.demand
 
-    # Physical lower bound on installed power: mean hydraulic power over the best efficiencies.
+    # Physical lower bound on installed power: a motor's rating is its shaft output, so no
+    # supply installs less than the mean hydraulic power over the best pump efficiency.
     hyd = demand * (problem.p_step - s.p_ambient)
-    best_eta = max(p.overall_efficiency for p in catalogue.pumps) * max(
-        m.efficiency for m in catalogue.motors
-    )
+    best_eta = max(p.overall_efficiency for p in catalogue.pumps)
     lb_power = float(hyd.mean()) / best_eta
     baselines = (
         fixed_baseline(demand, problem.p_step, dt, catalogue, s),
@@ -470,23 +469,27 @@ def _assemble(problem: Problem, fam: Family | None, cand: Candidate, u, oil, spi
         p_sys = float(problem.p_end.max())
         relief = s.relief_setting(p_sys)
         oil = np.zeros(n)
-        spill = qp - problem.demand
         p_cold = p_hot = np.full(n, relief)
         bank = None
         p_min, p_max = p_sys, relief
+        delivered = np.full(n, qp)
+        relief_flow = qp - problem.demand
     else:
         p_cold, p_hot = _pressures(problem, fam, oil)
         bank = Bank(cand.option, cand.count, fam.precharge)
         p_min = float(p_cold.min())
         p_max = float(max(p_hot.max(), problem.p_end.max()))
         relief = s.relief_setting(p_max)
+        # Flow returned to tank within a step is flow the pump never put into the line.
+        delivered = qp * np.asarray(u, float) - spill
+        relief_flow = np.zeros(n)
     schedule = pd.DataFrame(
         {
             "demand [m³/s]": problem.demand,
             "required_pressure [Pa]": problem.p_step,
             "pump_loaded [-]": np.asarray(u, int),
-            "pump_flow [m³/s]": qp * np.asarray(u, float),
-            "spill [m³/s]": spill,
+            "pump_flow [m³/s]": delivered,
+            "spill [m³/s]": relief_flow,
             "accumulator_oil [m³]": oil,
             "pressure_cold [Pa]": p_cold,
             "pressure_hot [Pa]": p_hot,

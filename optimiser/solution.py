@@ -142,9 +142,13 @@ class Design:
         Gas process of the quasi-static model, e.g. ``"polytropic:1.21"``.
     schedule : pandas.DataFrame
         Indexed by ``time [s]`` (step start): ``demand [m³/s]``, ``required_pressure [Pa]``
-        (absolute, line loss included), ``pump_loaded [-]``, ``pump_flow [m³/s]``,
-        ``spill [m³/s]``, ``accumulator_oil [m³]`` (at the step end), ``pressure_cold [Pa]`` and
-        ``pressure_hot [Pa]`` (quasi-static, at the step end).
+        (absolute, line loss included), ``pump_loaded [-]`` (loaded for at least part of the
+        step), ``pump_flow [m³/s]`` (mean flow the pump puts into the pressure line over the
+        step: less than its full flow when the unloading valve opens part-way through it),
+        ``spill [m³/s]`` (flow over the relief valve: pump-only supplies),
+        ``accumulator_oil [m³]`` (at the step end), ``pressure_cold [Pa]`` and
+        ``pressure_hot [Pa]`` (quasi-static, at the step end).  Balance per step:
+        oil change = (pump_flow − spill − demand)·Δt.
     energy_per_cycle : float
         Electrical energy over one cycle from the schedule model, [J].
     mip_gap : float
@@ -155,8 +159,9 @@ class Design:
         Lexicographic objective values: ``installed_power [W]``, ``capex``,
         ``energy_per_cycle [J]``.
     lower_bound_power : float
-        Mean hydraulic power of the cycle over the best pump efficiency and the best motor
-        efficiency in the catalogue, [W]: no supply can install less.
+        Mean hydraulic power of the cycle (line loss included) over the best pump overall
+        efficiency in the catalogue, [W]: a motor's rating is its shaft output, so no supply
+        can install less.
     """
 
     status: str

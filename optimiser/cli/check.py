@@ -1,0 +1,119 @@
+"""``stowflow check CYCLE.csv``: read a duty cycle and print its summary.
+
+The first thing to run on a new cycle: it validates the file (one clear line per fault,
+exit code 2) and prints the numbers that show whether an accumulator pays off - peak against
+mean demand, the volume per cycle, the pressures and the hydraulic power.
+"""
+
+from __future__ import annotations
+
+import argparse
+import textwrap
+
+from optimiser.cli._output import print_json, print_table
+from optimiser.cycle import DEFAULT_MAX_STEPS, load_cycle, summarize
+from optimiser.errors import UnitsError
+from optimiser.units import parse_quantity
+
+__all__ = ["register", "run"]
+
+#: Version tag of the ``--json`` output.
+SCHEMA = "stowflow.check/1"
+
+_EPILOG = """examples:
+  stowflow check duty_cycles/forming_press.csv
+  stowflow check my_cycle.csv --min-pressure 100bar --step 10ms
+  stowflow check my_cycle.csv --json > summary.json
+
+The CSV has the unit in brackets in each header: a phase table
+'duration [s], flow [L/min], pressure [bar], label' or a sample table
+'time [s], flow [L/min], pressure [bar], label'. Pressures are gauge."""
+
+# (key of CycleSummary.as_dict(), shown name, unit, format)
+_ROWS = (
+    ("form", "form", "", "{}"),
+    ("duration_s", "cycle duration", "s", "{:.6g}"),
+    ("steps", "time steps", "-", "{}"),
+    ("step_s", "step", "s", "{:.6g}"),
+    ("grid", "grid", "", "{}"),
+    ("peak_flow_lpm", "peak demand (input)", "L/min", "{:.4g}"),
+    ("peak_step_flow_lpm", "peak demand (largest step)", "L/min", "{:.4g}"),
+    ("mean_flow_lpm", "mean demand", "L/min", "{:.4g}"),
+    ("rms_flow_lpm", "RMS demand", "L/min", "{:.4g}"),
+    ("mean_to_peak_ratio", "mean / peak demand", "-", "{:.3f}"),
+    ("volume_per_cycle_l", "volume per cycle", "L", "{:.4g}"),
+    ("peak_required_pressure_bar", "peak required pressure (gauge)", "bar", "{:.4g}"),
+    ("min_required_pressure_bar", "lowest required pressure (gauge)", "bar", "{:.4g}"),
+    ("peak_hydraulic_power_kw", "peak hydraulic power", "kW", "{:.4g}"),
+    ("mean_hydraulic_power_kw", "mean hydraulic power", "kW", "{:.4g}"),
+    ("pump_only_flow_lpm", "pump-only supply: flow", "L/min", "{:.4g}"),
+    ("pump_only_hydraulic_power_kw", "pump-only supply: hydraulic power", "kW", "{:.4g}"),
+)
+
+
+def register(subparsers, common: argparse.ArgumentParser) -> None:
+    """Add the ``check`` command to the CLI parser."""
+    parser = subparsers.add_parser(
+        "check",
+        parents=[common],
+        help="validate a duty-cycle CSV and print its summary",
+        description=textwrap.fill(
+            "Read a duty-cycle CSV (phase or sample table, units in the header, pressures "
+            "gauge), put it on a uniform time grid and print peak and mean demand, volume per "
+            "cycle, required pressures and hydraulic power. Bad input gives one line naming "
+            "the file, line and column, and exit code 2.",
+            width=78,
+        ),
+        epilog=_EPILOG,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    parser.add_argument("cycle", metavar="CYCLE.csv", help="duty-cycle CSV file")
+    parser.add_argument("--json", action="store_true", help="print the summary as JSON")
+    parser.add_argument(
+        "--step",
+        metavar="TIME",
+        help="time step instead of the automatic one, e.g. 10ms; must divide the cycle",
+    )
+    parser.add_argument(
+        "--min-pressure",
+        metavar="PRESSURE",
+        help="minimum working pressure (gauge), e.g. 100bar; needed when the CSV has no "
+        "pressure column, otherwise each step requires at least this",
+    )
+    parser.add_argument(
+        "--max-steps",
+        type=int,
+        default=DEFAULT_MAX_STEPS,
+        metavar="N",
+        help=f"largest number of time steps (default {DEFAULT_MAX_STEPS})",
+    )
+    parser.set_defaults(func=run)
+
+
+def run(args: argparse.Namespace) -> int:
+    """Read the cycle, print its summary; return the exit code (0)."""
+    step = None if args.step is None else _option("--step", args.step, "time")
+    min_pressure = None
+    if args.min_pressure is not None:  # gauge, as the user means it
+        min_pressure = _option("--min-pressure", args.min_pressure, "pressure")
+    cycle = load_cycle(args.cycle, step=step, min_pressure=min_pressure, max_steps=args.max_steps)
+    summary = summarize(cycle).as_dict()
+    if args.json:
+        print_json({"schema": SCHEMA, **summary})
+        return 0
+    rows = []
+    for key, shown, unit, fmt in _ROWS:
+        value = summary[key]
+        rows.append((shown, "n/a" if value is None else fmt.format(value), unit))
+    print_table(rows, title=f"duty cycle '{summary['name']}' ({summary['source']})")
+    for note in summary["notes"]:
+        print(f"note: {note}")
+    return 0
+
+
+def _option(flag: str, text: str, dimension: str) -> float:
+    """Parse an option with a unit to SI, naming the option in the error."""
+    try:
+        return parse_quantity(text, dimension)
+    except UnitsError as exc:
+        raise UnitsError(f"{flag}: {exc}") from None
