@@ -9,20 +9,11 @@ from __future__ import annotations
 import math
 from dataclasses import asdict, dataclass, field, replace
 
+from optimiser.catalogue import ACCUMULATOR_TYPES
 from optimiser.errors import SettingsError
 from optimiser.units import P_AMBIENT, celsius_to_kelvin
 
 __all__ = ["ACCUMULATOR_TYPES", "DEFAULT_SETTINGS", "DesignSettings"]
-
-#: Accumulator types the search knows (catalogue ``type`` values).
-ACCUMULATOR_TYPES: tuple[str, ...] = (
-    "gas-over-oil",
-    "bladder",
-    "diaphragm",
-    "piston",
-    "piston-bottles",
-)
-
 
 @dataclass(frozen=True)
 class DesignSettings:
@@ -117,6 +108,16 @@ class DesignSettings:
             raise bad("operating temperatures must lie between −73 °C and 177 °C")
         if self.gas_model not in ("real", "ideal"):
             raise bad(f"gas model '{self.gas_model}' is not 'real' or 'ideal'")
+        if self.process != "auto":
+            from optimiser.gas import parse_process
+
+            try:
+                parse_process(self.process)
+            except Exception as exc:  # noqa: BLE001 - any parse failure is a bad setting
+                raise bad(
+                    f"process '{self.process}' is not auto, isothermal, adiabatic or "
+                    f"polytropic:N ({exc})"
+                ) from None
         for name in (
             "line_loss",
             "relief_margin",

@@ -4,6 +4,8 @@ The parser is built from option groups so that further duties can add their own 
 (:func:`add_storage_options` holds the energy-storage inputs; :func:`add_condition_options`
 the gas, process and temperature; :func:`add_output_options` PS and JSON).  :func:`run` turns
 the arguments into SI values (:func:`storage_inputs`), sizes (:func:`size_storage`) and prints.
+``--duty reserve|shock|thermal`` switches to the duties of :mod:`optimiser.duties`; their option
+groups and output live in :mod:`optimiser.cli._size_duties`.
 """
 
 from __future__ import annotations
@@ -12,6 +14,7 @@ import argparse
 import re
 
 from optimiser.cli._output import print_json, print_table
+from optimiser.cli._size_duties import add_duty_options, check_duty_options, run_duty
 from optimiser.errors import SettingsError, UnitsError
 from optimiser.glossary import term
 from optimiser.units import (
@@ -40,8 +43,19 @@ example:
                 --max-pressure 3000psi --absolute --process isothermal --gas ideal \\
                 --temperature 20
 
+  stowflow size --duty reserve --motion "close guard,1.2L,120bar,2s" \\
+                --motion "retract press,3L,100bar,4s" --charge-pressure 180bar \\
+                --leakage 0.05L/min --standby 10min --temperature 10..50
+  stowflow size --duty reserve --motions duty_cycles/motions/motions_demo.csv \\
+                --charge-pressure 180bar --precharge 84bar
+  stowflow size --duty shock --pipe-length 20m --pipe-diameter 25mm --wall 3mm \\
+                --velocity 4m/s --pressure 150bar --peak-limit 180bar --temperature 10..50
+  stowflow size --duty thermal --oil-volume 20L --temperature 20..60 \\
+                --start-pressure 50bar --pressure-limit 200bar --type diaphragm
+
 Pressures are gauge unless --absolute is given; PS is always gauge (as on the nameplate).
 The precharge is stated at 20 °C. Type limits are common practice, no published source.
+Oil and steel defaults are from memory (see optimiser/duties/properties.py).
 """
 
 
@@ -54,7 +68,10 @@ def register(subparsers, common: argparse.ArgumentParser) -> argparse.ArgumentPa
         description=(
             "Gas volume (nominal size) that exchanges an oil volume between two working "
             "pressures at the worst temperature of the range, with the precharge at 20 °C, the "
-            "oil stored at each temperature and the accumulator types that meet their limits."
+            "oil stored at each temperature and the accumulator types that meet their limits. "
+            "With --duty: an emergency reserve for safe-state motions after a pump failure "
+            "(reserve), damping a valve-closure surge (shock), or the expansion of a "
+            "blocked-in oil volume (thermal)."
         ),
         epilog=_EXAMPLE,
         formatter_class=argparse.RawDescriptionHelpFormatter,
@@ -62,32 +79,31 @@ def register(subparsers, common: argparse.ArgumentParser) -> argparse.ArgumentPa
     add_storage_options(parser)
     add_condition_options(parser)
     add_output_options(parser)
+    add_duty_options(parser)
     parser.set_defaults(func=run)
     return parser
 
 
 def add_storage_options(parser: argparse.ArgumentParser) -> None:
     """Options of the energy-storage duty: oil volume and pressure window."""
-    g = parser.add_argument_group("energy storage")
+    g = parser.add_argument_group("energy storage (--duty storage, the default)")
     g.add_argument(
         "--volume",
-        required=True,
         metavar="VOL",
-        help="oil volume to exchange, with unit (5L, 2827in3, 1.3gal)",
+        help="oil volume to exchange, with unit (5L, 2827in3, 1.3gal); required",
     )
     g.add_argument(
         "--min-pressure",
-        required=True,
         metavar="P",
-        help="minimum working pressure p1, with unit (100bar, 1800psi)",
+        help="minimum working pressure p1, with unit (100bar, 1800psi); required",
     )
     g.add_argument(
-        "--max-pressure", required=True, metavar="P", help="maximum working pressure p2, with unit"
+        "--max-pressure", metavar="P", help="maximum working pressure p2, with unit; required"
     )
     g.add_argument(
         "--precharge",
         metavar="P",
-        help="nitrogen precharge p0 at 20 °C; default: each type's rule "
+        help="nitrogen precharge p0 at 20 °C (every duty); default: each type's rule "
         "(0.9·p1 for bladder/diaphragm, p1 − 5 bar for piston types) at the "
         "hottest temperature",
     )
@@ -101,9 +117,8 @@ def add_condition_options(parser: argparse.ArgumentParser) -> None:
     g = parser.add_argument_group("gas")
     g.add_argument(
         "--process",
-        default="adiabatic",
         metavar="PROC",
-        help="isothermal | adiabatic | polytropic:N (default adiabatic, the "
+        help="storage, reserve: isothermal | adiabatic | polytropic:N (default adiabatic, the "
         "conservative choice for fast strokes)",
     )
     g.add_argument(
@@ -116,7 +131,8 @@ def add_condition_options(parser: argparse.ArgumentParser) -> None:
         "--temperature",
         default="20",
         metavar="T[..T]",
-        help="operating temperature range in °C, e.g. 10..50 or -20..60 (default 20)",
+        help="operating temperature range in °C, e.g. 10..50 or -20..60 (default 20); "
+        "thermal: heating from T1 to T2",
     )
 
 
@@ -177,7 +193,7 @@ def storage_inputs(args: argparse.Namespace) -> dict:
         "p_min": pressure(args.min_pressure, "--min-pressure"),
         "p_max": pressure(args.max_pressure, "--max-pressure"),
         "precharge": None if args.precharge is None else pressure(args.precharge, "--precharge"),
-        "process": args.process,
+        "process": args.process or "adiabatic",
         "model": args.gas,
         "T_min": t_min,
         "T_max": t_max,
@@ -196,6 +212,9 @@ def size_storage(args: argparse.Namespace):
 
 def run(args: argparse.Namespace) -> int:
     """Size, then print a table (or JSON with ``--json``); return the exit code."""
+    check_duty_options(args)
+    if args.duty != "storage":
+        return run_duty(args)
     result = size_storage(args)
     data = result.as_dict()
     if args.json:

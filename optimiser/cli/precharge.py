@@ -1,0 +1,159 @@
+"""``stowflow precharge``: the precharge a gauge should read at each measured temperature.
+
+The precharge is stated at 20 °C; filled or checked at another temperature, the gauge reads
+the pressure on the gas's isochore (:func:`optimiser.fill.precharge_table`).  The table is for
+checks on site: read the temperature of the accumulator shell, then compare.
+"""
+
+from __future__ import annotations
+
+import argparse
+import re
+
+import numpy as np
+
+from optimiser.cli._output import print_json, print_table
+from optimiser.errors import SettingsError, UnitsError
+from optimiser.units import celsius_to_kelvin, gauge_to_abs, parse_quantity
+
+__all__ = [
+    "MAX_ROWS",
+    "PRECHARGE_NOTES",
+    "allow_negative_ranges",
+    "register",
+    "run",
+    "temperatures",
+]
+
+#: Largest table the command prints, [-].
+MAX_ROWS = 1000
+
+#: What every precharge table says with it.
+PRECHARGE_NOTES: tuple[str, ...] = (
+    "Read the precharge with the oil side vented to zero pressure, after the gas has settled "
+    "at the measured temperature (not right after filling or running).",
+    "Nitrogen only, never air or oxygen; use a charging device with a regulator and "
+    "pressure-rated hoses; never fill from the oil side.",
+    "Design support only: a competent person checks the work against local codes and the "
+    "maker's instructions.",
+)
+
+_EXAMPLE = """\
+example:
+  stowflow precharge 90bar --temperature -10..50 --step 5
+  stowflow precharge 1300psi --temperature 0..40 --step 10 --gas ideal --json
+
+The precharge is gauge unless --absolute is given, stated at 20 °C.
+"""
+
+
+def allow_negative_ranges(parser: argparse.ArgumentParser) -> None:
+    """Let option values such as ``-10..50`` or ``-5`` through (a cold range in °C).
+
+    argparse reads a value that starts with '-' as an option unless it looks like a negative
+    number; this widens its (private) negative-number pattern to temperature ranges.  No
+    option of ours looks like a negative number, so nothing else changes.
+    """
+    if hasattr(parser, "_negative_number_matcher"):
+        parser._negative_number_matcher = re.compile(
+            r"^-\d+(?:\.\d*)?(?:\s*°?[cC])?(?:\.\.-?\d+(?:\.\d*)?(?:\s*°?[cC])?)?$"
+        )
+
+
+def register(subparsers, common: argparse.ArgumentParser) -> argparse.ArgumentParser:
+    """Add the ``precharge`` command to ``subparsers`` and return its parser."""
+    parser = subparsers.add_parser(
+        "precharge",
+        parents=[common],
+        help="precharge to read at each temperature, for checks on site",
+        description=(
+            "Table of the nitrogen precharge a gauge reads at each temperature when the "
+            "precharge stated at 20 °C is right (real-gas isochore, Span et al. 2000; ideal "
+            "gas p·T/293.15 K as an option)."
+        ),
+        epilog=_EXAMPLE,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    parser.add_argument("precharge", metavar="P", help="precharge at 20 °C, with unit (90bar)")
+    parser.add_argument(
+        "--temperature",
+        default="-10..50",
+        metavar="T..T",
+        help="temperature range in °C (default -10..50)",
+    )
+    parser.add_argument("--step", default="5", metavar="K", help="step in kelvin (= °C), default 5")
+    parser.add_argument("--gas", default="real", choices=("real", "ideal"), help="gas model")
+    parser.add_argument(
+        "--absolute", action="store_true", help="the precharge given is absolute (default gauge)"
+    )
+    parser.add_argument("--json", action="store_true", help="print the table as JSON")
+    allow_negative_ranges(parser)
+    parser.set_defaults(func=run)
+    return parser
+
+
+def temperatures(text: str, step_text: str) -> np.ndarray:
+    """``"-10..50"`` and ``"5"`` → the temperatures of the table, [K].
+
+    Parameters
+    ----------
+    text : str
+        Range in °C, ``LO..HI`` (or one value).
+    step_text : str
+        Step in kelvin, > 0.
+
+    Returns
+    -------
+    numpy.ndarray
+        From LO to HI (HI included when the step lands on it), [K].
+    """
+    from optimiser.cli.size import parse_temperature_range
+
+    lo, hi = parse_temperature_range(text)
+    try:
+        step = float(str(step_text).strip().removesuffix("K").removesuffix("°C").strip())
+    except ValueError:
+        raise SettingsError(f"--step '{step_text}' is not a number of kelvin") from None
+    if not (np.isfinite(step) and step > 0):
+        raise SettingsError(f"--step must be > 0 K; got {step_text}")
+    n = int(np.floor((hi - lo) / step + 1e-9)) + 1
+    if n > MAX_ROWS:
+        raise SettingsError(f"--step {step:g} K gives {n} rows; at most {MAX_ROWS}")
+    return lo + step * np.arange(n)
+
+
+def run(args: argparse.Namespace) -> int:
+    """Print the table (or JSON); return the exit code."""
+    from optimiser.fill import precharge_table
+
+    try:
+        p = parse_quantity(args.precharge, "pressure")
+    except UnitsError as exc:
+        raise UnitsError(f"precharge: {exc}") from None
+    p_abs = p if args.absolute else gauge_to_abs(p)
+    if not p_abs > gauge_to_abs(0.0):
+        raise SettingsError(f"the precharge must be above ambient; got {args.precharge}")
+    ts = temperatures(args.temperature, args.step)
+    table = precharge_table(p_abs, ts, args.gas)
+    p20 = float(precharge_table(p_abs, [celsius_to_kelvin(20.0)], args.gas).iloc[0, 1])
+    if args.json:
+        print_json(
+            {
+                "schema": "stowflow.precharge/1",
+                "gas_model": args.gas,
+                "precharge_bar_at_20c": p20,
+                "rows": table.to_dict(orient="records"),
+                "notes": list(PRECHARGE_NOTES),
+            }
+        )
+        return 0
+    rows = [[f"{v:.4g}" if i else f"{v:g}" for i, v in enumerate(r)] for r in table.to_numpy()]
+    print_table(
+        rows,
+        headers=("temperature [°C]", "gauge [bar]", "absolute [bar]"),
+        title=f"precharge {p20:.4g} bar gauge at 20 °C, {args.gas} gas: what to read",
+    )
+    print()
+    for note in PRECHARGE_NOTES:
+        print(note)
+    return 0
