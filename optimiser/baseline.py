@@ -1,5 +1,8 @@
 """Pump-only supplies from the same catalogue: the baselines an accumulator must beat.
 
+Both are sized for the peak flow with the same wear margin on the pump's flow as the design
+(``DesignSettings.flow_margin``).
+
 (a) **Fixed pump with relief.**  A fixed-displacement pump sized for the peak flow runs loaded
 all the time; whatever the machine does not take flows over the relief valve, set above the
 highest required pressure.  The motor covers the pump's shaft power at the relief setting.
@@ -64,8 +67,11 @@ def fixed_baseline(
     peak = float(demand.max())
     p_sys = float(p_required.max())
     relief = s.relief_setting(p_sys)
+    worn = 1.0 - s.flow_margin
     pumps = [
-        p for p in catalogue.pumps if p.flow >= peak * (1 - 1e-12) and p.max_pressure >= relief
+        p
+        for p in catalogue.pumps
+        if p.flow * worn >= peak * (1 - 1e-12) and p.max_pressure >= relief
     ]
     if not pumps:
         return Baseline(
@@ -126,7 +132,7 @@ def compensated_baseline(
         p
         for p in catalogue.pumps
         if getattr(p, "control", "fixed") == "pressure-compensated"
-        and p.flow >= peak * (1 - 1e-12)
+        and p.flow * (1.0 - s.flow_margin) >= peak * (1 - 1e-12)
         and p.max_pressure >= s.relief_setting(p_set)
     ]
     if not pumps:

@@ -33,7 +33,7 @@ from optimiser.schedule import (
 )
 from optimiser.search import Candidate, Problem, bank_bounds, make_problem, screen
 from optimiser.settings import DesignSettings
-from optimiser.solution import Bank, Design, SearchStats
+from optimiser.solution import Alternative, Bank, Design, SearchStats
 
 __all__ = ["Family", "design", "family_problem"]
 
@@ -392,6 +392,16 @@ def design(
         "capex": cand.capex,
         "energy_per_cycle [J]": energy,
     }
+    alternatives = tuple(
+        Alternative(c.pump, c.motor, c.option, c.count, c.capex) for c in sr.frontier
+    )
+    if fam is not None and not fam.robust:
+        t_mid = 0.5 * (s.t_min + s.t_max) - 273.15
+        notes.append(
+            f"one open-loop schedule cannot hold at both temperature ends with this bank; the "
+            f"schedule is planned at {t_mid:.0f} °C and the pressure switch keeps the window at "
+            "the extremes"
+        )
     return Design(
         status=status if status in ("optimal", "feasible") else "feasible",
         reason=None,
@@ -411,6 +421,8 @@ def design(
         baselines=baselines,
         stats=stats,
         notes=tuple(notes),
+        alternatives=alternatives,
+        robust_schedule=fam is None or fam.robust,
     )
 
 

@@ -42,7 +42,11 @@ from optimiser.errors import SettingsError
 from optimiser.schedule import deficit_from_full
 from optimiser.settings import DesignSettings
 
+#: Motor ratings above the least power scanned for the power–capex frontier.
+FRONTIER_LEVELS = 4
+
 __all__ = [
+    "FRONTIER_LEVELS",
     "Candidate",
     "Problem",
     "ScreenResult",
@@ -309,6 +313,10 @@ class ScreenResult:
         Binding limit when nothing meets the cycle.
     elapsed : float
         Wall-clock time, [s].
+    frontier : tuple[Candidate, ...]
+        The trade-off the lexicographic order hides: the cheapest combination at the least
+        power, then at each larger motor rating that buys a cheaper supply (at most
+        :data:`FRONTIER_LEVELS` steps, or up to a pump-only supply).
     """
 
     candidates: tuple[Candidate, ...]
@@ -317,6 +325,7 @@ class ScreenResult:
     evaluated: int
     reason: str | None
     elapsed: float
+    frontier: tuple[Candidate, ...] = ()
 
 
 def pump_unload_limit(pump: PumpOption, motor: MotorOption, s: DesignSettings) -> float:
@@ -376,8 +385,9 @@ def screen(
 
     # Deficits depend on the pump only.
     deficit_max: dict[int, np.ndarray | None] = {}
+    worn = 1.0 - s.flow_margin  # the design must hold with a worn pump
     for j, pump in enumerate(pumps):
-        d = deficit_from_full((pump.flow - demand) * dt)
+        d = deficit_from_full((pump.flow * worn - demand) * dt)
         if d is None:
             deficit_max[j] = None
             continue
@@ -417,29 +427,24 @@ def screen(
         q_unit = acc.unit_flow_limit(
             option.type, option.nominal_volume, option.bore, option.max_flow, rules[option.type]
         )
-        n_rate = math.ceil(max(peak - pump.flow, 0.0) / q_unit - 1e-9) if q_unit > 0 else math.inf
+        short = max(peak - pump.flow * worn, 0.0)
+        n_rate = math.ceil(short / q_unit - 1e-9) if q_unit > 0 else math.inf
         n = np.maximum(np.maximum(n_store, n_rate), 1)
         return grid, n, pm
 
-    feasible: list[Candidate] = []
-    best_power = math.nan
-    closest_reason: list[str] = []
-    motor_powers = sorted({m.rated_power for m in motors})
-    for level_no, power in enumerate(motor_powers):
-        if report:
-            report(level_no / max(len(motor_powers), 1), f"motor {power / 1e3:g} kW")
-        level_motors = [m for m in motors if m.rated_power == power]
+    def level_candidates(power: float) -> list[Candidate]:
+        nonlocal evaluated
         found: list[Candidate] = []
         for j, pump in enumerate(pumps):
             if deficit_max[j] is None:
                 continue
-            for motor in level_motors:
+            for motor in (m for m in motors if m.rated_power == power):
                 p_allowed = pump_unload_limit(pump, motor, s)
                 if p_allowed < p_need_max:
                     continue
                 # Pump only: loaded all the time against the relief valve, so the motor must
                 # cover the pump at the relief setting.
-                if s.allow_pump_only and pump.flow >= peak * (1 - 1e-12):
+                if s.allow_pump_only and pump.flow * worn >= peak * (1 - 1e-12):
                     relief = s.relief_setting(p_need_max)
                     shaft = pump.flow * (relief - s.p_ambient) / pump.overall_efficiency
                     if shaft <= motor.rated_power and relief <= pump.max_pressure:
@@ -466,20 +471,29 @@ def screen(
                     if not math.isfinite(n_best) or n_best > s.max_count:
                         continue
                     sel = n == n_best
+                    capex = int(n_best) * option.price + pump.price + motor.price
                     found.append(
-                        Candidate(
-                            pump,
-                            motor,
-                            option,
-                            int(n_best),
-                            grid[sel],
-                            pm[sel],
-                            int(n_best) * option.price + pump.price + motor.price,
-                        )
+                        Candidate(pump, motor, option, int(n_best), grid[sel], pm[sel], capex)
                     )
-        if found:
-            best_power = power
-            feasible = found
+        return found
+
+    feasible: list[Candidate] = []
+    best_power = math.nan
+    frontier: list[Candidate] = []
+    motor_powers = sorted({m.rated_power for m in motors})
+    for level_no, power in enumerate(motor_powers):
+        if report:
+            report(level_no / max(len(motor_powers), 1), f"motor {power / 1e3:g} kW")
+        found = level_candidates(power)
+        if not found:
+            continue
+        cheapest = min(found, key=lambda c: c.capex)
+        if not feasible:
+            best_power, feasible = power, found
+            frontier.append(cheapest)
+        elif cheapest.capex < frontier[-1].capex * (1 - 1e-9):
+            frontier.append(cheapest)  # more power buys a cheaper supply
+        if len(frontier) > FRONTIER_LEVELS or cheapest.option is None:
             break
     elapsed = time.perf_counter() - t0
     if not feasible:
@@ -487,8 +501,7 @@ def screen(
         return ScreenResult((), math.nan, math.nan, evaluated, reason, elapsed)
     best_capex = min(c.capex for c in feasible)
     ties = tuple(c for c in feasible if c.capex <= best_capex * (1 + 1e-12) + 1e-9)
-    del closest_reason
-    return ScreenResult(ties, best_power, best_capex, evaluated, None, elapsed)
+    return ScreenResult(ties, best_power, best_capex, evaluated, None, elapsed, tuple(frontier))
 
 
 def infeasibility_reason(problem: Problem, catalogue: Catalogue, deficit_max, pumps) -> str:
@@ -506,11 +519,17 @@ def infeasibility_reason(problem: Problem, catalogue: Catalogue, deficit_max, pu
             f"every pump's maximum pressure in the catalogue (highest {best:.0f} bar)"
         )
     mean = float(demand.mean())
+    worn = 1.0 - s.flow_margin
     if all(deficit_max[j] is None for j in range(len(pumps))):
         q = max(p.flow for p in pumps)
+        margin = (
+            f" less the {s.flow_margin:.0%} wear margin ({q * worn * 6e4:.1f} L/min)"
+            if s.flow_margin
+            else ""
+        )
         return (
             f"mean demand {mean * 6e4:.1f} L/min exceeds the largest pump's delivery "
-            f"{q * 6e4:.1f} L/min"
+            f"{q * 6e4:.1f} L/min{margin}"
         )
     big_motor = max(catalogue.motors, key=lambda m: m.rated_power)
     if not any(
@@ -540,7 +559,7 @@ def infeasibility_reason(problem: Problem, catalogue: Catalogue, deficit_max, pu
         * acc.unit_flow_limit(o.type, o.nominal_volume, o.bore, o.max_flow, rules[o.type])
         for o in ps_ok
     )
-    qmax = max(p.flow for p in pumps)
+    qmax = max(p.flow for p in pumps) * worn
     if demand.max() - qmax > fastest:
         return (
             f"peak flow {demand.max() * 6e4:,.0f} L/min exceeds the largest pump "

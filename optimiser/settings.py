@@ -15,6 +15,7 @@ from optimiser.units import P_AMBIENT, celsius_to_kelvin
 
 __all__ = ["ACCUMULATOR_TYPES", "DEFAULT_SETTINGS", "DesignSettings"]
 
+
 @dataclass(frozen=True)
 class DesignSettings:
     """Settings of one design study.
@@ -50,6 +51,10 @@ class DesignSettings:
     max_load_events_per_hour : float | None
         Most load events (unloaded → loaded) in any hour, [1/h].  Default 360 (common
         practice, no published source).  None disables.
+    flow_margin : float
+        Share of the pump's catalogue flow the design must do without, [-]: the cycle must
+        still be met when wear has cut the delivery by this much (the pump-only baselines
+        get the same margin).  Default 0.10 (common practice, no published source).
     max_count : int
         Most accumulators of one size in a bank, [-].  Default 8.
     precharge_step : float
@@ -81,6 +86,7 @@ class DesignSettings:
     min_loaded_dwell: float = 1.0
     min_unloaded_dwell: float = 1.0
     max_load_events_per_hour: float | None = 360.0
+    flow_margin: float = 0.10
     max_count: int = 8
     precharge_step: float = 1e5
     types: tuple[str, ...] = ACCUMULATOR_TYPES
@@ -113,7 +119,7 @@ class DesignSettings:
 
             try:
                 parse_process(self.process)
-            except Exception as exc:  # noqa: BLE001 - any parse failure is a bad setting
+            except Exception as exc:
                 raise bad(
                     f"process '{self.process}' is not auto, isothermal, adiabatic or "
                     f"polytropic:N ({exc})"
@@ -131,6 +137,8 @@ class DesignSettings:
                 raise bad(f"{name} must be ≥ 0, got {v!r}")
         if self.max_load_events_per_hour is not None and not (self.max_load_events_per_hour >= 1):
             raise bad("max load events per hour must be ≥ 1 (or None for no limit)")
+        if not (0 <= self.flow_margin < 0.5):
+            raise bad(f"flow margin must be 0 … 50 %, got {self.flow_margin:.0%}")
         if not (1 <= int(self.max_count) <= 64):
             raise bad(f"max count per bank must be 1…64, got {self.max_count}")
         unknown = set(self.types) - set(ACCUMULATOR_TYPES)
@@ -164,6 +172,7 @@ class DesignSettings:
             "min_loaded_dwell_s": self.min_loaded_dwell,
             "min_unloaded_dwell_s": self.min_unloaded_dwell,
             "max_load_events_per_hour": self.max_load_events_per_hour,
+            "flow_margin": self.flow_margin,
             "max_count": self.max_count,
             "precharge_step_bar": self.precharge_step / 1e5,
             "types": list(self.types),

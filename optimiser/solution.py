@@ -12,7 +12,35 @@ import pandas as pd
 
 from optimiser.catalogue import AccumulatorOption, MotorOption, PumpOption
 
-__all__ = ["Bank", "Baseline", "Design", "SearchStats"]
+__all__ = ["Alternative", "Bank", "Baseline", "Design", "SearchStats"]
+
+
+@dataclass(frozen=True)
+class Alternative:
+    """A point of the power–capex trade-off: the cheapest supply at one motor rating.
+
+    Attributes
+    ----------
+    pump, motor : PumpOption, MotorOption
+        Catalogue rows.
+    option : AccumulatorOption | None
+        Accumulator row (None: pump only).
+    count : int
+        Accumulators in the bank, [-].
+    capex : float
+        Bank + pump + motor price, [currency].
+    """
+
+    pump: PumpOption
+    motor: MotorOption
+    option: AccumulatorOption | None
+    count: int
+    capex: float
+
+    @property
+    def installed_power(self) -> float:
+        """Rated motor power, [W]."""
+        return self.motor.rated_power
 
 
 @dataclass(frozen=True)
@@ -134,8 +162,10 @@ class Design:
     pump, motor : PumpOption | None, MotorOption | None
         Chosen catalogue rows.
     p_min, p_max : float
-        Working window: lowest pressure reached in the cycle at the coldest temperature and
-        the unload (maximum working) pressure, absolute, [Pa].
+        Working window, absolute, [Pa]: the lowest and the highest accumulator pressure in
+        operation.  The pipeline takes them from the verification's recommended controller at
+        both temperature ends; before that they are the quasi-static values of the schedule
+        (lowest at the coldest, highest at the hottest temperature).
     relief : float
         Relief valve cracking pressure, absolute, [Pa].
     process : str
@@ -158,6 +188,13 @@ class Design:
     levels : dict
         Lexicographic objective values: ``installed_power [W]``, ``capex``,
         ``energy_per_cycle [J]``.
+    alternatives : tuple[Alternative, ...]
+        The power–capex trade-off behind the lexicographic choice: the chosen level first,
+        then each larger motor rating that buys a cheaper supply.
+    robust_schedule : bool
+        True when the one open-loop schedule holds at every temperature of the range; False
+        when it is planned at the middle temperature (the pressure switch then adapts at the
+        extremes, as the verification shows).
     lower_bound_power : float
         Mean hydraulic power of the cycle (line loss included) over the best pump overall
         efficiency in the catalogue, [W]: a motor's rating is its shaft output, so no supply
@@ -182,6 +219,8 @@ class Design:
     baselines: tuple[Baseline, ...] = ()
     stats: SearchStats = field(default_factory=SearchStats)
     notes: tuple[str, ...] = ()
+    alternatives: tuple[Alternative, ...] = ()
+    robust_schedule: bool = True
 
     @property
     def feasible(self) -> bool:

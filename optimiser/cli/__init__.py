@@ -18,7 +18,7 @@ from optimiser.errors import StowflowError
 __all__ = ["COMMANDS", "build_parser", "main"]
 
 #: Command modules, in the order ``stowflow --help`` lists them.
-COMMANDS: tuple[str, ...] = ("check", "size", "fill", "precharge")
+COMMANDS: tuple[str, ...] = ("demo", "design", "check", "simulate", "size", "fill", "precharge")
 
 _DESCRIPTION = (
     "stowflow designs the least-installed-power hydraulic supply for a machine's duty cycle: "

@@ -1,0 +1,200 @@
+"""``stowflow design CYCLE.csv``: the main job, a thin shell over :func:`optimiser.pipeline.run`."""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+
+from optimiser.cli._costopts import add_cost_options, cost_settings_from_args
+from optimiser.cli._output import print_json, print_table, progress
+from optimiser.options import DESIGN_OPTIONS, design_settings
+from optimiser.units import abs_to_gauge, parse_quantity
+
+__all__ = ["add_design_options", "register", "run", "run_study", "settings_from_args"]
+
+_EXAMPLE = """\
+example:
+  stowflow design duty_cycles/forming_press.csv --temperature 10..50 --out reports/press
+
+writes report.html, design.json, schedule.csv and spec.csv to the output folder
+(default reports/<cycle name>/).  Pressures are gauge; values take units (5bar, 1s, 10%%).
+"""
+
+
+def add_design_options(parser: argparse.ArgumentParser) -> None:
+    """Add the design settings and cost options shared by ``design`` and ``demo``."""
+    g = parser.add_argument_group("design settings")
+    for key, (_field, kind, text) in DESIGN_OPTIONS.items():
+        flag = "--" + key.replace("_", "-")
+        if kind == "choice":
+            g.add_argument(flag, dest=f"opt_{key}", choices=("real", "ideal"), help=text)
+        else:
+            g.add_argument(flag, dest=f"opt_{key}", metavar="VALUE", help=text)
+    g.add_argument(
+        "--min-dwell",
+        dest="opt_min_dwell",
+        metavar="TIME",
+        help="least loaded and unloaded time, both at once, e.g. 1s (0 disables)",
+    )
+    g.add_argument(
+        "--no-pump-only",
+        action="store_true",
+        help="do not consider a pump without accumulator as a design",
+    )
+    g.add_argument(
+        "--no-verify",
+        action="store_true",
+        help="skip the time-domain verification (not recommended)",
+    )
+    add_cost_options(parser)
+
+
+def settings_from_args(args: argparse.Namespace):
+    """Design settings from parsed options (unit strings → SI)."""
+    values = {key: getattr(args, f"opt_{key}", None) for key in DESIGN_OPTIONS}
+    both = getattr(args, "opt_min_dwell", None)
+    if both:
+        values["min_loaded_dwell"] = values["min_loaded_dwell"] or both
+        values["min_unloaded_dwell"] = values["min_unloaded_dwell"] or both
+    s = design_settings(values)
+    if getattr(args, "no_pump_only", False):
+        s = s.with_(allow_pump_only=False)
+    return s
+
+
+def register(subparsers, common) -> None:
+    """Add ``stowflow design``."""
+    p = subparsers.add_parser(
+        "design",
+        parents=[common],
+        help="design the least-installed-power supply for a duty cycle",
+        description=(
+            "Find the supply with the least installed motor power for a duty cycle (then the "
+            "least capital cost, then the least energy): accumulator type, size, count, "
+            "precharge and pressure window, pump, motor and load/unload schedule; verify it "
+            "in the time domain at the coldest and hottest temperature; compare costs with "
+            "pump-only supplies; write the report and exports."
+        ),
+        epilog=_EXAMPLE,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    p.add_argument("cycle", metavar="CYCLE.csv", help="duty-cycle CSV (see README: input format)")
+    p.add_argument(
+        "--catalogue",
+        metavar="FILE",
+        help="component catalogue TOML (default: the bundled demo catalogue)",
+    )
+    p.add_argument("--out", metavar="DIR", help="output folder (default reports/<cycle name>/)")
+    p.add_argument("--json", action="store_true", help="also print design.json to stdout")
+    p.add_argument(
+        "--min-pressure",
+        metavar="PRESSURE",
+        help="minimum working pressure, gauge, for a cycle without a pressure column",
+    )
+    p.add_argument(
+        "--step", metavar="TIME", help="time step of the cycle grid (default: automatic)"
+    )
+    add_design_options(p)
+    p.set_defaults(func=run)
+
+
+def run_study(args: argparse.Namespace, cycle, *, out_default: Path, name: str | None = None):
+    """Run the pipeline for parsed options and write the outputs; return (result, paths)."""
+    from optimiser.pipeline import Study
+    from optimiser.pipeline import run as run_pipeline
+    from optimiser.report import write_study
+
+    settings = settings_from_args(args)
+    costs = cost_settings_from_args(args)
+    min_p = getattr(args, "min_pressure", None)
+    step = getattr(args, "step", None)
+    study = Study(
+        cycle=cycle,
+        catalogue=getattr(args, "catalogue", None),
+        settings=settings,
+        costs=costs,
+        name=name,
+        min_pressure=parse_quantity(min_p, "pressure") if min_p else None,
+        step=parse_quantity(step, "time") if step else None,
+        verify=not getattr(args, "no_verify", False),
+    )
+    with progress("designing", total=1.0) as update:
+        result = run_pipeline(study, progress=lambda f, label: update(f, label=label))
+    out = Path(args.out) if getattr(args, "out", None) else out_default / result.name
+    paths = write_study(result, out)
+    return result, paths
+
+
+def _bar(p_abs: float) -> str:
+    return f"{abs_to_gauge(p_abs) / 1e5:.1f}"
+
+
+def print_summary(result, paths, stream=None) -> None:
+    """Print the verdict of a study as a table with units, then where the files are."""
+    stream = stream or sys.stdout
+    d = result.design
+    rows = [("status", d.status, "")]
+    if not d.feasible:
+        rows.append(("reason", d.reason, ""))
+    else:
+        if d.bank is not None:
+            b = d.bank
+            rows += [
+                ("accumulator", f"{b.count} × {b.option.name}", ""),
+                ("total gas volume", f"{b.gas_volume * 1e3:.1f}", "L"),
+                ("precharge at 20 °C", _bar(b.precharge), "bar"),
+            ]
+        else:
+            rows.append(("accumulator", "none (pump only)", ""))
+        rows += [
+            ("working window", f"{_bar(d.p_min)} – {_bar(d.p_max)}", "bar"),
+            ("relief setting", _bar(d.relief), "bar"),
+            ("pump", f"{d.pump.name} ({d.pump.flow * 6e4:.1f} L/min)", ""),
+            ("motor", f"{d.motor.rated_power / 1e3:g}", "kW"),
+            (
+                "installed power / lower bound",
+                f"{d.installed_power / d.lower_bound_power:.2f}",
+                "-",
+            ),
+        ]
+        v = result.verification
+        if v is not None:
+            rows.append(
+                (
+                    "verification",
+                    f"{'passed' if v.passed else 'FAILED'} "
+                    f"({v.controller}, margin {v.min_margin / 1e5:.1f} bar)",
+                    "",
+                )
+            )
+            if v.setpoints.get("load_below") and v.setpoints.get("unload_above"):
+                rows.append(
+                    (
+                        "pressure switch",
+                        f"load below {_bar(v.setpoints['load_below'])}, "
+                        f"unload above {_bar(v.setpoints['unload_above'])}",
+                        "bar",
+                    )
+                )
+        fixed = d.baselines[0] if d.baselines else None
+        if fixed is not None and fixed.motor is not None:
+            rows.append(("pump-only motor", f"{fixed.installed_power / 1e3:g}", "kW"))
+    rows.append(("time", f"{result.timings['total']:.2f}", "s"))
+    print_table(rows, title=f"stowflow design: {result.name}", stream=stream)
+    for note in d.notes:
+        stream.write(f"note: {note}\n")
+    for key, path in paths.items():
+        stream.write(f"{key}: {path}\n")
+
+
+def run(args: argparse.Namespace) -> int:
+    """Run ``stowflow design``."""
+    result, paths = run_study(args, args.cycle, out_default=Path("reports"))
+    if args.json:
+        import json
+
+        print_json(json.loads(Path(paths["design.json"]).read_text(encoding="utf-8")))
+    else:
+        print_summary(result, paths)
+    return 0 if result.design.feasible else 1

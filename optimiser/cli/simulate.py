@@ -1,0 +1,311 @@
+"""``stowflow simulate DESIGN.json CYCLE.csv``: verify a (possibly hand-edited) design again.
+
+Reads the contract keys of ``design.json`` (schema ``stowflow.design/1``; pressures bar
+gauge, volumes L, flows L/min, power kW), rebuilds the components - from the catalogue when a
+row matches the numbers, otherwise from the JSON with stated defaults - and runs the
+time-domain verification (:func:`optimiser.simulate.verify`) at the coldest and the hottest
+temperature.  Prints the verdict (table or ``--json``) and, with ``--out DIR``, writes
+``simulation.csv``: one long table, one block of rows per controller × temperature (columns
+``controller`` and ``temperature [°C]``), and ``verification.json``.
+
+Exit code 0 when the design passes, 1 when it fails verification (a result), 2 for bad input.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import math
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from optimiser.catalogue import (
+    default_catalogue_path,
+    load_catalogue,
+)
+from optimiser.cli._designfile import load_design, read_setpoints
+from optimiser.cli._output import print_json, print_table
+from optimiser.cycle import load_cycle
+from optimiser.errors import DesignFileError, UnitsError
+from optimiser.options import parse_temperature_range
+from optimiser.settings import DesignSettings
+from optimiser.simulate import CONTROLLERS, verify
+from optimiser.units import kelvin_to_celsius, parse_quantity, to_unit
+
+__all__ = ["SCHEMA", "register", "run"]
+
+#: Schema tag of the ``--json`` output and of verification.json.
+SCHEMA = "stowflow.simulate/1"
+
+_EPILOG = """examples:
+  stowflow simulate reports/press/design.json duty_cycles/forming_press.csv
+  stowflow simulate design.json cycle.csv --controller pressure-switch --out sim/
+  stowflow simulate design.json cycle.csv --temperature 0..60 --time-constant 2s --json
+
+A schedule.csv beside design.json (same export) is used for the schedule controller."""
+
+
+def register(subparsers, common: argparse.ArgumentParser) -> None:
+    """Add ``stowflow simulate``."""
+    p = subparsers.add_parser(
+        "simulate",
+        parents=[common],
+        help="verify a design.json in the time domain (real nitrogen, heat exchange)",
+        description=(
+            "Simulate a design (design.json, possibly edited by hand) on a duty cycle at the "
+            "coldest and hottest temperature, cycle after cycle to the periodic steady "
+            "state, with real-gas nitrogen, heat exchange through the thermal time "
+            "constant, discharge limits and the relief valve; print the verdict. Exit code "
+            "0: passes, 1: fails verification, 2: bad input."
+        ),
+        epilog=_EPILOG,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    p.add_argument("design", metavar="DESIGN.json", help="design file (schema stowflow.design/1)")
+    p.add_argument("cycle", metavar="CYCLE.csv", help="duty-cycle CSV the design is for")
+    p.add_argument(
+        "--controller",
+        choices=CONTROLLERS,
+        action="append",
+        help="controller to simulate (repeatable; default: all that apply)",
+    )
+    p.add_argument(
+        "--out",
+        metavar="DIR",
+        help="write simulation.csv and verification.json here (default: print only)",
+    )
+    p.add_argument("--json", action="store_true", help="print the verdict as JSON")
+    p.add_argument(
+        "--time-constant",
+        metavar="TIME",
+        help="thermal time constant of the gas, e.g. 5s (default 5 s, from memory)",
+    )
+    p.add_argument(
+        "--temperature",
+        metavar="RANGE",
+        help="operating temperatures in °C, e.g. 10..50 (default: the design's)",
+    )
+    p.add_argument(
+        "--gas", choices=("real", "ideal"), help="nitrogen model (default: the design's)"
+    )
+    p.add_argument(
+        "--catalogue",
+        metavar="FILE",
+        help="catalogue to find the components in (default: the bundled one)",
+    )
+    p.add_argument(
+        "--schedule",
+        metavar="CSV",
+        help="schedule.csv for the schedule controller (default: beside DESIGN.json)",
+    )
+    p.add_argument(
+        "--min-pressure",
+        metavar="PRESSURE",
+        help="minimum working pressure, gauge, for a cycle without a pressure column",
+    )
+    p.set_defaults(func=run)
+
+
+# --------------------------------------------------------------------------- output
+def _frames(v, pa: float) -> pd.DataFrame:
+    """simulation.csv: every run's trace in trade units, one block per run."""
+    rows = []
+    for r in v.runs:
+        tr = r.trace
+
+        def g(col: str, tr=tr) -> np.ndarray:
+            return to_unit(tr[col].to_numpy() - pa, "bar", "pressure")
+
+        rows.append(
+            pd.DataFrame(
+                {
+                    "controller": r.controller,
+                    "temperature [°C]": round(kelvin_to_celsius(r.temperature), 3),
+                    "time [s]": tr.index.to_numpy(float),
+                    "pressure [bar]": g("pressure [Pa]"),
+                    "pressure_min [bar]": g("pressure_min [Pa]"),
+                    "required_pressure [bar]": g("required_pressure [Pa]"),
+                    "gas_temperature [°C]": kelvin_to_celsius(tr["gas_temperature [K]"].to_numpy()),
+                    "accumulator_oil [L]": to_unit(
+                        tr["accumulator_oil [m³]"].to_numpy(), "L", "volume"
+                    ),
+                    "pump_loaded": tr["pump_loaded [-]"].to_numpy(),
+                    "pump_flow [L/min]": to_unit(
+                        tr["pump_flow [m³/s]"].to_numpy(), "L/min", "flow"
+                    ),
+                    "relief_flow [L/min]": to_unit(
+                        tr["relief_flow [m³/s]"].to_numpy(), "L/min", "flow"
+                    ),
+                    "demand [L/min]": to_unit(tr["demand [m³/s]"].to_numpy(), "L/min", "flow"),
+                    "bank_flow [L/min]": to_unit(
+                        tr["bank_flow [m³/s]"].to_numpy(), "L/min", "flow"
+                    ),
+                }
+            )
+        )
+    return pd.concat(rows, ignore_index=True)
+
+
+def _record(v, pa: float, notes: list[str]) -> dict:
+    """The verdict as JSON-ready dict (bar gauge, °C, kJ, L)."""
+
+    def bar_g(p):
+        return None if not math.isfinite(p) else round(to_unit(p - pa, "bar", "pressure"), 3)
+
+    sp = {}
+    for k, x in v.setpoints.items():
+        if k.endswith("_stroke"):
+            sp[k] = round(x, 4)
+        else:
+            sp[k + "_bar"] = bar_g(x)
+    runs = []
+    for r in v.runs:
+        runs.append(
+            {
+                "controller": r.controller,
+                "temperature_c": round(kelvin_to_celsius(r.temperature), 3),
+                "passed": r.passed,
+                "reason": r.reason,
+                "failures": list(r.failures),
+                "min_margin_bar": round(to_unit(r.min_margin, "bar", "pressure"), 3),
+                "min_margin_time_s": r.min_margin_time,
+                "peak_pressure_bar": bar_g(r.peak_pressure),
+                "gas_temperature_min_c": round(kelvin_to_celsius(r.gas_temperature_min), 2)
+                if math.isfinite(r.gas_temperature_min)
+                else None,
+                "gas_temperature_max_c": round(kelvin_to_celsius(r.gas_temperature_max), 2)
+                if math.isfinite(r.gas_temperature_max)
+                else None,
+                "energy_per_cycle_kj": round(to_unit(r.energy_per_cycle, "kJ", "energy"), 4),
+                "load_events_per_hour": round(r.load_events_per_hour, 2),
+                "relief_volume_l": round(to_unit(r.relief_volume, "L", "volume"), 5),
+                "cycles_to_steady": r.cycles_to_steady,
+                "periodic": r.periodic,
+                "period_cycles": r.period_cycles,
+            }
+        )
+    return {
+        "schema": SCHEMA,
+        "passed": v.passed,
+        "controller": v.controller,
+        "reason": v.reason,
+        "min_margin_bar": round(to_unit(v.min_margin, "bar", "pressure"), 3),
+        "setpoints": sp,
+        "time_constant_s": v.time_constant,
+        "gas_model": v.gas_model,
+        "elapsed_s": round(v.elapsed, 3),
+        "runs": runs,
+        "notes": notes + list(v.notes),
+    }
+
+
+def run(args: argparse.Namespace) -> int:
+    """Run ``stowflow simulate``: 0 passes, 1 fails verification (bad input raises → 2)."""
+    cat_path = Path(args.catalogue) if args.catalogue else default_catalogue_path()
+    catalogue = load_catalogue(cat_path)
+    min_p = None
+    if args.min_pressure:
+        min_p = _quantity("--min-pressure", args.min_pressure, "pressure")
+    cycle = load_cycle(args.cycle, min_pressure=min_p)
+    settings = DesignSettings()
+    design_path = Path(args.design)
+    sched = Path(args.schedule) if args.schedule else design_path.with_name("schedule.csv")
+    design, settings, notes = load_design(design_path, catalogue, settings, sched, cycle)
+    changes = {}
+    if args.time_constant:
+        changes["time_constant"] = _quantity("--time-constant", args.time_constant, "time")
+    if args.temperature:
+        changes["t_min"], changes["t_max"] = parse_temperature_range(args.temperature)
+    if args.gas:
+        changes["gas_model"] = args.gas
+    if changes:
+        settings = settings.with_(**changes)
+    controllers = tuple(dict.fromkeys(args.controller or CONTROLLERS))
+    if controllers == ("schedule",) and design.bank is not None and design.schedule.empty:
+        raise DesignFileError(f"{sched}: no usable schedule.csv for the schedule controller")
+    given = read_setpoints(design_path, settings.p_ambient)
+    v = verify(design, cycle, settings, controllers=controllers, setpoints=given or None)
+    pa = settings.p_ambient
+    record = _record(v, pa, notes)
+    if args.out:
+        out = Path(args.out)
+        out.mkdir(parents=True, exist_ok=True)
+        _frames(v, pa).to_csv(out / "simulation.csv", index=False, float_format="%.6g")
+        (out / "verification.json").write_text(
+            json.dumps(record, indent=2, ensure_ascii=False, allow_nan=False) + "\n",
+            encoding="utf-8",
+        )
+    if args.json:
+        print_json(record)
+    else:
+        _print(v, record, args.out)
+    return 0 if v.passed else 1
+
+
+def _quantity(flag: str, text: str, dimension: str) -> float:
+    """Parse an option with a unit to SI, naming the option in the error."""
+    try:
+        return parse_quantity(text, dimension)
+    except UnitsError as exc:
+        raise UnitsError(f"{flag}: {exc}") from None
+
+
+def _print(v, record: dict, out) -> None:
+    """The verdict as a table with units, then settings, reason and notes."""
+    rows = []
+    for r in record["runs"]:
+        t = (
+            f"{r['gas_temperature_min_c']:.1f} … {r['gas_temperature_max_c']:.1f}"
+            if r["gas_temperature_min_c"] is not None
+            else "-"
+        )
+        rows.append(
+            (
+                r["controller"],
+                f"{r['temperature_c']:.0f}",
+                "pass" if r["passed"] else "FAIL",
+                f"{r['min_margin_bar']:.2f}",
+                f"{r['peak_pressure_bar']:.1f}",
+                t,
+                f"{r['energy_per_cycle_kj']:.1f}",
+                f"{r['load_events_per_hour']:.0f}",
+                f"{r['relief_volume_l']:.3g}",
+                str(r["cycles_to_steady"]),
+            )
+        )
+    print_table(
+        rows,
+        title=f"stowflow simulate: {'PASSED' if v.passed else 'FAILED'} "
+        f"(recommended: {v.controller})",
+        headers=(
+            "controller",
+            "T [°C]",
+            "verdict",
+            "margin [bar]",
+            "peak [bar]",
+            "gas T [°C]",
+            "energy [kJ/cycle]",
+            "loads [1/h]",
+            "relief [L/cycle]",
+            "cycles",
+        ),
+    )
+    sp = record["setpoints"]
+    if "load_below_bar" in sp:
+        print(
+            f"pressure switch: load below {sp['load_below_bar']:.1f} bar, unload above "
+            f"{sp['unload_above_bar']:.1f} bar (gauge)"
+        )
+    if "load_below_stroke" in sp:
+        print(
+            f"position switch: load below {sp['load_below_stroke']:.3f}, unload above "
+            f"{sp['unload_above_stroke']:.3f} of the stroke"
+        )
+    if v.reason:
+        print(f"reason: {v.reason}")
+    for n in record["notes"]:
+        print(f"note: {n}")
+    if out:
+        print(f"simulation.csv, verification.json: {out}")

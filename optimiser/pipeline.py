@@ -1,0 +1,248 @@
+"""One workflow: ``run(study) -> StudyResult``.  The CLI and the web page are shells over it.
+
+Steps: read the cycle and the catalogue → design (least installed power, then capex, then
+energy) → verify in the time domain at the coldest and hottest temperature → if the
+verification finds the pressure falling short, raise the requirement of the steps that fell
+short by the shortfall and design again (a bounded number of times) → costs against the
+pump-only baselines.  A design that never passes the verification is returned as
+``infeasible``; it is never reported as feasible.
+"""
+
+from __future__ import annotations
+
+import time
+from collections.abc import Callable
+from dataclasses import dataclass, field, replace
+from pathlib import Path
+
+import numpy as np
+
+from optimiser.catalogue import Catalogue, default_catalogue_path, load_catalogue
+from optimiser.costs import Comparison, CostSettings, compare
+from optimiser.cycle import DutyCycle, load_cycle
+from optimiser.designer import design
+from optimiser.settings import DesignSettings
+from optimiser.simulate import Verification, verify
+from optimiser.solution import Design
+
+__all__ = ["MAX_TIGHTENINGS", "Attempt", "Study", "StudyResult", "run"]
+
+#: Most times the closed loop raises the requirement and designs again.
+MAX_TIGHTENINGS = 4
+#: Extra pressure added on top of a measured shortfall when tightening, [Pa].
+TIGHTEN_MARGIN = 0.5e5
+
+
+@dataclass(frozen=True)
+class Study:
+    """What to design.
+
+    Attributes
+    ----------
+    cycle : DutyCycle | str | Path
+        The duty cycle, or the path of its CSV.
+    catalogue : Catalogue | str | Path | None
+        Components, or the path of a TOML catalogue; None for the bundled demo catalogue.
+    settings : DesignSettings
+        Design settings.
+    costs : CostSettings
+        Cost settings.
+    name : str | None
+        Study name (default: the cycle's name).
+    min_pressure : float | None
+        Minimum working pressure for a cycle without a pressure column, gauge, [Pa].
+    step : float | None
+        Time step of the cycle grid, [s] (default: chosen automatically).
+    verify : bool
+        Whether to run the time-domain verification (and its closed loop).
+    """
+
+    cycle: DutyCycle | str | Path
+    catalogue: Catalogue | str | Path | None = None
+    settings: DesignSettings = field(default_factory=DesignSettings)
+    costs: CostSettings = field(default_factory=CostSettings)
+    name: str | None = None
+    min_pressure: float | None = None
+    step: float | None = None
+    verify: bool = True
+
+
+@dataclass(frozen=True)
+class Attempt:
+    """One pass of the design–verify loop.
+
+    Attributes
+    ----------
+    extra_pressure_max : float
+        Largest extra requirement on any step in this pass, [Pa].
+    status : str
+        Design status of the pass.
+    passed : bool | None
+        Verification verdict (None when not verified).
+    min_margin : float
+        Least pressure margin found by the verification, [Pa].
+    """
+
+    extra_pressure_max: float
+    status: str
+    passed: bool | None
+    min_margin: float
+
+
+@dataclass(frozen=True)
+class StudyResult:
+    """Everything a study produced.
+
+    Attributes
+    ----------
+    name : str
+        Study name.
+    cycle : DutyCycle
+        The cycle as read.
+    catalogue : Catalogue
+        The catalogue used.
+    settings : DesignSettings
+        Design settings used.
+    cost_settings : CostSettings
+        Cost settings used.
+    design : Design
+        The design (status ``infeasible`` when no design passed the verification).
+    verification : Verification | None
+        Time-domain verdict of the returned design (None when not verified or infeasible).
+    comparison : Comparison
+        Costs against the pump-only baselines.
+    attempts : tuple[Attempt, ...]
+        The closed loop's passes.
+    timings : dict
+        Wall-clock seconds per stage: ``design``, ``verify``, ``costs``, ``total``.
+    """
+
+    name: str
+    cycle: DutyCycle
+    catalogue: Catalogue
+    settings: DesignSettings
+    cost_settings: CostSettings
+    design: Design
+    verification: Verification | None
+    comparison: Comparison
+    attempts: tuple[Attempt, ...]
+    timings: dict
+
+
+def _load(study: Study) -> tuple[DutyCycle, Catalogue]:
+    cycle = study.cycle
+    if not isinstance(cycle, DutyCycle):
+        cycle = load_cycle(cycle, step=study.step, min_pressure=study.min_pressure)
+    cat = study.catalogue
+    if cat is None:
+        cat = load_catalogue(default_catalogue_path())
+    elif not isinstance(cat, Catalogue):
+        cat = load_catalogue(cat)
+    return cycle, cat
+
+
+def run(study: Study, *, progress: Callable[[float, str], None] | None = None) -> StudyResult:
+    """Run a study end to end.
+
+    Parameters
+    ----------
+    study : Study
+        What to design.
+    progress : callable, optional
+        ``progress(fraction, label)``, called as the stages advance.
+
+    Returns
+    -------
+    StudyResult
+    """
+    t0 = time.perf_counter()
+    report = progress or (lambda frac, label: None)
+    cycle, catalogue = _load(study)
+    settings = study.settings
+    extra = np.zeros(cycle.n_steps)
+    attempts: list[Attempt] = []
+    t_design = t_verify = 0.0
+    verification: Verification | None = None
+    result: Design | None = None
+    for k in range(MAX_TIGHTENINGS + 1):
+        span = 0.8 / (MAX_TIGHTENINGS + 1)
+        base = k * span
+
+        def stage(frac: float, label: str, base=base, span=span, k=k) -> None:
+            tag = f" (tightening {k})" if k else ""
+            report(base + span * frac, label + tag)
+
+        t1 = time.perf_counter()
+        d = design(
+            cycle,
+            catalogue,
+            settings,
+            extra_pressure=extra,
+            progress=lambda f, lab, stage=stage: stage(0.5 * f, lab),
+        )
+        t_design += time.perf_counter() - t1
+        if not d.feasible or not study.verify:
+            attempts.append(Attempt(float(extra.max()), d.status, None, float("nan")))
+            result, verification = d, None
+            break
+        t1 = time.perf_counter()
+        v = verify(
+            d, cycle, settings, progress=lambda f, lab, stage=stage: stage(0.5 + 0.5 * f, lab)
+        )
+        t_verify += time.perf_counter() - t1
+        attempts.append(Attempt(float(extra.max()), d.status, v.passed, v.min_margin))
+        result, verification = d, v
+        if v.passed:
+            break
+        if v.shortfall is None or not np.any(v.shortfall > 0):
+            break  # nothing to tighten: the failure is not a pressure shortfall
+        extra = extra + np.where(v.shortfall > 0, v.shortfall + TIGHTEN_MARGIN, 0.0)
+    assert result is not None
+    if verification is not None and verification.passed:
+        # The working window the designer sets up is the one the recommended controller
+        # keeps at both temperature ends.
+        runs = [r for r in verification.runs if r.controller == verification.controller]
+        if runs:
+            p_lo = min(float(r.trace["pressure [Pa]"].min()) for r in runs)
+            p_hi = max(float(r.trace["pressure [Pa]"].max()) for r in runs)
+            result = replace(result, p_min=p_lo, p_max=min(p_hi, result.relief))
+    if verification is not None and not verification.passed:
+        result = replace(
+            result,
+            status="infeasible",
+            reason=(
+                f"no design passed the time-domain verification after {len(attempts)} "
+                f"pass(es): {verification.reason}"
+            ),
+        )
+    notes = list(result.notes)
+    if len(attempts) > 1:
+        notes.append(
+            f"the verification raised the requirement {len(attempts) - 1} time(s), by up to "
+            f"{attempts[-1].extra_pressure_max / 1e5:.1f} bar, before the design passed"
+            if verification is not None and verification.passed
+            else f"the verification raised the requirement {len(attempts) - 1} time(s)"
+        )
+        result = replace(result, notes=tuple(notes))
+    report(0.9, "costs")
+    t1 = time.perf_counter()
+    comparison = compare(result, verification, cycle, study.costs)
+    t_costs = time.perf_counter() - t1
+    report(1.0, "done")
+    return StudyResult(
+        name=study.name or cycle.name,
+        cycle=cycle,
+        catalogue=catalogue,
+        settings=settings,
+        cost_settings=study.costs,
+        design=result,
+        verification=verification,
+        comparison=comparison,
+        attempts=tuple(attempts),
+        timings={
+            "design": t_design,
+            "verify": t_verify,
+            "costs": t_costs,
+            "total": time.perf_counter() - t0,
+        },
+    )

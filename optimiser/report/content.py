@@ -1,0 +1,451 @@
+"""What the report says, in the trade's units: one place that the HTML and the exports read.
+
+Nothing here computes physics.  Every number comes from the :class:`StudyResult` (design,
+verification, comparison, settings); this module picks, converts (absolute SI → gauge bar, L,
+L/min, kW, °C) and words it.  The commissioning table of precharge against temperature is
+read from :func:`optimiser.gas.precharge_at` and the category hint from
+:func:`optimiser.accumulator.pressure_equipment_category`.
+
+Strings returned here are plain text; the HTML writer escapes them.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from optimiser.units import (
+    abs_to_gauge,
+    kelvin_to_celsius,
+    to_unit,
+)
+
+__all__ = [
+    "DISCLAIMER",
+    "SAFETY_CAUTIONS",
+    "OperationFrames",
+    "assumptions",
+    "bar_delta",
+    "bar_g",
+    "currency",
+    "fmt",
+    "key_figures",
+    "kilowatts",
+    "litres",
+    "lpm",
+    "money",
+    "notes",
+    "operation_frames",
+    "recommendation",
+    "setpoints_bar",
+    "status_line",
+    "verification_rows",
+    "years",
+]
+
+#: The cautions every report carries (DESIGN.md "Safety"; ISO 4413 as paraphrased there).
+SAFETY_CAUTIONS: tuple[str, ...] = (
+    "Precharge with nitrogen only, never with air or oxygen: oil mist in compressed air or "
+    "oxygen can ignite or explode.",
+    "Discharge the accumulator automatically, or isolate it positively, when the machine shuts "
+    "down: it stays pressurised after the pump stops.",
+    "Fit a relief valve set at or below the accumulator's maximum allowable pressure PS.",
+    "Discharge before disassembly: vent the oil side to zero pressure and check it with a "
+    "gauge before opening any line or fitting on the accumulator circuit.",
+    'Mark the accumulator with its precharge pressure, "use only nitrogen" and "discharge '
+    'prior to disassembly"; the machine and the circuit diagram warn that the system '
+    "contains accumulators.",
+    "Never weld, machine or heat the accumulator shell.",
+)
+
+#: What the report is and is not.
+DISCLAIMER = (
+    "This report is design support. A competent person must check it against the local codes "
+    "and standards before anything is built or bought; it does not replace licensed "
+    "engineering practice."
+)
+
+_DASH = "–"
+
+
+def fmt(value, spec: str = ".3g", unit: str = "") -> str:
+    """Format a number for display ("–" for None or NaN); ``unit`` follows with a space."""
+    if value is None:
+        return _DASH
+    try:
+        v = float(value)
+    except (TypeError, ValueError):
+        return str(value)
+    if not math.isfinite(v):
+        return "never" if v == math.inf else _DASH
+    text = format(v, spec)
+    return f"{text} {unit}".rstrip() if unit else text
+
+
+def bar_g(p_abs, result) -> float | np.ndarray:
+    """Absolute pressure [Pa] → gauge [bar] with the study's ambient pressure."""
+    return to_unit(abs_to_gauge(p_abs, result.settings.p_ambient), "bar", "pressure")
+
+
+def bar_delta(dp) -> float:
+    """Pressure difference [Pa] → [bar] (no gauge shift)."""
+    return to_unit(dp, "bar", "pressure")
+
+
+def kilowatts(w) -> float:
+    """Power [W] → [kW]."""
+    return to_unit(w, "kW", "power")
+
+
+def litres(v) -> float:
+    """Volume [m³] → [L]."""
+    return to_unit(v, "L", "volume")
+
+
+def lpm(q) -> float:
+    """Flow [m³/s] → [L/min]."""
+    return to_unit(q, "L/min", "flow")
+
+
+def currency(result) -> str:
+    """Currency label of every price: the cost settings', else the catalogue's."""
+    return result.comparison.currency or result.catalogue.currency or "currency units"
+
+
+def money(value, result, spec: str = ",.0f") -> str:
+    """A price with its currency label."""
+    return fmt(value, spec, currency(result))
+
+
+def years(value) -> str:
+    """A payback time in words."""
+    if value is None:
+        return "never"
+    if value == 0:
+        return "at once"
+    return f"{value:.1f} years"
+
+
+# -- summary -------------------------------------------------------------------------------
+
+
+def _bank_words(result) -> str:
+    bank = result.design.bank
+    n, vol = bank.count, litres(bank.option.nominal_volume)
+    units = "accumulators" if n > 1 else "accumulator"
+    return (
+        f"{n} × {vol:g} L {bank.type} {units} precharged to "
+        f"{bar_g(bank.precharge, result):.0f} bar at 20 °C"
+    )
+
+
+def recommendation(result) -> str:
+    """The recommendation in one sentence."""
+    d = result.design
+    if not d.feasible:
+        return (
+            f"No supply from this catalogue meets the cycle: {d.reason or 'no design was found'}."
+        )
+    pump = f"a {to_unit(d.pump.displacement, 'cm3', 'displacement'):g} cm³/rev pump"
+    motor = f"a {kilowatts(d.motor.rated_power):g} kW motor"
+    if d.bank is not None:
+        head = f"Use {_bank_words(result)} with {pump} on {motor}"
+    else:
+        head = f"Use {pump} on {motor} without an accumulator"
+    ref = result.comparison.reference
+    if ref is None:
+        return head + "; no pump-only supply from this catalogue could be priced against it."
+    saved = kilowatts(ref.installed_power_saved)
+    which = "a pump-only supply" if ref.baseline == "fixed" else "a compensated pump-only supply"
+    if saved > 0:
+        power = f"{saved:g} kW less installed power than {which}"
+    elif saved < 0:
+        power = f"{-saved:g} kW more installed power than {which}"
+    else:
+        power = f"the same installed power as {which}"
+    if ref.simple_years is None:
+        pay = "never pays back on energy at these prices"
+    elif ref.simple_years == 0:
+        pay = (
+            "costs less to buy and to run"
+            if ref.savings_per_year >= 0
+            else "costs less to buy but more to run"
+        )
+    else:
+        pay = f"pays back in {ref.simple_years:.1f} years"
+    return f"{head}: {power}, {pay}."
+
+
+def status_line(result) -> str:
+    """Design status with MIP gap, reason and the verification verdict."""
+    d, v = result.design, result.verification
+    parts = [f"status {d.status}"]
+    if d.feasible:
+        gap = d.mip_gap
+        parts.append(
+            f"schedule MIP gap {gap:.2%}"
+            if math.isfinite(gap)
+            else "schedule MIP gap unknown (greedy schedule kept)"
+        )
+    if d.reason:
+        parts.append(f"reason: {d.reason}")
+    if v is None:
+        parts.append("time-domain verification not run (quasi-static figures)")
+    else:
+        verdict = "passed" if v.passed else "failed"
+        parts.append(
+            f"time-domain verification {verdict} with the {v.controller} controller, least "
+            f"margin {bar_delta(v.min_margin):.2f} bar"
+        )
+    return "; ".join(parts)
+
+
+def key_figures(result) -> list[dict]:
+    """Per option: label, installed kW, capex, energy per year, cost per year, TCO."""
+    c = result.comparison
+    rows = []
+    for o in c.options:
+        rows.append(
+            {
+                "key": o.key,
+                "label": o.label,
+                "feasible": o.feasible,
+                "reason": o.reason,
+                "installed_kw": kilowatts(o.installed_power),
+                "capex": o.capex,
+                "energy_mwh": to_unit(o.energy_per_year, "MWh", "energy"),
+                "energy_cost": o.energy_cost_per_year,
+                "tco": o.tco,
+                "mean_kw": kilowatts(o.mean_power),
+                "motor_load": o.motor_load,
+                "energy_source": o.energy_source,
+            }
+        )
+    return rows
+
+
+# -- operation -----------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class OperationFrames:
+    """The design at work, in trade units, at the coldest and the hottest temperature.
+
+    Attributes
+    ----------
+    source : str
+        ``"verification"`` (time-domain traces) or ``"schedule"`` (quasi-static).
+    controller : str
+        Controller the traces belong to.
+    frames : dict of str to pandas.DataFrame
+        ``"cold"`` and ``"hot"``: ``time [s]``, ``pressure [bar]``, ``required_pressure
+        [bar]``, ``margin [bar]``, ``accumulator_oil [L]``, ``pump_loaded [-]``,
+        ``relief_flow [L/min]`` (flow over the relief valve).
+    temperatures : dict of str to float
+        ``"cold"``/``"hot"`` temperature, [°C].
+    """
+
+    source: str
+    controller: str
+    frames: dict
+    temperatures: dict
+
+
+def _frame(result, table: pd.DataFrame, pressure, relief_flow) -> pd.DataFrame:
+    """One temperature's traces in trade units from a trace or schedule table (SI)."""
+    p = bar_g(np.asarray(pressure, dtype=float), result)
+    req = bar_g(table["required_pressure [Pa]"].to_numpy(), result)
+    return pd.DataFrame(
+        {
+            "time [s]": table.index.to_numpy(dtype=float),
+            "pressure [bar]": p,
+            "required_pressure [bar]": req,
+            "margin [bar]": p - req,
+            "accumulator_oil [L]": litres(table["accumulator_oil [m³]"].to_numpy()),
+            "pump_loaded [-]": table["pump_loaded [-]"].to_numpy(dtype=float),
+            "relief_flow [L/min]": lpm(np.asarray(relief_flow, dtype=float)),
+        }
+    )
+
+
+def operation_frames(result) -> OperationFrames | None:
+    """Traces of the design at work; None for an infeasible design."""
+    d, v, s = result.design, result.verification, result.settings
+    if not d.feasible or d.schedule is None or d.schedule.empty:
+        return None
+    frames, temps = {}, {}
+    if v is not None and v.runs:
+        for which in ("cold", "hot"):
+            run = v.run(v.controller, which)
+            if run is None:
+                continue
+            tr = run.trace
+            frames[which] = _frame(result, tr, tr["pressure [Pa]"], tr["relief_flow [m³/s]"])
+            temps[which] = kelvin_to_celsius(run.temperature)
+        if frames:
+            return OperationFrames("verification", v.controller, frames, temps)
+    sch = d.schedule
+    for which, col, t in (
+        ("cold", "pressure_cold [Pa]", s.t_min),
+        ("hot", "pressure_hot [Pa]", s.t_max),
+    ):
+        frames[which] = _frame(result, sch, sch[col], sch["spill [m³/s]"])
+        temps[which] = kelvin_to_celsius(t)
+    return OperationFrames("schedule", "schedule", frames, temps)
+
+
+def setpoints_bar(result) -> dict:
+    """Switch settings from the verification, gauge [bar] and stroke fractions [-]."""
+    v = result.verification
+    if v is None or not v.setpoints:
+        return {}
+    out = {}
+    for key, value in v.setpoints.items():
+        if value is None or not np.isfinite(value):
+            continue
+        if key.endswith("_stroke"):
+            out[key] = float(value)
+        else:
+            out[key] = float(bar_g(value, result))
+    return out
+
+
+def verification_rows(result) -> list[dict]:
+    """Every simulated controller × temperature, in trade units."""
+    v = result.verification
+    if v is None:
+        return []
+    rows = []
+    for r in v.runs:
+        rows.append(
+            {
+                "controller": r.controller,
+                "recommended": r.controller == v.controller,
+                "temperature_c": kelvin_to_celsius(r.temperature),
+                "passed": bool(r.passed),
+                "min_margin_bar": bar_delta(r.min_margin),
+                "min_margin_time_s": r.min_margin_time,
+                "peak_pressure_bar": bar_g(r.peak_pressure, result),
+                "gas_temperature_min_c": kelvin_to_celsius(r.gas_temperature_min),
+                "gas_temperature_max_c": kelvin_to_celsius(r.gas_temperature_max),
+                "energy_per_cycle_kj": to_unit(r.energy_per_cycle, "kJ", "energy"),
+                "load_events_per_hour": r.load_events_per_hour,
+                "relief_volume_l": litres(r.relief_volume),
+                "cycles_to_steady": r.cycles_to_steady,
+                "reason": r.reason,
+            }
+        )
+    return rows
+
+
+# -- assumptions ---------------------------------------------------------------------------
+
+
+def assumptions(result) -> list[tuple[str, str]]:
+    """The assumptions and sources behind the numbers, as (topic, statement)."""
+    d, s, v, c = result.design, result.settings, result.verification, result.comparison
+    cs = c.settings
+    gas_text = (
+        "real nitrogen: R. Span et al., J. Phys. Chem. Ref. Data 29(6) (2000), via CoolProp"
+        if s.gas_model == "real"
+        else "ideal gas"
+    )
+    tau = v.time_constant if v is not None else s.time_constant
+    rows = [
+        ("gas model", gas_text),
+        ("gas process (sizing)", f"{d.process} (setting '{s.process}')"),
+        (
+            "thermal time constant",
+            f"{tau:g} s (Pourmovahed & Otis, ASME JDSMC 112(1) 1990; litre-size charges about "
+            "1–10 s, from memory)",
+        ),
+        (
+            "temperatures",
+            f"{kelvin_to_celsius(s.t_min):.0f} … {kelvin_to_celsius(s.t_max):.0f} °C; precharge "
+            "stated at 20 °C",
+        ),
+        (
+            "ambient pressure",
+            f"{bar_delta(s.p_ambient):.5g} bar absolute; all pressures shown are gauge",
+        ),
+        (
+            "line-loss allowance",
+            f"{bar_delta(s.line_loss):g} bar added to every required pressure (common practice, "
+            "no published source)",
+        ),
+        (
+            "relief margin",
+            f"{100 * s.relief_margin:g} % of the unload pressure, at least "
+            f"{bar_delta(s.relief_margin_min):g} bar (common practice, no published source)",
+        ),
+        (
+            "standby pressure",
+            f"{bar_delta(s.standby_pressure):g} bar while the pump is unloaded (common practice, "
+            "no published source)",
+        ),
+        (
+            "dwell limits",
+            f"pump stays loaded ≥ {s.min_loaded_dwell:g} s and unloaded ≥ "
+            f"{s.min_unloaded_dwell:g} s; at most "
+            f"{fmt(s.max_load_events_per_hour, 'g')} load events per hour (common practice, no "
+            "published source)",
+        ),
+        (
+            "accumulator type limits",
+            "pressure ratio, precharge rule and flow limits per type: common practice, no "
+            "published source (editable in the catalogue)",
+        ),
+    ]
+    if d.feasible:
+        rows.append(
+            (
+                "efficiencies",
+                f"pump overall {100 * d.pump.overall_efficiency:.1f} %, volumetric "
+                f"{100 * d.pump.volumetric_efficiency:.1f} %; motor "
+                f"{100 * d.motor.efficiency:.1f} % "
+                f"({d.motor.efficiency_class or 'class not stated'}), from the catalogue",
+            )
+        )
+    rows += [
+        (
+            "energy and money",
+            f"{cs.energy_price_per_kwh:.4g} {currency(result)}/kWh, "
+            f"{to_unit(cs.operating_time, 'h', 'time'):,.0f} h/year, "
+            f"{c.cycles_per_year:,.0f} cycles/year, {cs.years} years at "
+            f"{100 * cs.discount_rate:.1f} % discount, installation factor "
+            f"{cs.installation_factor:g}",
+        ),
+        (
+            "prices",
+            "prices are the user's catalogue prices; in the demo catalogue they are "
+            "placeholders, not quotes",
+        ),
+        (
+            "pressure-equipment category",
+            "EU Directive 2014/68/EU, Annex II (group 2 gases) from memory: check the directive "
+            "and local codes",
+        ),
+        (
+            "finance",
+            "present value of an annuity and payback (Brealey, Myers & Allen, Principles of "
+            "Corporate Finance, McGraw-Hill)",
+        ),
+    ]
+    return rows
+
+
+def notes(result) -> list[str]:
+    """Every note the stages left for the reader, in order: cycle, design, check, costs."""
+    out = list(result.cycle.notes) + list(result.design.notes) + list(result.design.stats.notes)
+    if result.verification is not None:
+        out += list(result.verification.notes)
+    out += list(result.comparison.notes)
+    seen, unique = set(), []
+    for n in out:
+        if n not in seen:
+            seen.add(n)
+            unique.append(n)
+    return unique

@@ -1,0 +1,456 @@
+"""Machine-readable exports: ``design.json``, ``schedule.csv`` and ``spec.csv``.
+
+The keys and columns follow DESIGN.md "Outputs (contract)": pressures in bar **gauge**,
+volumes in L, flows in L/min, power in kW, time in s, energy in kWh.  ``spec.csv`` is safe to
+open in a spreadsheet: text cells that start with ``= + - @``, a tab or a carriage return are
+prefixed with a single quote (OWASP, "CSV Injection"), and every text cell is quoted.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+
+import numpy as np
+import pandas as pd
+
+from optimiser import __version__
+from optimiser.cli._output import to_jsonable
+from optimiser.cycle import summarize
+from optimiser.errors import StowflowError
+from optimiser.gas import parse_process
+from optimiser.report import content, spec
+from optimiser.units import kelvin_to_celsius, to_unit
+
+__all__ = [
+    "SCHEDULE_COLUMNS",
+    "SCHEMA",
+    "design_json",
+    "design_record",
+    "neutralise",
+    "schedule_frame",
+    "spec_csv",
+    "spec_rows",
+]
+
+#: Schema tag of design.json.
+SCHEMA = "stowflow.design/1"
+
+#: The contract columns of schedule.csv, in order (extra columns follow).
+SCHEDULE_COLUMNS: tuple[str, ...] = (
+    "time [s]",
+    "demand [L/min]",
+    "pump_loaded",
+    "pump_flow [L/min]",
+    "accumulator_oil [L]",
+    "pressure [bar]",
+    "required_pressure [bar]",
+)
+
+# First characters a spreadsheet may read as a formula (OWASP CSV Injection), with their
+# full-width forms, which some spreadsheets fold to the ASCII ones.
+_FORMULA_START = ("=", "+", "-", "@", "\t", "\r", "\n", "＝", "＋", "－", "＠")
+
+
+def _num(x, digits: int | None = None):
+    """A finite float (rounded to ``digits`` decimals) or None."""
+    if x is None:
+        return None
+    x = float(x)
+    if not math.isfinite(x):
+        return None
+    return round(x, digits) if digits is not None else x
+
+
+def _kwh(j) -> float | None:
+    return _num(to_unit(j, "kWh", "energy") if j is not None else None, 3)
+
+
+def _process(label: str) -> tuple[str, float | None]:
+    try:
+        p = parse_process(label)
+    except StowflowError:
+        return str(label), None
+    return p.kind, _num(p.n, 4)
+
+
+def design_record(result) -> dict:
+    """The content of ``design.json``: the contract keys of DESIGN.md and more.
+
+    Parameters
+    ----------
+    result : StudyResult
+        A study's result (feasible or not, verified or not).
+
+    Returns
+    -------
+    dict
+        JSON-ready (no NaN: missing numbers are None).  Pressures bar gauge, volumes L, flows
+        L/min, power kW, energy kWh, time s, prices in ``costs.currency``.
+    """
+    d, s, v, _c = result.design, result.settings, result.verification, result.comparison
+    bar = content.bar_g
+    kind, n = _process(d.process)
+    rec: dict = {
+        "schema": SCHEMA,
+        "status": d.status,
+        "mip_gap": _num(d.mip_gap),
+        "reason": d.reason,
+        "gas_model": s.gas_model,
+        "process": kind,
+        "polytropic_index": n,
+        "temperature_c": {
+            "min": _num(kelvin_to_celsius(s.t_min), 3),
+            "max": _num(kelvin_to_celsius(s.t_max), 3),
+            "precharge_reference": 20.0,
+        },
+        "accumulator": None,
+        "pump": None,
+        "motor": None,
+        "setpoints": {"load_below_bar": None, "unload_above_bar": None},
+        "baseline": _baseline_record(result, "fixed"),
+        "verification": {"passed": None if v is None else bool(v.passed), "min_margin_bar": None},
+        "costs": {},
+    }
+    if d.feasible and d.bank is not None:
+        b = d.bank
+        rec["accumulator"] = {
+            "type": b.type,
+            "nominal_volume_l": _num(to_unit(b.option.nominal_volume, "L", "volume"), 6),
+            "count": int(b.count),
+            "total_gas_volume_l": _num(to_unit(b.gas_volume, "L", "volume"), 6),
+            "precharge_bar_at_20c": _num(bar(b.precharge, result), 3),
+            "min_pressure_bar": _num(bar(d.p_min, result), 3),
+            "max_pressure_bar": _num(bar(d.p_max, result), 3),
+            "max_allowable_pressure_bar": _num(bar(b.option.max_pressure, result), 3),
+            "name": b.option.name,
+            "unit_price": _num(b.option.price),
+        }
+        hint = spec.category_hint(result)
+        if hint is not None:
+            rec["accumulator"]["pressure_equipment_category"] = {
+                "category": hint[0],
+                "shell_volume_l": _num(hint[3], 6),
+                "note": hint[1],
+            }
+        table = spec.precharge_table(result)
+        rec["accumulator"]["precharge_table"] = [
+            {"temperature_c": _num(t, 3), "precharge_bar": _num(p, 3)}
+            for t, p in zip(table["temperature [°C]"], table["precharge [bar]"], strict=True)
+        ]
+    if d.feasible:
+        rec["pump"] = _pump_record(d.pump, result)
+        rec["motor"] = _motor_record(d.motor)
+        rec["relief_bar"] = _num(bar(d.relief, result), 3)
+        rec["installed_power_kw"] = _num(to_unit(d.installed_power, "kW", "power"), 6)
+    sp = content.setpoints_bar(result)
+    rec["setpoints"] = {
+        "load_below_bar": _num(sp.get("load_below"), 3),
+        "unload_above_bar": _num(sp.get("unload_above"), 3),
+        "source": "time-domain verification" if sp else "not derived (no verification)",
+    }
+    for key in ("load_below_stroke", "unload_above_stroke"):
+        if key in sp:
+            rec["setpoints"][key] = _num(sp[key], 4)
+    if v is not None:
+        rec["verification"] = {
+            "passed": bool(v.passed),
+            "min_margin_bar": _num(to_unit(v.min_margin, "bar", "pressure"), 3),
+            "controller": v.controller,
+            "reason": v.reason,
+            "time_constant_s": _num(v.time_constant),
+            "gas_model": v.gas_model,
+            "elapsed_s": _num(v.elapsed, 3),
+            "runs": [
+                {k: _jsonnum(x) for k, x in r.items()} for r in content.verification_rows(result)
+            ],
+            "notes": list(v.notes),
+        }
+    rec["costs"] = _costs_record(result)
+    lb = d.lower_bound_power
+    rec["lower_bound_power_kw"] = _num(to_unit(lb, "kW", "power"), 4)
+    rec["installed_to_lower_bound_ratio"] = (
+        _num(d.installed_power / lb, 4) if d.feasible and lb > 0 else None
+    )
+    rec["levels"] = {
+        "installed_power_kw": _num(
+            to_unit(d.levels.get("installed_power [W]", math.nan), "kW", "power"), 6
+        ),
+        "capex": _num(d.levels.get("capex")),
+        "energy_per_cycle_kj": _num(
+            to_unit(d.levels.get("energy_per_cycle [J]", math.nan), "kJ", "energy"), 4
+        ),
+    }
+    rec["baselines"] = [_baseline_record(result, k) for k in ("fixed", "compensated")]
+    st = d.stats
+    rec["search"] = {
+        "candidates": st.candidates,
+        "families_solved": st.families_solved,
+        "block": st.block,
+        "screen_time_s": _num(st.screen_time, 4),
+        "build_time_s": _num(st.build_time, 4),
+        "solve_time_s": _num(st.solve_time, 4),
+        "total_time_s": _num(st.total_time, 4),
+        "best_bound_kj": _num(to_unit(d.best_bound, "kJ", "energy"), 4),
+    }
+    rec["attempts"] = [
+        {
+            "extra_pressure_max_bar": _num(to_unit(a.extra_pressure_max, "bar", "pressure"), 3),
+            "status": a.status,
+            "passed": a.passed,
+            "min_margin_bar": _num(to_unit(a.min_margin, "bar", "pressure"), 3),
+        }
+        for a in result.attempts
+    ]
+    rec["name"] = result.name
+    rec["cycle"] = summarize(result.cycle).as_dict()
+    rec["settings"] = s.as_dict()
+    rec["notes"] = content.notes(result)
+    rec["safety"] = [*list(content.SAFETY_CAUTIONS), content.DISCLAIMER]
+    rec["generator"] = f"stowflow {__version__}"
+    return to_jsonable(rec)
+
+
+def _jsonnum(x):
+    if isinstance(x, float | np.floating):
+        return _num(x, 6)
+    return x
+
+
+def _pump_record(pump, result) -> dict:
+    """A catalogue pump in trade units (cm³/rev, rpm, L/min, bar gauge)."""
+    return {
+        "displacement_cm3": _num(to_unit(pump.displacement, "cm3", "displacement"), 6),
+        "speed_rpm": _num(to_unit(pump.speed, "rpm", "speed"), 6),
+        "flow_lpm": _num(to_unit(pump.flow, "L/min", "flow"), 4),
+        "max_pressure_bar": _num(content.bar_g(pump.max_pressure, result), 3),
+        "volumetric_efficiency": pump.volumetric_efficiency,
+        "overall_efficiency": pump.overall_efficiency,
+        "control": pump.control,
+        "name": pump.name,
+    }
+
+
+def _motor_record(motor) -> dict:
+    """A catalogue motor in trade units (kW)."""
+    return {
+        "rated_kw": _num(to_unit(motor.rated_power, "kW", "power"), 6),
+        "efficiency": motor.efficiency,
+        "efficiency_class": motor.efficiency_class,
+        "name": motor.name,
+    }
+
+
+def _baseline_record(result, kind: str) -> dict:
+    b = next((b for b in result.design.baselines if b.kind == kind), None)
+    o = result.comparison.option(kind)
+    rec = {
+        "kind": kind,
+        "pump": {"flow_lpm": None},
+        "motor": {"rated_kw": None},
+        "reason": o.reason,
+    }
+    if b is not None and b.pump is not None and b.motor is not None:
+        rec["pump"] = _pump_record(b.pump, result)
+        rec["motor"] = _motor_record(b.motor)
+        rec["pressure_bar"] = _num(content.bar_g(b.pressure, result), 3)
+        rec["capex"] = _num(o.capex, 2)
+        rec["energy_per_year_kwh"] = _kwh(o.energy_per_year)
+    return rec
+
+
+def _costs_record(result) -> dict:
+    c = result.comparison
+    d = c.option("design")
+    fixed = c.option("fixed")
+    ref = c.reference
+    options = {}
+    for o in c.options:
+        options[o.key] = {
+            "label": o.label,
+            "feasible": o.feasible,
+            "reason": o.reason,
+            "installed_power_kw": _num(to_unit(o.installed_power, "kW", "power"), 6),
+            "component_price": _num(o.component_price, 2),
+            "capex": _num(o.capex, 2),
+            "energy_per_cycle_kj": _num(to_unit(o.energy_per_cycle, "kJ", "energy"), 4),
+            "energy_source": o.energy_source or None,
+            "energy_per_year_kwh": _kwh(o.energy_per_year),
+            "energy_cost_per_year": _num(o.energy_cost_per_year, 2),
+            "tco": _num(o.tco, 2),
+            "mean_power_kw": _num(to_unit(o.mean_power, "kW", "power"), 4),
+            "motor_load": _num(o.motor_load, 4),
+        }
+    paybacks = {
+        p.baseline: {
+            "installed_power_saved_kw": _num(to_unit(p.installed_power_saved, "kW", "power"), 6),
+            "extra_capex": _num(p.extra_capex, 2),
+            "savings_per_year": _num(p.savings_per_year, 2),
+            "energy_saved_per_year_kwh": _kwh(p.energy_saved_per_year),
+            "tco_saving": _num(p.tco_saving, 2),
+            "simple_payback_years": _num(p.simple_years, 3),
+            "discounted_payback_years": _num(p.discounted_years, 3),
+            "pays_back": p.simple_years is not None,
+            "note": p.note,
+        }
+        for p in c.paybacks
+    }
+    return {
+        "capex": _num(d.capex, 2),
+        "energy_per_year": _kwh(d.energy_per_year),
+        "baseline_capex": _num(fixed.capex, 2),
+        "baseline_energy_per_year": _kwh(fixed.energy_per_year),
+        "currency": content.currency(result),
+        "energy_unit": "kWh",
+        "energy_cost_per_year": _num(d.energy_cost_per_year, 2),
+        "baseline_energy_cost_per_year": _num(fixed.energy_cost_per_year, 2),
+        "tco": _num(d.tco, 2),
+        "baseline_tco": _num(fixed.tco, 2),
+        "payback_years": None if ref is None else _num(ref.simple_years, 3),
+        "discounted_payback_years": None if ref is None else _num(ref.discounted_years, 3),
+        "payback_against": None if ref is None else ref.baseline,
+        "settings": c.settings.as_dict() | {"currency": content.currency(result)},
+        "cycle_time_s": _num(c.cycle_time),
+        "cycles_per_year": _num(c.cycles_per_year, 3),
+        "options": options,
+        "paybacks": paybacks,
+        "notes": list(c.notes),
+    }
+
+
+def design_json(result) -> str:
+    """``design.json`` as text (UTF-8, indented, no NaN)."""
+    return json.dumps(design_record(result), indent=2, ensure_ascii=False, allow_nan=False) + "\n"
+
+
+def schedule_frame(result) -> pd.DataFrame:
+    """``schedule.csv`` as a table: one row per time step of the cycle grid.
+
+    Returns
+    -------
+    pandas.DataFrame
+        The contract columns (:data:`SCHEDULE_COLUMNS`; ``pressure [bar]`` is the quasi-static
+        accumulator pressure at the coldest temperature, where the margin is least) followed
+        by ``pressure_cold [bar]``, ``pressure_hot [bar]``, ``relief_flow [L/min]`` (flow over
+        the relief valve, the design's ``spill``), ``consumer_pressure [bar]``
+        (the cycle's requirement without the line-loss allowance) and ``label``.  Without a
+        design the design columns are empty.
+    """
+    cyc = result.cycle.frame()
+    sch = result.design.schedule
+    n = result.cycle.n_steps
+    out = pd.DataFrame({"time [s]": cyc.index.to_numpy(dtype=float)})
+    out["demand [L/min]"] = cyc["demand [L/min]"].to_numpy()
+    if sch is not None and not sch.empty and len(sch) == n:
+        bar = content.bar_g
+        out["pump_loaded"] = sch["pump_loaded [-]"].to_numpy().astype(int)
+        out["pump_flow [L/min]"] = to_unit(sch["pump_flow [m³/s]"].to_numpy(), "L/min", "flow")
+        out["accumulator_oil [L]"] = to_unit(sch["accumulator_oil [m³]"].to_numpy(), "L", "volume")
+        out["pressure [bar]"] = bar(sch["pressure_cold [Pa]"].to_numpy(), result)
+        out["required_pressure [bar]"] = bar(sch["required_pressure [Pa]"].to_numpy(), result)
+        out["pressure_cold [bar]"] = out["pressure [bar]"]
+        out["pressure_hot [bar]"] = bar(sch["pressure_hot [Pa]"].to_numpy(), result)
+        out["relief_flow [L/min]"] = to_unit(sch["spill [m³/s]"].to_numpy(), "L/min", "flow")
+    else:
+        for col in SCHEDULE_COLUMNS[2:]:
+            out[col] = pd.array([pd.NA] * n, dtype="Int64" if col == "pump_loaded" else "Float64")
+        out["required_pressure [bar]"] = cyc["required_pressure [bar]"].to_numpy()
+    out["consumer_pressure [bar]"] = cyc["required_pressure [bar]"].to_numpy()
+    # Round away binary noise (0.15000000000000002 s): µs, µbar, µL are far below any use.
+    for col in out.columns:
+        if out[col].dtype.kind == "f":
+            out[col] = out[col].round(9 if col == "time [s]" else 6)
+    out["label"] = [neutralise(x) for x in cyc["label"]]
+    return out
+
+
+def neutralise(cell):
+    """Make a text cell inert in a spreadsheet (OWASP CSV Injection guidance).
+
+    A string that starts with ``=``, ``+``, ``-``, ``@``, a tab, a carriage return or a line
+    feed (or their full-width forms) gets a leading single quote; numbers and None pass.
+    """
+    if isinstance(cell, str) and cell.startswith(_FORMULA_START):
+        return "'" + cell
+    return cell
+
+
+def spec_rows(result) -> list[dict]:
+    """The procurement line items of ``spec.csv``, one dict per row (cells not yet neutralised).
+
+    Columns: ``item``, ``description``, ``quantity [-]``, ``unit_price [CUR]``, ``total [CUR]``
+    and ``notes``, with CUR the currency label.  Unpriced items have empty prices; an
+    installation line appears when the installation factor is not 1, and a last line gives the
+    total of the priced lines (the capex of the comparison).
+    """
+    cur = content.currency(result)
+    up, tot = f"unit_price [{cur}]", f"total [{cur}]"
+    rows = []
+    items = spec.spec_items(result)
+    if not items:
+        rows.append(
+            {
+                "item": "no design",
+                "description": result.design.reason or "no design was found",
+                "quantity [-]": 0,
+                up: None,
+                tot: None,
+                "notes": f"study: {result.name}",
+            }
+        )
+        return rows
+    for it in items:
+        rows.append(
+            {
+                "item": it.item,
+                "description": it.description,
+                "quantity [-]": it.quantity,
+                up: it.unit_price,
+                tot: it.total,
+                "notes": it.notes,
+            }
+        )
+    o = result.comparison.option("design")
+    factor = result.comparison.settings.installation_factor
+    if factor != 1.0 and o.feasible:
+        rows.append(
+            {
+                "item": "installation",
+                "description": f"installation allowance: factor {factor:g} on component prices",
+                "quantity [-]": 1,
+                up: o.capex - o.component_price,
+                tot: o.capex - o.component_price,
+                "notes": "cost setting, not a quote",
+            }
+        )
+    rows.append(
+        {
+            "item": "total",
+            "description": "total of the priced lines (capex of this design)",
+            "quantity [-]": None,
+            up: None,
+            tot: o.capex if o.feasible else None,
+            "notes": f"study: {result.name}; unpriced lines to be quoted",
+        }
+    )
+    return rows
+
+
+def spec_csv(result) -> str:
+    """``spec.csv`` as text: every text cell quoted and neutralised, UTF-8."""
+    rows = spec_rows(result)
+    buf = io.StringIO()
+    w = csv.writer(buf, quoting=csv.QUOTE_NONNUMERIC, lineterminator="\n")
+    header = list(rows[0])
+    w.writerow([neutralise(h) for h in header])
+    for r in rows:
+        cells = []
+        for h in header:
+            x = r[h]
+            if isinstance(x, float) and not math.isfinite(x):
+                x = None
+            cells.append("" if x is None else neutralise(x))
+        w.writerow(cells)
+    return buf.getvalue()

@@ -1,0 +1,299 @@
+"""What to buy: the procurement items of a design, and the commissioning precharge table.
+
+Rendering only, like :mod:`optimiser.report.content` whose helpers it uses: every number comes
+from the :class:`StudyResult`; the precharge at other temperatures comes from
+:func:`optimiser.fill.precharge.precharge_table` and the category hint from
+:func:`optimiser.accumulator.pressure_equipment_category`.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+import pandas as pd
+
+from optimiser.accumulator import pressure_equipment_category, rules_for, shell_volume
+from optimiser.fill.precharge import precharge_table as isochore_table
+from optimiser.report.content import (
+    bar_delta,
+    bar_g,
+    fmt,
+    kilowatts,
+    litres,
+    lpm,
+    setpoints_bar,
+)
+from optimiser.units import T_REF, celsius_to_kelvin, kelvin_to_celsius, si_factor, to_unit
+
+__all__ = ["SpecItem", "category_hint", "precharge_table", "spec_items"]
+
+_PUMP_WORDS = {"fixed": "fixed-displacement", "pressure-compensated": "pressure-compensated"}
+
+
+@dataclass(frozen=True)
+class SpecItem:
+    """One procurement item.
+
+    Attributes
+    ----------
+    item : str
+        Short name (accumulator, pump, motor, ...).
+    description : str
+        What to buy, one line.
+    quantity : int
+        Units to buy, [-].
+    unit_price : float or None
+        Catalogue price of one unit (None: not in the catalogue, to be quoted), [currency].
+    notes : str
+        Catalogue name and remarks.
+    details : tuple of (str, str)
+        Property and value (with unit) for the item's table.
+    """
+
+    item: str
+    description: str
+    quantity: int
+    unit_price: float | None
+    notes: str
+    details: tuple[tuple[str, str], ...]
+
+    @property
+    def total(self) -> float | None:
+        """Quantity × unit price, [currency] (None when not priced)."""
+        return None if self.unit_price is None else self.quantity * self.unit_price
+
+
+def category_hint(result) -> tuple[str, str, float, float] | None:
+    """Category hint of one accumulator of the bank: (category, note, PS bar, shell L)."""
+    bank = result.design.bank
+    if bank is None:
+        return None
+    opt = bank.option
+    rules = rules_for(opt.type, result.catalogue.limits.get(opt.type))
+    shell_l = litres(shell_volume(opt.type, opt.nominal_volume, rules))
+    ps = float(bar_g(opt.max_pressure, result))
+    cat, note = pressure_equipment_category(ps, shell_l)
+    return cat, note, ps, shell_l
+
+
+def spec_items(result) -> list[SpecItem]:
+    """The procurement line items of a feasible design (empty when infeasible)."""
+    d, s = result.design, result.settings
+    if not d.feasible:
+        return []
+    items: list[SpecItem] = []
+    t_lo, t_hi = kelvin_to_celsius(s.t_min), kelvin_to_celsius(s.t_max)
+    if d.bank is not None:
+        bank, opt = d.bank, d.bank.option
+        cat, _, ps, shell_l = category_hint(result)
+        p0 = bar_g(bank.precharge, result)
+        details = [
+            ("type", opt.type),
+            ("nominal volume (gas volume at precharge)", fmt(litres(opt.nominal_volume), "g", "L")),
+            ("count", f"{bank.count}"),
+            ("total gas volume", fmt(litres(bank.gas_volume), "g", "L")),
+            ("maximum allowable pressure PS", fmt(ps, ".0f", "bar")),
+            ("precharge at 20 °C", fmt(p0, ".1f", "bar")),
+            ("precharge gas", "nitrogen only (never air or oxygen)"),
+            (
+                "working pressure window",
+                f"{bar_g(d.p_min, result):.1f} … {bar_g(d.p_max, result):.1f} bar",
+            ),
+            ("fluid", "the machine's hydraulic oil; state type and grade on the order"),
+            ("operating temperature", f"{t_lo:.0f} … {t_hi:.0f} °C"),
+            (
+                "pressure-equipment category hint",
+                f"{cat} (PS·V = {ps * shell_l:,.0f} bar·L per vessel, shell {shell_l:.3g} L)",
+            ),
+        ]
+        if opt.bore > 0:
+            details.insert(2, ("piston bore", fmt(to_unit(opt.bore, "mm", "length"), "g", "mm")))
+        if opt.swept_volume:
+            details.insert(3, ("swept volume", fmt(litres(opt.swept_volume), "g", "L")))
+        items.append(
+            SpecItem(
+                "accumulator",
+                f"{opt.type} accumulator {litres(opt.nominal_volume):g} L, PS {ps:.0f} bar, "
+                f"precharge {p0:.1f} bar nitrogen at 20 °C",
+                bank.count,
+                opt.price,
+                f"catalogue: {opt.name}; category hint {cat} (from memory: check Directive "
+                "2014/68/EU and local codes)",
+                tuple(details),
+            )
+        )
+    pump = d.pump
+    disp = to_unit(pump.displacement, "cm3", "displacement")
+    rpm = to_unit(pump.speed, "rpm", "speed")
+    items.append(
+        SpecItem(
+            "pump",
+            f"{_PUMP_WORDS.get(pump.control, pump.control)} pump {disp:g} cm³/rev at {rpm:g} "
+            f"rpm, {lpm(pump.flow):.1f} L/min, "
+            f"max {bar_g(pump.max_pressure, result):.0f} bar",
+            1,
+            pump.price,
+            f"catalogue: {pump.name}",
+            (
+                ("control", pump.control),
+                ("displacement", fmt(disp, "g", "cm³/rev")),
+                ("speed", fmt(rpm, "g", "rpm")),
+                ("effective flow", fmt(lpm(pump.flow), ".1f", "L/min")),
+                ("maximum pressure", fmt(bar_g(pump.max_pressure, result), ".0f", "bar")),
+                ("volumetric efficiency", fmt(100 * pump.volumetric_efficiency, ".1f", "%")),
+                ("overall efficiency", fmt(100 * pump.overall_efficiency, ".1f", "%")),
+            ),
+        )
+    )
+    motor = d.motor
+    cls = motor.efficiency_class or "not stated"
+    items.append(
+        SpecItem(
+            "motor",
+            f"electric motor {kilowatts(motor.rated_power):g} kW, "
+            + (f"{motor.efficiency_class}, " if motor.efficiency_class else "")
+            + f"efficiency {100 * motor.efficiency:.1f} %",
+            1,
+            motor.price,
+            f"catalogue: {motor.name}",
+            (
+                ("rated power", fmt(kilowatts(motor.rated_power), "g", "kW")),
+                ("efficiency at rated load", fmt(100 * motor.efficiency, ".1f", "%")),
+                ("efficiency class", cls),
+            ),
+        )
+    )
+    relief = bar_g(d.relief, result)
+    guard = ""
+    if d.bank is not None:
+        ps = bar_g(d.bank.option.max_pressure, result)
+        guard = f" (at or below the accumulator's PS {ps:.0f} bar)"
+    items.append(
+        SpecItem(
+            "relief valve",
+            f"pressure relief valve set to {relief:.0f} bar{guard}, for {lpm(pump.flow):.1f} L/min",
+            1,
+            None,
+            "not in the catalogue: to be quoted",
+            (
+                ("cracking pressure setting", fmt(relief, ".0f", "bar")),
+                ("flow capacity at least", fmt(lpm(pump.flow), ".1f", "L/min")),
+                ("protects", "pump line and accumulator bank" if d.bank else "pump line"),
+            ),
+        )
+    )
+    if d.bank is not None:
+        items.append(_switch_item(result))
+        items.append(
+            SpecItem(
+                "unloading valve",
+                f"solenoid unloading valve for {lpm(pump.flow):.1f} L/min, standby at most "
+                f"{bar_delta(s.standby_pressure):.0f} bar",
+                1,
+                None,
+                "not in the catalogue: to be quoted",
+                (("flow", fmt(lpm(pump.flow), ".1f", "L/min")),),
+            )
+        )
+        items.append(
+            SpecItem(
+                "accumulator safety block",
+                "shut-off and safety block with automatic discharge valve at shutdown and a "
+                "pressure gauge port",
+                1,
+                None,
+                "one per bank (common practice, no published source); not in the catalogue",
+                (
+                    ("function", "isolate the bank, discharge it automatically at shutdown"),
+                    ("gauge port", "to check 'discharged' before any work"),
+                ),
+            )
+        )
+    return items
+
+
+def _switch_item(result) -> SpecItem:
+    """The load/unload control the verification recommends, with its settings."""
+    s, v = result.settings, result.verification
+    sp = setpoints_bar(result)
+    standby = (
+        "standby (unloaded) pressure at most",
+        fmt(bar_delta(s.standby_pressure), ".0f", "bar"),
+    )
+    source = "settings from the time-domain verification; not in the catalogue"
+    ctrl = v.controller if v is not None else None
+    if ctrl == "position-switch" and "load_below_stroke" in sp:
+        lo, hi = 100 * sp["load_below_stroke"], 100 * sp.get("unload_above_stroke", math.nan)
+        details = [
+            ("load the pump below piston stroke", fmt(lo, ".0f", "%")),
+            ("unload the pump above piston stroke", fmt(hi, ".0f", "%")),
+            standby,
+        ]
+        if "load_below" in sp:
+            details.append(
+                (
+                    "pressure equivalent (reference)",
+                    f"{sp['load_below']:.1f} … {sp.get('unload_above', math.nan):.1f} bar",
+                )
+            )
+        desc = f"piston position switch: load below {lo:.0f} % stroke, unload above {hi:.0f} %"
+        return SpecItem("position switch", desc, 1, None, source, tuple(details))
+    if ctrl == "schedule":
+        return SpecItem(
+            "load/unload control",
+            "timed load/unload of the pump following schedule.csv (machine control)",
+            1,
+            None,
+            "the verification recommends the open-loop schedule; no switch settings",
+            (standby,),
+        )
+    if "load_below" in sp:
+        details = [
+            ("load the pump below", fmt(sp["load_below"], ".1f", "bar")),
+            ("unload the pump above", fmt(sp.get("unload_above"), ".1f", "bar")),
+            standby,
+        ]
+        desc = (
+            f"pressure switch: load below {sp['load_below']:.1f} bar, unload above "
+            f"{sp.get('unload_above', math.nan):.1f} bar"
+        )
+        return SpecItem("pressure switch", desc, 1, None, source, tuple(details))
+    return SpecItem(
+        "pressure switch",
+        "pressure switch for load/unload (settings: run the verification)",
+        1,
+        None,
+        "settings need the time-domain verification; not in the catalogue",
+        (standby,),
+    )
+
+
+def precharge_table(result, step_c: float = 5.0, beyond_c: float = 10.0) -> pd.DataFrame | None:
+    """Precharge to set at each temperature so that it is the design value at 20 °C.
+
+    Real-gas (or ideal-gas, as the study) isochoric scaling by
+    :func:`optimiser.fill.precharge.precharge_table` (built on
+    :func:`optimiser.gas.precharge_at`), every ``step_c`` from ``beyond_c`` below the coldest
+    to ``beyond_c`` above the hottest operating temperature, 20 °C always included.
+
+    Returns
+    -------
+    pandas.DataFrame or None
+        ``temperature [°C]``, ``precharge [bar]`` (gauge), ``in_range`` (bool); None without an
+        accumulator.
+    """
+    d, s = result.design, result.settings
+    if not d.feasible or d.bank is None:
+        return None
+    lo = math.floor((kelvin_to_celsius(s.t_min) - beyond_c) / step_c) * step_c
+    hi = math.ceil((kelvin_to_celsius(s.t_max) + beyond_c) / step_c) * step_c
+    t_c = np.unique(np.append(np.arange(lo, hi + step_c / 2, step_c), kelvin_to_celsius(T_REF)))
+    t_k = celsius_to_kelvin(t_c)
+    table = isochore_table(d.bank.precharge, t_k, s.gas_model)
+    p = table["precharge_absolute [bar]"].to_numpy() * si_factor("bar", "pressure")
+    inside = (t_k >= s.t_min - 1e-9) & (t_k <= s.t_max + 1e-9)
+    return pd.DataFrame(
+        {"temperature [°C]": t_c, "precharge [bar]": bar_g(p, result), "in_range": inside}
+    )

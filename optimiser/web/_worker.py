@@ -1,0 +1,83 @@
+"""What runs inside a job's worker process: the pipeline, the report files, progress messages.
+
+The server's fork server imports :mod:`optimiser.web._preload` once before it forks any job
+(see :mod:`optimiser.web.jobs`): that loads this module with the pipeline and the report and
+calls :func:`warm_up` to fill the nitrogen property caches, so each job starts warm in a
+fraction of a second.  A job talks to the server through one pipe with small tuples:
+
+* ``("progress", fraction [-], label)`` while the pipeline runs (at most every 0.2 s, and at
+  every change of stage);
+* then one of ``("done", summary)``, ``("error", message)`` for a
+  :class:`~optimiser.errors.StowflowError` (one line, as the CLI prints it) or
+  ``("crash", message)`` for a bug (the traceback goes to the server's stderr).
+"""
+
+from __future__ import annotations
+
+import math
+import sys
+import time
+import traceback
+from multiprocessing.connection import Connection
+
+from optimiser.errors import StowflowError
+from optimiser.gas import density
+from optimiser.pipeline import Study, run
+from optimiser.report import write_study
+
+__all__ = ["PROGRESS_INTERVAL", "run_job", "warm_up"]
+
+#: Least time between two progress messages of the same stage, [s].
+PROGRESS_INTERVAL = 0.2
+
+
+def warm_up() -> None:
+    """Fill the real-gas property caches once (about 2 s), before any job is forked."""
+    density(2.0e7, 293.15, "real", method="direct")
+
+
+def run_job(conn: Connection, study: Study, out_dir: str) -> None:
+    """Run one study and write its report and exports to ``out_dir``; report on ``conn``.
+
+    Parameters
+    ----------
+    conn : multiprocessing.connection.Connection
+        Write end of the job's pipe.
+    study : Study
+        The study, cycle and catalogue already parsed.
+    out_dir : str
+        The study's folder (server-made, inside the server's temporary folder).
+    """
+    last = {"t": -math.inf, "label": None}
+
+    def progress(fraction: float, label: str) -> None:
+        now = time.monotonic()
+        if label != last["label"] or now - last["t"] >= PROGRESS_INTERVAL:
+            last["t"], last["label"] = now, label
+            conn.send(("progress", float(fraction), str(label)))
+
+    try:
+        t0 = time.perf_counter()
+        result = run(study, progress=progress)
+        progress(1.0, "writing the report")
+        write_study(result, out_dir)
+        d, v = result.design, result.verification
+        conn.send(
+            (
+                "done",
+                {
+                    "status": d.status,
+                    "reason": d.reason,
+                    "mip_gap": float(d.mip_gap),
+                    "verified": None if v is None else bool(v.passed),
+                    "seconds": time.perf_counter() - t0,
+                },
+            )
+        )
+    except StowflowError as exc:
+        conn.send(("error", str(exc)))
+    except Exception as exc:
+        traceback.print_exc(file=sys.stderr)
+        conn.send(("crash", f"{type(exc).__name__}: {exc}"))
+    finally:
+        conn.close()

@@ -1,0 +1,378 @@
+"""The local web page: upload a duty cycle, watch the design run, read and download the report.
+
+A thin shell over :func:`optimiser.pipeline.run` and :func:`optimiser.report.write_study`:
+the form's text goes to the library's parsers (:mod:`optimiser.web.forms`), the design runs in
+a worker process (:mod:`optimiser.web.jobs`), and the report and exports are the files the
+command line writes.
+
+Framework: Starlette (routing, templates, static files, test client), served by uvicorn,
+python-multipart as the streaming form parser, Jinja2 for the pages.  FastAPI would add request
+models, dependency injection and an OpenAPI schema; this page has no JSON API to describe and
+validates nothing itself (the library's parsers do), so it adds nothing we need.
+
+Routes
+------
+``GET /``                              upload form
+``POST /studies``                      upload → 303 to the study (or the form with the error)
+``GET /studies``                       the studies run in this server's life
+``GET /studies/{id}``                  progress, then the result with the report inline
+``GET /studies/{id}/status``           progress as JSON (the page polls it)
+``GET /studies/{id}/report``           report.html for the page's iframe (sandboxed)
+``GET /studies/{id}/files/{name}``     download; name ∈ report.html, design.json,
+                                       schedule.csv, spec.csv
+``GET /static/…``                      the page's CSS and JavaScript
+"""
+
+from __future__ import annotations
+
+import contextlib
+import datetime as _dt
+import ipaddress
+import os
+import re
+from dataclasses import dataclass, field
+from pathlib import Path
+from urllib.parse import urlsplit
+
+import jinja2
+from starlette.applications import Starlette
+from starlette.concurrency import run_in_threadpool
+from starlette.exceptions import HTTPException
+from starlette.middleware import Middleware
+from starlette.middleware.trustedhost import TrustedHostMiddleware
+from starlette.requests import Request
+from starlette.responses import FileResponse, JSONResponse, RedirectResponse, Response
+from starlette.routing import Mount, Route
+from starlette.staticfiles import StaticFiles
+from starlette.templating import Jinja2Templates
+
+from optimiser import __version__
+from optimiser.catalogue import default_catalogue_path
+from optimiser.errors import StowflowError
+from optimiser.report import OUTPUTS
+from optimiser.report.content import DISCLAIMER, SAFETY_CAUTIONS
+from optimiser.web.forms import (
+    CATALOGUE_FIELD,
+    CYCLE_FIELD,
+    DEMO_FIELD,
+    FILE_FIELDS,
+    TEXT_FIELDS,
+    FormLimits,
+    build_study,
+    form_sections,
+)
+from optimiser.web.jobs import Job, JobManager, QueueFull
+from optimiser.web.upload import UploadError, megabytes, read_form
+
+__all__ = ["LOOPBACK_HOSTS", "ServerConfig", "create_app", "is_loopback"]
+
+HERE = Path(__file__).resolve().parent
+#: Host names a loopback-bound server answers to (others are refused: DNS rebinding).
+LOOPBACK_HOSTS: tuple[str, ...] = ("127.0.0.1", "localhost", "::1", "[::1]")
+#: Lines a cycle file may have beyond its data rows (header, comments, blank lines), [-].
+EXTRA_LINES = 1_000
+_ID = re.compile(r"[0-9a-f]{16}")
+
+_MEDIA = {
+    "report.html": "text/html; charset=utf-8",
+    "design.json": "application/json",
+    "schedule.csv": "text/csv; charset=utf-8",
+    "spec.csv": "text/csv; charset=utf-8",
+}
+#: Our pages: our own script and style files only.
+PAGE_CSP = (
+    "default-src 'none'; script-src 'self'; style-src 'self'; img-src 'self' data:; "
+    "connect-src 'self'; frame-src 'self'; form-action 'self'; base-uri 'none'; "
+    "frame-ancestors 'none'"
+)
+#: The report: self-contained, its inline Plotly scripts run, but in a sandbox (an opaque
+#: origin: no access to this page, its cookies or its requests), and it may fetch nothing.
+REPORT_CSP = (
+    "default-src 'none'; script-src 'unsafe-inline'; style-src 'unsafe-inline'; "
+    "img-src data: blob:; font-src data:; base-uri 'none'; form-action 'none'; "
+    "frame-ancestors 'self'; sandbox allow-scripts allow-downloads"
+)
+
+
+def is_loopback(host: str) -> bool:
+    """Whether ``host`` (a name or an address) stays on this machine."""
+    if host.strip("[]") == "localhost":
+        return True
+    try:
+        return ipaddress.ip_address(host.strip("[]")).is_loopback
+    except ValueError:
+        return False
+
+
+def _default_workers() -> int:
+    return max(1, (os.cpu_count() or 2) // 2)
+
+
+@dataclass(frozen=True)
+class ServerConfig:
+    """Limits and sizes of one server.
+
+    Attributes
+    ----------
+    workers : int
+        Design jobs running at once, [-].
+    queue : int
+        Design jobs waiting for a worker, [-]; more get 503 with Retry-After.
+    time_limit : float
+        Wall-clock limit of one design job; past it the job is killed, [s].
+    max_upload_bytes : int
+        Most bytes of one upload (files and fields together), [B].
+    max_rows : int
+        Most data rows of a cycle, [-].
+    max_studies : int
+        Studies kept; older finished ones are deleted, [-].
+    allowed_hosts : tuple of str
+        Host header values answered (``("*",)`` for any).
+    demo_cycle : pathlib.Path or None
+        Cycle of the "try the demo cycle" button (default: the bundled forming press).
+    """
+
+    workers: int = field(default_factory=_default_workers)
+    queue: int = 8
+    time_limit: float = 60.0
+    max_upload_bytes: int = 5_000_000
+    max_rows: int = 20_000
+    max_studies: int = 100
+    allowed_hosts: tuple[str, ...] = LOOPBACK_HOSTS
+    demo_cycle: Path | None = None
+
+    @property
+    def limits(self) -> FormLimits:
+        """The limits the form quotes and enforces."""
+        return FormLimits(max_rows=self.max_rows, job_time_limit=self.time_limit)
+
+
+class SecurityHeaders:
+    """ASGI middleware: security headers on every response, unless a route set its own."""
+
+    def __init__(self, app) -> None:
+        self.app = app
+
+    async def __call__(self, scope, receive, send) -> None:
+        if scope["type"] != "http":
+            await self.app(scope, receive, send)
+            return
+        static = scope["path"].startswith("/static/")
+
+        async def send_with_headers(message) -> None:
+            if message["type"] == "http.response.start":
+                headers = list(message.get("headers", []))
+                present = {k.lower() for k, _ in headers}
+                defaults = {
+                    b"x-content-type-options": b"nosniff",
+                    b"referrer-policy": b"no-referrer",
+                    b"cross-origin-opener-policy": b"same-origin",
+                    b"cross-origin-resource-policy": b"same-origin",
+                    b"content-security-policy": PAGE_CSP.encode(),
+                    b"x-frame-options": b"DENY",
+                    b"cache-control": b"no-cache" if static else b"no-store",
+                }
+                headers += [(k, v) for k, v in defaults.items() if k not in present]
+                message = {**message, "headers": headers}
+            await send(message)
+
+        await self.app(scope, receive, send_with_headers)
+
+
+def create_app(config: ServerConfig | None = None) -> Starlette:
+    """Build the web application.
+
+    Parameters
+    ----------
+    config : ServerConfig, optional
+        Limits and sizes (defaults: loopback hosts, 5 MB, 20 000 rows, 60 s per design).
+
+    Returns
+    -------
+    starlette.applications.Starlette
+        The ASGI application; its lifespan starts the workers and, at shutdown, kills them
+        and removes the temporary folder.
+    """
+    cfg = config or ServerConfig()
+    demo_cycle = cfg.demo_cycle or default_catalogue_path().parent / "forming_press.csv"
+    limits = cfg.limits
+    sections = form_sections(limits)
+    manager = JobManager(
+        workers=cfg.workers,
+        queue=cfg.queue,
+        time_limit=cfg.time_limit,
+        max_studies=cfg.max_studies,
+    )
+    env = jinja2.Environment(
+        loader=jinja2.FileSystemLoader(HERE / "templates"),
+        autoescape=True,
+        undefined=jinja2.StrictUndefined,
+    )
+    env.globals.update(
+        version=__version__,
+        cautions=SAFETY_CAUTIONS,
+        disclaimer=DISCLAIMER,
+        max_upload=megabytes(cfg.max_upload_bytes),
+        max_rows=cfg.max_rows,
+        time_limit=cfg.time_limit,
+    )
+    env.filters["clock"] = lambda t: _dt.datetime.fromtimestamp(t).strftime("%H:%M:%S")
+    templates = Jinja2Templates(env=env)
+
+    def page(request: Request, name: str, status: int = 200, headers=None, **context):
+        return templates.TemplateResponse(
+            request, name, {"nav": name, **context}, status_code=status, headers=headers
+        )
+
+    def form_page(request: Request, *, error: str = "", values=None, status: int = 200, **kw):
+        return page(
+            request,
+            "index.html",
+            status,
+            sections=sections,
+            error=error,
+            values=values or {},
+            cycle_field=CYCLE_FIELD,
+            catalogue_field=CATALOGUE_FIELD,
+            demo_field=DEMO_FIELD,
+            **kw,
+        )
+
+    def busy(request: Request, retry_after: int, values=None) -> Response:
+        return form_page(
+            request,
+            error=(
+                f"all {cfg.workers} worker(s) are busy and {cfg.queue} design(s) are waiting; "
+                f"try again in about {retry_after} s"
+            ),
+            values=values,
+            status=503,
+            headers={"Retry-After": str(retry_after)},
+        )
+
+    def job_or_404(request: Request) -> Job:
+        sid = request.path_params["sid"]
+        job = manager.get(sid) if _ID.fullmatch(sid) else None
+        if job is None:
+            raise HTTPException(404, "no study with this id on this server")
+        return job
+
+    async def index(request: Request) -> Response:
+        return form_page(request)
+
+    async def submit(request: Request) -> Response:
+        origin = request.headers.get("origin")
+        if origin and origin != "null" and urlsplit(origin).netloc != request.url.netloc:
+            raise HTTPException(403, "form posted from another site; use this page's form")
+        if manager.full():
+            return busy(request, manager.retry_after())
+        try:
+            form = await read_form(
+                request.headers,
+                request.stream(),
+                max_bytes=cfg.max_upload_bytes,
+                text_fields=TEXT_FIELDS,
+                file_fields=FILE_FIELDS,
+                max_lines={CYCLE_FIELD: (cfg.max_rows + EXTRA_LINES, cfg.max_rows)},
+            )
+        except UploadError as exc:
+            return form_page(request, error=str(exc), status=exc.status)
+        values = {k: v for k, v in form.fields.items() if k != DEMO_FIELD}
+        try:
+            study, source = await run_in_threadpool(build_study, form, limits, demo_cycle)
+        except StowflowError as exc:
+            return form_page(request, error=str(exc), values=values, status=422)
+        try:
+            job = manager.submit(study, name=study.name or "study", source=source)
+        except QueueFull as exc:
+            return busy(request, exc.retry_after, values)
+        return RedirectResponse(f"/studies/{job.id}", status_code=303)
+
+    async def studies(request: Request) -> Response:
+        jobs = list(reversed(manager.jobs.values()))
+        return page(request, "studies.html", jobs=jobs, manager=manager)
+
+    async def study(request: Request) -> Response:
+        job = job_or_404(request)
+        return page(
+            request,
+            "study.html",
+            job=job,
+            position=manager.queue_position(job),
+            outputs=OUTPUTS,
+        )
+
+    async def status(request: Request) -> Response:
+        job = job_or_404(request)
+        return JSONResponse(
+            {
+                "id": job.id,
+                "state": job.state,
+                "fraction": round(job.fraction, 4),
+                "label": job.label,
+                "message": job.message,
+                "queue_position": manager.queue_position(job),
+                "elapsed_s": round(job.elapsed, 2),
+                "summary": job.summary,
+            }
+        )
+
+    def _file(job: Job, name: str) -> Path:
+        path = manager.folder(job) / name
+        if job.state != "done" or not path.is_file():
+            raise HTTPException(404, "this study has no such file (yet)")
+        return path
+
+    async def report(request: Request) -> Response:
+        job = job_or_404(request)
+        return FileResponse(
+            _file(job, "report.html"),
+            media_type=_MEDIA["report.html"],
+            headers={"Content-Security-Policy": REPORT_CSP, "X-Frame-Options": "SAMEORIGIN"},
+        )
+
+    async def download(request: Request) -> Response:
+        job = job_or_404(request)
+        name = request.path_params["name"]
+        if name not in OUTPUTS:
+            raise HTTPException(404, f"no file of that name; the files are {', '.join(OUTPUTS)}")
+        return FileResponse(
+            _file(job, name),
+            media_type=_MEDIA[name],
+            filename=f"{job.name}-{name}",
+            headers={"Content-Security-Policy": REPORT_CSP},
+        )
+
+    async def http_error(request: Request, exc: Exception) -> Response:
+        code = getattr(exc, "status_code", 500)
+        detail = getattr(exc, "detail", "") if code != 500 else ""
+        return page(request, "error.html", code, code=code, detail=detail or "something went wrong")
+
+    @contextlib.asynccontextmanager
+    async def lifespan(app: Starlette):
+        await manager.start()
+        app.state.manager = manager
+        try:
+            yield
+        finally:
+            await manager.stop()
+
+    routes = [
+        Route("/", index),
+        Route("/studies", submit, methods=["POST"]),
+        Route("/studies", studies),
+        Route("/studies/{sid}", study),
+        Route("/studies/{sid}/status", status),
+        Route("/studies/{sid}/report", report),
+        Route("/studies/{sid}/files/{name}", download),
+        Mount("/static", StaticFiles(directory=HERE / "static"), name="static"),
+    ]
+    middleware = [Middleware(SecurityHeaders)]
+    if "*" not in cfg.allowed_hosts:
+        middleware.append(Middleware(TrustedHostMiddleware, allowed_hosts=cfg.allowed_hosts))
+    return Starlette(
+        routes=routes,
+        middleware=middleware,
+        exception_handlers={HTTPException: http_error, 500: http_error},
+        lifespan=lifespan,
+    )

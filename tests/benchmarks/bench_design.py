@@ -1,0 +1,191 @@
+"""Benchmarks of the design search (run on demand, not part of the test suite).
+
+    python tests/benchmarks/bench_design.py            # everything
+    python tests/benchmarks/bench_design.py --quick    # skip the exhaustive sweep
+
+1. Whole-process wall time of ``stowflow check``, ``stowflow design`` and ``stowflow demo`` on the
+   bundled demo (median of 5 runs each, fresh processes, imports included).
+2. The optimiser's exact screen against a numpy-vectorised exhaustive sweep of the same design
+   space (every pump × motor × accumulator row × count × precharge, each judged by a plain
+   step-by-step simulation of the always-loaded store at both temperature ends): both must give
+   the same least installed power and capex; the ratio of their times is reported, measured in
+   the same run.
+"""
+
+from __future__ import annotations
+
+import argparse
+import statistics
+import subprocess
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+import numpy as np
+
+ROOT = Path(__file__).resolve().parents[2]
+sys.path.insert(0, str(ROOT))
+
+from optimiser import accumulator as acc  # noqa: E402
+from optimiser import gas  # noqa: E402
+from optimiser.catalogue import load_catalogue  # noqa: E402
+from optimiser.cycle import load_cycle  # noqa: E402
+from optimiser.designer import design  # noqa: E402
+from optimiser.search import make_problem, screen  # noqa: E402
+from optimiser.settings import DesignSettings  # noqa: E402
+
+CYCLE = ROOT / "duty_cycles" / "forming_press.csv"
+CATALOGUE = ROOT / "duty_cycles" / "catalogue.toml"
+
+
+def wall(cmd: list[str], runs: int = 5) -> tuple[float, list[float]]:
+    """Median wall time of a command over fresh processes, [s]."""
+    times = []
+    for _ in range(runs):
+        t0 = time.perf_counter()
+        subprocess.run(cmd, check=False, capture_output=True, cwd=ROOT)
+        times.append(time.perf_counter() - t0)
+    return statistics.median(times), times
+
+
+def sweep(cycle, catalogue, s: DesignSettings) -> tuple[float, float, int]:
+    """Exhaustive, vectorised: least (installed power, capex) over the whole design space."""
+    problem = make_problem(cycle, s)
+    demand, dt = problem.demand, problem.dt
+    levels, level_of = np.unique(problem.p_end, return_inverse=True)
+    worn = 1.0 - s.flow_margin
+    best = (np.inf, np.inf)
+    judged = 0
+    for pump in catalogue.pumps:
+        qp = pump.flow * worn
+        net = (qp - demand) * dt
+        for opt in catalogue.accumulators:
+            if opt.type not in s.types:
+                continue
+            rules = acc.rules_for(opt.type, (catalogue.limits or {}).get(opt.type))
+            q_unit = acc.unit_flow_limit(
+                opt.type, opt.nominal_volume, opt.bore, opt.max_flow, rules
+            )
+            motors = np.array([m.rated_power for m in catalogue.motors])
+            mprice = np.array([m.price for m in catalogue.motors])
+            by_motor = s.p_ambient + motors * pump.overall_efficiency / pump.flow
+            p_allow = np.minimum(
+                by_motor,
+                min(
+                    s.max_unload_for_relief(pump.max_pressure),
+                    s.max_unload_for_relief(opt.max_pressure),
+                ),
+            )
+            p0 = np.arange(s.p_ambient + 2e5, p_allow.max(), s.precharge_step)
+            counts = np.arange(1, s.max_count + 1)
+            # candidate axes: motor (M) × count (C) × precharge (P), flattened
+            mm, cc, pp = np.meshgrid(
+                np.arange(motors.size), counts, np.arange(p0.size), indexing="ij"
+            )
+            mm, cc, pp = mm.ravel(), cc.ravel(), pp.ravel()
+            p0c = p0[pp]
+            p_type = acc.max_pressure_for_precharge(
+                opt.type, gas.precharge_at(p0c, s.t_min, s.gas_model), rules
+            )
+            p_max = np.minimum(p_allow[mm], p_type)
+            ok = (p_max >= levels.max()) & (p_max > gas.precharge_at(p0c, s.t_min, s.gas_model))
+            ok &= (demand.max() - qp) <= cc * q_unit
+            v0 = cc * opt.nominal_volume
+            feasible = ok.copy()
+            for t_k in (s.t_min, s.t_max):
+                p0t = gas.precharge_at(p0c, t_k, s.gas_model)
+                floor = acc.min_working_pressure_for_precharge(opt.type, p0t, rules)
+                need = v0[:, None] * gas.oil_fraction(
+                    np.maximum(levels[None, :], floor[:, None]),
+                    p0c[:, None],
+                    t_k,
+                    problem.process,
+                    s.gas_model,
+                )
+                top = v0 * gas.oil_fraction(p_max, p0c, t_k, problem.process, s.gas_model)
+                if opt.swept_volume:
+                    top = np.minimum(top, cc * opt.swept_volume)
+                store = top.copy()
+                ends = []
+                for _cycle in range(3):
+                    good = np.ones(store.size, bool)
+                    for t in range(demand.size):
+                        store = np.minimum(top, store + net[t])
+                        good &= store >= need[:, level_of[t]] - 1e-12
+                    ends.append(store.copy())
+                periodic = np.abs(ends[-1] - ends[-2]) <= 1e-12
+                feasible &= good & periodic
+            judged += feasible.size
+            if feasible.any():
+                capex = cc * opt.price + pump.price + mprice[mm]
+                keys = np.where(feasible, motors[mm], np.inf)
+                kmin = keys.min()
+                cmin = np.where(keys == kmin, capex, np.inf).min()
+                best = min(best, (float(kmin), float(cmin)))
+        # pump only
+        if s.allow_pump_only and qp >= demand.max():
+            relief = s.relief_setting(problem.p_end.max())
+            shaft = pump.flow * (relief - s.p_ambient) / pump.overall_efficiency
+            for m in catalogue.motors:
+                if m.rated_power >= shaft and relief <= pump.max_pressure:
+                    best = min(best, (m.rated_power, pump.price + m.price))
+    return best[0], best[1], judged
+
+
+def main() -> None:
+    """Run the benchmarks and print the figures."""
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--quick", action="store_true", help="skip the exhaustive sweep")
+    args = ap.parse_args()
+    exe = [sys.executable, "-m", "optimiser"]
+    with tempfile.TemporaryDirectory() as tmp:
+        for name, argv in (
+            ("check", ["check", str(CYCLE)]),
+            ("design", ["design", str(CYCLE), "--out", tmp]),
+            ("demo", ["demo", "--out", tmp]),
+        ):
+            med, runs = wall([*exe, *argv])
+            shown = [round(r, 2) for r in runs]
+            print(f"stowflow {name} (whole process): median {med:.2f} s of {shown}")
+    cycle = load_cycle(CYCLE)
+    cat = load_catalogue(CATALOGUE)
+    s = DesignSettings(precharge_step=5e5)
+    times = []
+    for _ in range(5):
+        t0 = time.perf_counter()
+        d = design(cycle, cat, s)
+        times.append(time.perf_counter() - t0)
+    print(
+        f"design() in process, {cycle.n_steps} steps: median {statistics.median(times):.2f} s; "
+        f"status {d.status}, gap {d.mip_gap:.2e}, {d.installed_power / 1e3:g} kW, "
+        f"capex {d.capex:g}"
+    )
+    if args.quick:
+        return
+    t_screen = []
+    for _ in range(5):
+        t0 = time.perf_counter()
+        sr = screen(make_problem(cycle, s), cat)
+        t_screen.append(time.perf_counter() - t0)
+    t0 = time.perf_counter()
+    kw, capex, judged = sweep(cycle, cat, s)
+    t_sweep = time.perf_counter() - t0
+    same = kw == sr.installed_power and abs(capex - sr.capex) < 1e-6
+    ts = statistics.median(t_screen)
+    print(
+        f"exact screen: median {ts:.3f} s, {sr.evaluated} combinations → "
+        f"{sr.installed_power / 1e3:g} kW, capex {sr.capex:g}"
+    )
+    print(
+        f"exhaustive sweep: {t_sweep:.1f} s, {judged:,} candidates simulated → "
+        f"{kw / 1e3:g} kW, capex {capex:g}"
+    )
+    print(
+        f"same answer: {same}; sweep / screen = {t_sweep / ts:,.0f}×; "
+        f"sweep / whole design() = {t_sweep / statistics.median(times):,.0f}×"
+    )
+
+
+if __name__ == "__main__":
+    main()
