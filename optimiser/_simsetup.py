@@ -126,9 +126,10 @@ def plant_for(
 def schedule_fraction(design: Design, cycle: DutyCycle) -> np.ndarray | None:
     """Loaded fraction of each step from the design's schedule (None when it has none).
 
-    ``pump_flow − spill`` is what the pump delivers into the store in the schedule model
-    (``spill`` being the flow the unloading valve returns to tank at the full store); the
-    stored oil of the schedule must follow it, which is checked.
+    ``pump_flow`` is what the pump puts into the pressure line and ``spill`` what leaves it
+    over the relief valve at a full store; the stored oil of the schedule must follow
+    ``pump_flow − spill − demand``, which is checked.  The fraction is ``pump_flow`` over the
+    full pump flow: the simulator's own relief valve takes the spill.
 
     Parameters
     ----------
@@ -176,6 +177,9 @@ def schedule_fraction(design: Design, cycle: DutyCycle) -> np.ndarray | None:
             f"stored oil changes by {to_unit(step[i], 'L', 'volume'):.4g} L but pump flow "
             f"minus demand gives {to_unit(step[i] - resid[i], 'L', 'volume'):.4g} L"
         )
+    # The pump puts pump_flow into the line; whatever a full store cannot take goes over the
+    # relief valve, which the simulator models itself.
+    delivered = pf
     f = delivered / qp
     if np.any(f < -1e-9) or np.any(f > 1 + 1e-9):
         i = int(np.argmax((f < -1e-9) | (f > 1 + 1e-9)))

@@ -21,15 +21,19 @@ import pandas as pd
 
 from optimiser import accumulator as acc
 from optimiser import gas
+from optimiser._simcore import RELIEF_OVERRIDE
 from optimiser.baseline import compensated_baseline, fixed_baseline
 from optimiser.catalogue import Catalogue
 from optimiser.cycle import DutyCycle
-from optimiser.model import ScheduleProblem, solve_schedule
+from optimiser.model import VALVE_MODES, ScheduleProblem, hidden_load_events, solve_schedule
 from optimiser.schedule import (
     check_schedule,
     deficit_from_full,
     greedy_schedule,
     lowest_trajectory,
+    run_store,
+    switch_counts,
+    window_steps,
 )
 from optimiser.search import Candidate, Problem, bank_bounds, make_problem, screen
 from optimiser.settings import DesignSettings
@@ -41,6 +45,11 @@ __all__ = ["Family", "design", "family_problem"]
 MILP_FAMILIES = 1
 #: Most precharges per tied component set that are ranked by the greedy rule.
 PRECHARGES_PER_SET = 24
+#: Largest schedule model (blocks) solved a second time with the strict valves, [-], and
+#: the time given to that solve, [s]: beyond them the ideal pressure switch's plan stands
+#: and the verification judges the real switch.
+STRICT_MAX_BLOCKS = 200
+STRICT_TIME_LIMIT = 5.0
 #: Chords of the gas curve in the schedule model's energy law.
 CHORDS = 4
 
@@ -146,6 +155,7 @@ def family_problem(
         qp=pump.flow,
         discharge_limit=q_bank,
         pressure_cuts=tuple(cuts),
+        relief_gauge=s.relief_setting(p_max) - s.p_ambient,
         efficiency=eta,
         unloaded_power=pump.flow * s.standby_pressure / eta,
         min_up=_dwell_steps(s.min_loaded_dwell, problem.dt),
@@ -156,22 +166,28 @@ def family_problem(
 
 
 def _energy(
-    problem: Problem, fam: Family, u: np.ndarray, oil: np.ndarray, spill: np.ndarray
+    problem: Problem,
+    fam: Family,
+    u: np.ndarray,
+    oil: np.ndarray,
+    returned: np.ndarray,
+    relief: np.ndarray | float = 0.0,
 ) -> float:
     """Quasi-static electrical energy per cycle on the gas curve itself, [J].
 
     The pump's hydraulic work over a periodic cycle equals the work the machine draws at the
-    accumulator pressure (the gas returns what it stores); the unloaded share of the time pays
-    the standby circulation.
+    accumulator pressure (the gas returns what it stores) plus the oil it pushes over the
+    relief valve at the relief setting; the unloaded share of the time pays the standby
+    circulation (``returned``: pump flow sent back to tank by the unloading valve, [m³/s]).
     """
     s = problem.settings
     t_mid = 0.5 * (s.t_min + s.t_max)
     mid = 0.5 * (np.roll(oil, 1) + oil)
     frac = np.clip(mid / fam.volume, 0.0, 0.999)
     p = gas.pressure_at_oil_fraction(frac, fam.precharge, t_mid, problem.process, s.gas_model)
-    hyd = problem.demand * (p - s.p_ambient)
     sp = fam.sp
-    idle = (1 - np.asarray(u, float) + np.asarray(spill, float) / sp.qp) * sp.unloaded_power
+    hyd = problem.demand * (p - s.p_ambient) + np.asarray(relief, float) * sp.relief_gauge
+    idle = (1 - np.asarray(u, float) + np.asarray(returned, float) / sp.qp) * sp.unloaded_power
     return float((hyd.sum() / sp.efficiency + idle.sum()) * problem.dt)
 
 
@@ -296,11 +312,11 @@ def design(
     ranked.sort(key=lambda r: r[0])
     build_time = solve_time = 0.0
     solved = 0
-    best = None  # (energy, fam, cand, u, oil, spill, gap, bound, status, block)
+    best = None  # (energy, fam, cand, u, oil, returned, relief, gap, bound, status, block)
     for k, (e_rank, fam, cand, u0) in enumerate(ranked[: max(MILP_FAMILIES, 1)]):
         report(0.5 + 0.4 * k / MILP_FAMILIES, "solving the schedule model")
         if fam is None:
-            cand_best = (e_rank, None, cand, u0, None, None, 0.0, e_rank, "optimal", 1)
+            cand_best = (e_rank, None, cand, u0, None, None, None, 0.0, e_rank, "optimal", 1)
         else:
             u0 = greedy_schedule(
                 demand,
@@ -314,24 +330,73 @@ def design(
                 discharge_limit=fam.sp.discharge_limit,
             )
             block = _block_size(problem, fam.sp)
-            sol = solve_schedule(
-                fam.sp,
-                warm_u=u0 if block == 1 else None,
-                block=block,
-                mip_gap=s.mip_gap,
-                time_limit=s.time_limit,
-            )
-            solved += 1
-            build_time += sol.build_time
-            solve_time += sol.solve_time
             cand_best = None
-            if sol.status != "failed":
-                cand_best = _accept(
-                    problem, fam, cand, sol.u, sol.gap, sol.bound, sol.status, sol.block, notes
+            if _no_load_event_allowed(problem, fam.sp):
+                # One schedule is left: loaded throughout; a full store spills over the relief
+                # valve (the unloading valve would make a load event).  The relief valve then
+                # passes the full pump flow, so its override must stay within the pump's and
+                # the shell's ratings: the unload pressure comes down if needed.
+                fam = _relief_flow_family(problem, cand, fam, catalogue)
+                u1 = np.ones(problem.n, dtype=int)
+                run = run_store(u1, demand, fam.sp.qp, dt, fam.sp.upper)
+                if run is not None:
+                    flows = (run.oil, np.zeros(problem.n), run.spill)
+                    cand_best = _accept(
+                        problem, fam, cand, u1, (0.0, math.nan, "optimal", 1), notes, flows
+                    )
+                if cand_best is not None:
+                    notes.append(
+                        "the load-event limit allows no load event in a cycle this short: "
+                        "the pump stays loaded and the relief valve takes what the full store "
+                        "cannot"
+                    )
+            modes = () if cand_best is not None else _valve_modes(problem, fam.sp, block)
+            for valves in modes:
+                sol = solve_schedule(
+                    fam.sp,
+                    warm_u=u0 if block == 1 else None,
+                    block=block,
+                    mip_gap=s.mip_gap,
+                    time_limit=s.time_limit if valves == "switch" else STRICT_TIME_LIMIT,
+                    valves=valves,
                 )
+                solved += 1
+                build_time += sol.build_time
+                solve_time += sol.solve_time
+                if sol.status == "failed":
+                    continue
+                rec = _accept(
+                    problem,
+                    fam,
+                    cand,
+                    sol.u,
+                    (sol.gap, sol.bound, sol.status, sol.block),
+                    notes,
+                    (sol.oil, sol.spill, sol.relief),
+                )
+                if rec is None:
+                    continue
+                cand_best = rec
+                if valves == "strict":
+                    notes.append(
+                        "the load events hidden in part-loaded steps would break the limit: "
+                        "the schedule unloads only at the end of a loaded stretch and the "
+                        "relief valve takes what a full store cannot"
+                    )
+                if not _hidden_excess(problem, fam.sp, sol.u, sol.spill):
+                    break
+            if cand_best is not None:
+                excess = _hidden_excess(problem, fam.sp, cand_best[3], cand_best[5])
+                if excess:
+                    notes.append(
+                        f"the schedule is the ideal pressure switch's plan: its part-loaded "
+                        f"steps would mean {excess:.0f} load events per hour, above the limit; "
+                        "the pressure switch with the derived band carries the cycle within "
+                        "the limits (see the verification)"
+                    )
             if cand_best is None:  # the greedy schedule is feasible by construction
                 cand_best = _accept(
-                    problem, fam, cand, u0, math.nan, math.nan, "feasible", 1, notes
+                    problem, fam, cand, u0, (math.nan, math.nan, "feasible", 1), notes
                 )
             if cand_best is None:
                 continue
@@ -363,7 +428,7 @@ def design(
             stats,
             tuple(notes),
         )
-    energy, fam, cand, u, oil, spill, gap, bound, status, block = best
+    energy, fam, cand, u, oil, returned, relief_flow, gap, bound, status, block = best
     if len(ranked) > MILP_FAMILIES:
         notes.append(
             f"{len(ranked)} designs tie on installed power and capex; the one with the least "
@@ -371,7 +436,9 @@ def design(
             "is optimal for that component set and precharge)"
         )
     report(0.95, "writing the schedule")
-    schedule, bank, p_min, p_max, relief = _assemble(problem, fam, cand, u, oil, spill)
+    schedule, bank, p_min, p_max, relief = _assemble(
+        problem, fam, cand, u, oil, returned, relief_flow
+    )
     if block > 1:
         notes.append(
             f"schedule model aggregated {block} steps per block (certified feasible "
@@ -433,19 +500,76 @@ def _process_label(problem: Problem) -> str:
     return p.kind
 
 
-def _accept(problem, fam, cand, u, gap, bound, status, block, notes):
-    """Check a schedule at full resolution; return the search's record of it, or None."""
+def _accept(problem, fam, cand, u, solver, notes, flows=None):
+    """Check a schedule at full resolution; return the search's record of it, or None.
+
+    ``solver`` is (gap, bound, status, block).  ``flows`` is the schedule model's own
+    (oil [m³], returned [m³/s], relief [m³/s]) at full resolution; without it, or when it
+    leaves the store's bounds, the store follows the schedule and the relief valve takes what
+    a full store cannot (the unloading valve only at the end of a loaded stretch).
+    """
     chk = _check(problem, fam, u)
-    low = lowest_trajectory(u, problem.demand, fam.sp.lower, fam.sp.upper, fam.sp.qp, problem.dt)
-    if not chk.ok or low is None:
-        notes.append(
-            "a schedule failed the full-resolution check ("
-            + "; ".join(chk.problems or ("no periodic store trajectory",))
-            + ")"
-        )
+    sp = fam.sp
+    problems = list(chk.problems)
+    if problems:
+        notes.append("a schedule failed the full-resolution check (" + "; ".join(problems) + ")")
         return None
-    e = _energy(problem, fam, u, low.oil, low.spill)
-    return (e, fam, cand, u, low.oil, low.spill, gap, bound, status, block)
+    tol = 1e-7 * max(sp.upper, 1e-9)
+    if flows is not None:
+        oil, returned, relief = (np.asarray(f, float) for f in flows)
+        if oil.size != problem.n or np.any(oil < sp.lower - tol) or np.any(oil > sp.upper + tol):
+            flows = None
+    if flows is None:
+        run = run_store(u, problem.demand, sp.qp, problem.dt, sp.upper)
+        if run is None or np.any(run.oil < sp.lower - tol):
+            notes.append("a schedule failed the full-resolution check (no periodic store)")
+            return None
+        oil = run.oil
+        last = (np.asarray(u) == 1) & (np.roll(u, -1) == 0)
+        returned = np.where(last, run.spill, 0.0)
+        relief = np.where(last, 0.0, run.spill)
+    e = _energy(problem, fam, u, oil, returned, relief)
+    return (e, fam, cand, u, oil, returned, relief, *solver)
+
+
+def _relief_flow_family(problem: Problem, cand: Candidate, fam: Family, catalogue) -> Family:
+    """The family with its unload pressure lowered so that the relief valve passing the full
+    pump flow (:data:`optimiser._simcore.RELIEF_OVERRIDE` above cracking) stays within the
+    pump's and the accumulator's maximum pressure."""
+    s = problem.settings
+    limit = min(cand.pump.max_pressure, cand.option.max_pressure)
+    pa = s.p_ambient
+    p_cap = s.max_unload_for_relief(pa + (limit - pa) / (1.0 + RELIEF_OVERRIDE))
+    if p_cap >= fam.p_max or p_cap < float(problem.p_end.max()):
+        return fam
+    return family_problem(problem, cand, fam.precharge, p_cap, catalogue)
+
+
+def _no_load_event_allowed(problem: Problem, sp: ScheduleProblem) -> bool:
+    """Whether the load-event limit leaves no load event for a cycle (whole cycles in an
+    hour already exceed it), [-]."""
+    if sp.max_events_per_hour is None:
+        return False
+    full, _ = window_steps(problem.n * problem.dt, problem.dt)
+    return full > sp.max_events_per_hour * (1 + 1e-9)
+
+
+def _hidden_excess(problem: Problem, sp: ScheduleProblem, u, returned) -> float:
+    """Load events per hour [1/h] of a schedule counting those hidden in part-loaded steps,
+    when they break the limit; 0 otherwise."""
+    if sp.max_events_per_hour is None:
+        return 0.0
+    hidden = hidden_load_events(u, returned, sp.qp)
+    per_hour = (switch_counts(u)[0] + hidden) * 3600.0 / (problem.n * problem.dt)
+    return per_hour if hidden and per_hour > sp.max_events_per_hour * (1 + 1e-9) else 0.0
+
+
+def _valve_modes(problem: Problem, sp: ScheduleProblem, block: int) -> tuple[str, ...]:
+    """The valve models to try: the strict one too when a limit on load events applies and
+    the model is small enough to solve it quickly."""
+    if sp.max_events_per_hour is None or math.ceil(problem.n / block) > STRICT_MAX_BLOCKS:
+        return ("switch",)
+    return VALVE_MODES
 
 
 def _check(problem: Problem, fam: Family, u: np.ndarray):
@@ -472,7 +596,7 @@ def _pump_only_energy(problem: Problem, cand: Candidate) -> float:
     return shaft / cand.motor.efficiency * problem.n * problem.dt
 
 
-def _assemble(problem: Problem, fam: Family | None, cand: Candidate, u, oil, spill):
+def _assemble(problem: Problem, fam: Family | None, cand: Candidate, u, oil, returned, relief_flow):
     s = problem.settings
     n, dt = problem.n, problem.dt
     time_s = np.arange(n) * dt
@@ -490,11 +614,14 @@ def _assemble(problem: Problem, fam: Family | None, cand: Candidate, u, oil, spi
         p_cold, p_hot = _pressures(problem, fam, oil)
         bank = Bank(cand.option, cand.count, fam.precharge)
         p_min = float(p_cold.min())
-        p_max = float(max(p_hot.max(), problem.p_end.max()))
+        # The plan's highest pressure, but never above the unload pressure the search checked
+        # against the pump, the motor, the shell and the relief margin (a plan made at the
+        # middle temperature rises above it at the hot end, where the switch unloads at it).
+        p_max = float(max(min(p_hot.max(), fam.p_max), problem.p_end.max()))
         relief = s.relief_setting(p_max)
-        # Flow returned to tank within a step is flow the pump never put into the line.
-        delivered = qp * np.asarray(u, float) - spill
-        relief_flow = np.zeros(n)
+        # Flow returned to tank within a step is flow the pump never put into the line; the
+        # relief valve spills from the line what a full store cannot take.
+        delivered = qp * np.asarray(u, float) - returned
     schedule = pd.DataFrame(
         {
             "demand [m³/s]": problem.demand,

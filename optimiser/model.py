@@ -22,6 +22,15 @@ Formulation (per block ``b`` of ``B`` steps; ``B = 1`` is full resolution)
   counters ``C_b = C_{b-1} + v_b`` (window sums are differences of two counters).
 * Load events per hour: whole cycles in the hour times the events per cycle plus the events
   in the remaining window.
+* Valves (``valves``): ``"switch"`` lets the unloading valve open part-way through any
+  loaded block, as an ideal pressure switch does at a full store; where the next block is
+  loaded too that hides an unload and a load inside the block, which the caller counts
+  (:func:`hidden_load_events`).  ``"strict"`` allows the part-way opening only in the last
+  block of a loaded stretch (:math:`r_b \\le Q_p(1-u_{b+1})`, no hidden event) and lets a
+  loaded pump spill over the relief valve only from a full store (``q_b ≤ Q_p y_b``,
+  ``S_b ≥ U y_b``, ``y_b`` ∈ {0, 1}), at the relief setting's pressure.  The strict model is
+  the one a tight switching limit needs (a 4 s cycle with at most 360 load events an hour
+  allows none): the pump then stays loaded and the relief valve takes the excess.
 * Energy, from the energy balance of the gas: over a periodic cycle the gas gives back what
   it took (:math:`\\oint p\\,dV = 0` for a fixed p–V map), so the pump's hydraulic work equals
   the work the machine draws at the accumulator pressure:
@@ -45,13 +54,20 @@ from __future__ import annotations
 
 import math
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 
 from optimiser.schedule import run_store, window_steps
 
-__all__ = ["ScheduleProblem", "ScheduleSolution", "block_layout", "solve_schedule"]
+__all__ = [
+    "VALVE_MODES",
+    "ScheduleProblem",
+    "ScheduleSolution",
+    "block_layout",
+    "hidden_load_events",
+    "solve_schedule",
+]
 
 _LITRE = 1e3  # L per m³: the model's volume unit
 _BAR = 1e5  # Pa per bar: the model's pressure unit
@@ -79,6 +95,8 @@ class ScheduleProblem:
         Chords of the gauge pressure over the store, :math:`p_g(S) \\ge a_j + b_j S`:
         ``a_j`` in [Pa], ``b_j`` in [Pa/m³].  Their maximum is the piecewise-linear
         interpolant of the convex gas curve.
+    relief_gauge : float
+        Relief valve setting, gauge, [Pa]: oil spilled over it costs the pump this pressure.
     efficiency : float
         Pump overall times motor efficiency, [-].
     unloaded_power : float
@@ -96,6 +114,7 @@ class ScheduleProblem:
     qp: float
     discharge_limit: float
     pressure_cuts: tuple[tuple[float, float], ...]
+    relief_gauge: float
     efficiency: float
     unloaded_power: float
     min_up: int = 1
@@ -112,7 +131,7 @@ class ScheduleProblem:
         oil = np.asarray(oil, float)
         return np.max([a + b * oil for a, b in self.pressure_cuts], axis=0)
 
-    def energy(self, u, oil, spill) -> float:
+    def energy(self, u, oil, returned, relief=0.0) -> float:
         """Energy per cycle of a full-resolution schedule by the model's own law, [J].
 
         Parameters
@@ -121,14 +140,16 @@ class ScheduleProblem:
             Load state per step, [-].
         oil : array_like
             Stored oil at each step end (periodic), [m³].
-        spill : array_like
-            Pump flow returned to tank per step, [m³/s].
+        returned : array_like
+            Pump flow returned to tank by the unloading valve within a step, [m³/s].
+        relief : array_like
+            Flow over the relief valve per step, [m³/s].
         """
         u = np.asarray(u, float)
         oil = np.asarray(oil, float)
         mid = 0.5 * (np.roll(oil, 1) + oil)
-        hyd = self.demand * self.gauge_pressure(mid)
-        idle = (1 - u + np.asarray(spill, float) / self.qp) * self.unloaded_power
+        hyd = self.demand * self.gauge_pressure(mid) + np.asarray(relief) * self.relief_gauge
+        idle = (1 - u + np.asarray(returned, float) / self.qp) * self.unloaded_power
         return float((hyd.sum() / self.efficiency + idle.sum()) * self.dt)
 
 
@@ -143,7 +164,10 @@ class ScheduleSolution:
     oil : numpy.ndarray
         Stored oil at each step end (periodic), [m³].
     spill : numpy.ndarray
-        Spilled flow per step, [m³/s].
+        Pump flow returned to tank by the unloading valve within each step, [m³/s] (only in
+        the last step of a loaded stretch).
+    relief : numpy.ndarray
+        Flow over the relief valve per step (store full, pump loaded), [m³/s].
     energy : float
         Objective: electrical energy per cycle, [J].
     bound : float
@@ -169,6 +193,24 @@ class ScheduleSolution:
     block: int
     build_time: float
     solve_time: float
+    relief: np.ndarray = field(default_factory=lambda: np.empty(0))
+
+
+#: The valve models of :func:`solve_schedule`.
+VALVE_MODES = ("switch", "strict")
+
+
+def hidden_load_events(u, returned, qp: float) -> int:
+    """Load events per cycle hidden inside steps, [-].
+
+    A loaded step that returns flow to tank part-way (``returned`` [m³/s] above a millionth
+    of the pump flow ``qp`` [m³/s]) and is followed by a loaded step unloads and loads again
+    inside the step: one load event that the step's load state does not show.
+    """
+    u = np.asarray(u).astype(int)
+    nxt = np.roll(u, -1)
+    part = np.asarray(returned, float) > 1e-6 * qp
+    return int(np.count_nonzero((u == 1) & part & (nxt == 1)))
 
 
 def block_layout(n: int, block: int) -> list[tuple[int, int]]:
@@ -228,6 +270,7 @@ def solve_schedule(
     mip_gap: float = 1e-3,
     time_limit: float = 60.0,
     threads: int = 1,
+    valves: str = "switch",
 ) -> ScheduleSolution:
     """Build and solve the schedule MILP.
 
@@ -246,6 +289,9 @@ def solve_schedule(
         Solver time limit, [s].
     threads : int
         HiGHS threads (keep one setting per process).
+    valves : {"switch", "strict"}
+        Where the unloading valve may open part-way and whether the relief valve may spill
+        (see the module's formulation notes).
 
     Returns
     -------
@@ -254,6 +300,9 @@ def solve_schedule(
     import pyomo.environ as pyo
     from pyomo.contrib.appsi.solvers.highs import Highs
 
+    if valves not in VALVE_MODES:
+        raise ValueError(f"valves must be one of {VALVE_MODES}, not {valves!r}")
+    strict = valves == "strict"
     t0 = time.perf_counter()
     # The model works in litres, L/s and bar so that the solver's absolute tolerances (1e-7)
     # are far below anything that matters; results go back to SI at the end.
@@ -273,7 +322,11 @@ def solve_schedule(
     m = pyo.ConcreteModel("stowflow_schedule")
     B = range(nb)
     m.u = pyo.Var(B, domain=pyo.Binary)
-    m.r = pyo.Var(B, bounds=(0.0, qp))
+    m.r = pyo.Var(B, bounds=(0.0, qp))  # returned to tank by the unloading valve
+    # over the relief valve, from a full store (strict valves only)
+    m.q = pyo.Var(B, bounds=(0.0, qp if strict else 0.0))
+    if strict:
+        m.y = pyo.Var(B, domain=pyo.Binary)  # store full at the block end (relief may open)
     # The store's bounds at block ends are variable bounds (no rows); for blocks of one step
     # they are the whole story.
     s_lo = [float(lower[e - 1]) if e - st == 1 else 0.0 for st, e in blocks]
@@ -289,25 +342,44 @@ def solve_schedule(
         prev = m.S[b - 1] if b else m.S[nb - 1]
         dv = float(d[s:e].sum() * dt)
         nb_dt = lens[b] * dt
-        add(m.S[b] == prev + nb_dt * qp * m.u[b] - nb_dt * m.r[b] - dv)
-        add(m.r[b] <= qp * m.u[b])
+        add(m.S[b] == prev + nb_dt * qp * m.u[b] - nb_dt * (m.r[b] + m.q[b]) - dv)
+        add(m.r[b] + m.q[b] <= qp * m.u[b])
+        # The unloading valve opens part-way through the last block of a loaded stretch only
+        # (one unload event, no extra load event); the relief valve spills only from a full
+        # store.
+        if strict:
+            # w of the next block is the unload event at this block's end; with the event
+            # bounds below it equals u_b(1 − u_{b+1}) at integer points and is tighter than
+            # 1 − u_{b+1} in the relaxation.
+            add(m.r[b] <= qp * (m.w[b + 1] if b + 1 < nb else m.w[0]))
+            add(m.q[b] <= qp * m.y[b])
+            add(m.y[b] <= m.u[b])
+            add(m.S[b] >= upper * m.y[b])
         dcum = np.cumsum(d[s:e]) * dt  # demand volume after k+1 steps
         if lens[b] > 1:
             for k in _upper_hull(lower[s:e] + dcum):
                 kk = (k + 1) * dt
-                add(prev + kk * qp * m.u[b] - kk * m.r[b] >= float(lower[s + k] + dcum[k]))
+                add(
+                    prev + kk * qp * m.u[b] - kk * (m.r[b] + m.q[b])
+                    >= float(lower[s + k] + dcum[k])
+                )
             for k in _upper_hull(-dcum):
                 kk = (k + 1) * dt
-                add(prev + kk * qp * m.u[b] - kk * m.r[b] <= float(upper + dcum[k]))
+                add(prev + kk * qp * m.u[b] - kk * (m.r[b] + m.q[b]) <= float(upper + dcum[k]))
         if math.isfinite(q_lim):
             dmax, dmin = float(d[s:e].max()), float(d[s:e].min())
             if dmax + qp > q_lim:
-                add(dmax + m.r[b] - qp * m.u[b] <= q_lim)
+                add(dmax + m.r[b] + m.q[b] - qp * m.u[b] <= q_lim)
             if qp - dmin > q_lim:
-                add(qp * m.u[b] - dmin - m.r[b] <= q_lim)
+                add(qp * m.u[b] - dmin - m.r[b] - m.q[b] <= q_lim)
         # events
         u_prev = m.u[b - 1] if b else m.u[nb - 1]
         add(m.v[b] - m.w[b] == m.u[b] - u_prev)
+        if strict:  # an event needs the state change (valid, and tightens the relaxation)
+            add(m.v[b] <= m.u[b])
+            add(m.v[b] <= 1 - u_prev)
+            add(m.w[b] <= u_prev)
+            add(m.w[b] <= 1 - m.u[b])
         # Epigraph of the convex gas curve at the block's mean store (only where oil is drawn:
         # elsewhere the pressure does not enter the energy).
         if d[s:e].sum() > 0:
@@ -349,6 +421,7 @@ def solve_schedule(
             dt
             * (
                 float(d[s:e].sum()) * hyd * m.pi[b] / eta
+                + lens[b] * m.q[b] * hyd * (sp.relief_gauge / ps) / eta
                 + lens[b] * sp.unloaded_power * (1 - m.u[b] + m.r[b] / qp)
             )
             for b, (s, e) in enumerate(blocks)
@@ -369,7 +442,14 @@ def solve_schedule(
             for b in B:
                 m.u[b].value = float(wu[b])
                 m.S[b].value = float(min(max(oil[b], 0.0), upper))
-                m.r[b].value = float(min(max(run.spill[b] * vs, 0.0), qp * wu[b]))
+                spill_b = float(min(max(run.spill[b] * vs, 0.0), qp * wu[b]))
+                if strict:  # the warm start spills over the relief valve, from a full store
+                    m.r[b].value = 0.0
+                    m.q[b].value = spill_b
+                    m.y[b].value = 1.0 if spill_b > 0 else 0.0
+                else:
+                    m.r[b].value = spill_b
+                    m.q[b].value = 0.0
                 m.v[b].value = float(max(dv[b], 0))
                 m.w[b].value = float(max(-dv[b], 0))
                 if need_c:
@@ -378,7 +458,11 @@ def solve_schedule(
                     m.Cw[b].value = float(cw[b])
                 mid = 0.5 * (prev_oil[b] + oil[b])
                 m.pi[b].value = float(max(0.0, max(a + bb * mid for a, bb in cuts)))
-            warm_energy = sp.energy(wu, run.oil, run.spill)
+            warm_energy = (
+                sp.energy(wu, run.oil, 0.0, run.spill)
+                if strict
+                else sp.energy(wu, run.oil, run.spill)
+            )
     build_time = time.perf_counter() - t0
 
     opt = Highs()
@@ -412,18 +496,20 @@ def solve_schedule(
         )
     opt.load_vars()
     ub = np.array([round(pyo.value(m.u[b])) for b in B], dtype=int)
-    spill_b = np.array([min(max(pyo.value(m.r[b]), 0.0), qp * ub[b]) for b in B]) / vs
+    back_b = np.array([min(max(pyo.value(m.r[b]), 0.0), qp * ub[b]) for b in B]) / vs
+    relief_b = np.array([min(max(pyo.value(m.q[b]), 0.0), qp * ub[b]) for b in B]) / vs
     # A "loaded" block that returns all its flow to tank is an unloaded block: label it so when
     # the dwell and event limits still hold (ties in energy; the label follows the flow).
-    idle = (ub == 1) & (spill_b >= sp.qp * (1 - 1e-7))
+    idle = (ub == 1) & (back_b >= sp.qp * (1 - 1e-7))
     if idle.any():
         trial = np.where(idle, 0, ub)
         if _labels_ok(trial, up_blocks, down_blocks, sp, block, n, dt):
-            ub, spill_b = trial, np.where(idle, 0.0, spill_b)
+            ub, back_b = trial, np.where(idle, 0.0, back_b)
     u = np.repeat(ub, lens)
-    spill = np.repeat(spill_b, lens)
-    # Rebuild the full-resolution trajectory from the balance (block-constant return flow).
-    net = (sp.qp * u - spill - d_si) * dt
+    spill = np.repeat(back_b, lens)
+    relief = np.repeat(relief_b, lens)
+    # Rebuild the full-resolution trajectory from the balance (block-constant flows).
+    net = (sp.qp * u - spill - relief - d_si) * dt
     oil = float(pyo.value(m.S[nb - 1])) / vs + np.cumsum(net)
     energy = float(res.best_feasible_objective) / scale
     bound = (
@@ -444,4 +530,5 @@ def solve_schedule(
         block=block,
         build_time=build_time,
         solve_time=solve_time,
+        relief=relief,
     )

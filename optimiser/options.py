@@ -140,6 +140,20 @@ def parse_per_hour(text: str) -> float | None:
     return value
 
 
+_ZERO_RE = re.compile(r"^\s*[-+]?(?:0+\.?0*|\.0+)(?:[eE][-+]?\d+)?\s*$")
+
+
+def _quantity(text: str, dimension: str) -> float:
+    """Parse a quantity with its unit to SI; a bare zero needs none (0 s = 0 min), [SI].
+
+    Whether zero is allowed is the settings' business (:class:`DesignSettings` refuses a
+    zero time constant, for example); other bare numbers still need their unit.
+    """
+    if _ZERO_RE.match(text):
+        return 0.0
+    return parse_quantity(text, dimension)
+
+
 def design_settings(
     values: Mapping[str, str | None], base: DesignSettings | None = None
 ) -> DesignSettings:
@@ -170,10 +184,8 @@ def design_settings(
                 changes[field_name] = str(text).strip().lower()
             elif kind == "text":
                 changes[field_name] = str(text).strip().lower()
-            elif kind == "time":
-                changes[field_name] = parse_quantity(str(text), "time")
-            elif kind == "pressure":
-                changes[field_name] = parse_quantity(str(text), "pressure")
+            elif kind in ("time", "pressure"):
+                changes[field_name] = _quantity(str(text), kind)
             elif kind == "fraction":
                 changes[field_name] = parse_fraction(str(text))
             elif kind == "per hour":

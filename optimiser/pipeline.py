@@ -31,6 +31,8 @@ __all__ = ["MAX_TIGHTENINGS", "Attempt", "Study", "StudyResult", "run"]
 MAX_TIGHTENINGS = 4
 #: Extra pressure added on top of a measured shortfall when tightening, [Pa].
 TIGHTEN_MARGIN = 0.5e5
+#: Factor on the tightening per pass in a row that left the design unchanged, [-].
+STUCK_GAIN = 4.0
 
 
 @dataclass(frozen=True)
@@ -129,6 +131,18 @@ class StudyResult:
     timings: dict
 
 
+def _same_design(a: Design, b: Design) -> bool:
+    """Whether two passes chose the same components, precharge and unload pressure."""
+    if (a.bank is None) != (b.bank is None):
+        return False
+    same_bank = a.bank is None or (
+        a.bank.option == b.bank.option
+        and a.bank.count == b.bank.count
+        and a.bank.precharge == b.bank.precharge
+    )
+    return same_bank and a.pump == b.pump and a.motor == b.motor and a.p_max == b.p_max
+
+
 def _load(study: Study) -> tuple[DutyCycle, Catalogue]:
     cycle = study.cycle
     if not isinstance(cycle, DutyCycle):
@@ -164,6 +178,8 @@ def run(study: Study, *, progress: Callable[[float, str], None] | None = None) -
     t_design = t_verify = 0.0
     verification: Verification | None = None
     result: Design | None = None
+    previous: Design | None = None
+    stuck = 0
     for k in range(MAX_TIGHTENINGS + 1):
         span = 0.8 / (MAX_TIGHTENINGS + 1)
         base = k * span
@@ -196,7 +212,13 @@ def run(study: Study, *, progress: Callable[[float, str], None] | None = None) -
             break
         if v.shortfall is None or not np.any(v.shortfall > 0):
             break  # nothing to tighten: the failure is not a pressure shortfall
-        extra = extra + np.where(v.shortfall > 0, v.shortfall + TIGHTEN_MARGIN, 0.0)
+        # When raising the requirement by the shortfall left the design as it was (the
+        # quasi-static model already met it; the real controller did not), raise it faster.
+        same = previous is not None and _same_design(previous, d)
+        stuck = stuck + 1 if same else 0
+        previous = d
+        gain = STUCK_GAIN**stuck
+        extra = extra + np.where(v.shortfall > 0, gain * (v.shortfall + TIGHTEN_MARGIN), 0.0)
     assert result is not None
     if verification is not None and verification.passed:
         # The working window the designer sets up is the one the recommended controller

@@ -51,6 +51,8 @@ __all__ = [
     "Problem",
     "ScreenResult",
     "bank_bounds",
+    "bank_lower",
+    "bank_upper",
     "make_problem",
     "resolve_process",
     "screen",
@@ -241,24 +243,55 @@ def bank_bounds(
         limits (the pressure ratio counts at the coldest temperature, where the precharge is
         lowest), [Pa].  Combinations the type rules out have ``upper = -inf``.
     """
+    lower = bank_lower(problem, acc_type, p0, p_levels, rules, temperatures)
+    upper, p_max = bank_upper(problem, acc_type, p0, p_allowed, p_levels, rules, temperatures)
+    return lower, upper, p_max
+
+
+def bank_lower(
+    problem: Problem,
+    acc_type: str,
+    p0: np.ndarray,
+    p_levels: np.ndarray,
+    rules,
+    temperatures: tuple[float, ...] | None = None,
+) -> np.ndarray:
+    """The ``lower`` part of :func:`bank_bounds`, (T, P, K) [-]: it does not depend on the
+    unload pressure, so the screen computes it once per type for its widest precharge grid."""
+    s = problem.settings
+    temps = temperatures or problem.temperatures
+    p0 = np.asarray(p0, float)
+    lower = np.empty((len(temps), p0.size, p_levels.size))
+    for i, t_k in enumerate(temps):
+        p0_t = gas.precharge_at(p0, t_k, s.gas_model)
+        floor = acc.min_working_pressure_for_precharge(acc_type, p0_t, rules)
+        need = np.maximum(p_levels[None, :], np.asarray(floor)[:, None])
+        lower[i] = gas.oil_fraction(need, p0[:, None], t_k, problem.process, s.gas_model)
+    return lower
+
+
+def bank_upper(
+    problem: Problem,
+    acc_type: str,
+    p0: np.ndarray,
+    p_allowed: float,
+    p_levels: np.ndarray,
+    rules,
+    temperatures: tuple[float, ...] | None = None,
+) -> tuple[np.ndarray, np.ndarray]:
+    """The ``upper`` (T, P) [-] and ``p_max`` (P,) [Pa] parts of :func:`bank_bounds`."""
     s = problem.settings
     model = s.gas_model
-    proc = problem.process
     temps = temperatures or problem.temperatures
     p0 = np.asarray(p0, float)
     p0_cold = gas.precharge_at(p0, s.t_min, model)
     p_type = acc.max_pressure_for_precharge(acc_type, p0_cold, rules)
     p_max = np.minimum(p_allowed, p_type)
     ok = (p_max >= p_levels.max() - 1e-6) & (p_max > p0_cold)
-    lower = np.empty((len(temps), p0.size, p_levels.size))
     upper = np.empty((len(temps), p0.size))
     for i, t_k in enumerate(temps):
-        p0_t = gas.precharge_at(p0, t_k, model)
-        floor = acc.min_working_pressure_for_precharge(acc_type, p0_t, rules)
-        need = np.maximum(p_levels[None, :], np.asarray(floor)[:, None])
-        lower[i] = gas.oil_fraction(need, p0[:, None], t_k, proc, model)
-        upper[i] = np.where(ok, gas.oil_fraction(p_max, p0, t_k, proc, model), -np.inf)
-    return lower, upper, p_max
+        upper[i] = np.where(ok, gas.oil_fraction(p_max, p0, t_k, problem.process, model), -np.inf)
+    return upper, p_max
 
 
 @dataclass(frozen=True)
@@ -396,15 +429,26 @@ def screen(
         deficit_max[j] = dm
 
     bounds_cache: dict[tuple, tuple] = {}
+    # The least oil per precharge does not depend on the unload pressure: one table per type
+    # over the widest precharge grid any pump, motor and shell allow; each unload pressure
+    # takes the prefix of that grid below it.
+    p_widest = max((pump_unload_limit(p, m, s) for p in pumps for m in motors), default=s.p_ambient)
+    full_grid = _precharge_grid(s, p_widest)
+    lower_cache: dict[str, np.ndarray] = {}
 
     def bank_counts(j: int, pump: PumpOption, p_allowed: float, option: AccumulatorOption):
         """Least count per precharge for one pump and row (inf where impossible)."""
         dm = deficit_max[j]
         key = (option.type, round(p_allowed, -2))
         if key not in bounds_cache:
-            grid = _precharge_grid(s, p_allowed)
+            grid = full_grid[full_grid < p_allowed]
             if grid.size:
-                lo, up, pm = bank_bounds(
+                if option.type not in lower_cache:
+                    lower_cache[option.type] = bank_lower(
+                        problem, option.type, full_grid, levels, rules[option.type]
+                    )
+                lo = lower_cache[option.type][:, : grid.size, :]
+                up, pm = bank_upper(
                     problem, option.type, grid, p_allowed, levels, rules[option.type]
                 )
             else:

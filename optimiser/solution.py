@@ -175,7 +175,8 @@ class Design:
         (absolute, line loss included), ``pump_loaded [-]`` (loaded for at least part of the
         step), ``pump_flow [m³/s]`` (mean flow the pump puts into the pressure line over the
         step: less than its full flow when the unloading valve opens part-way through it),
-        ``spill [m³/s]`` (flow over the relief valve: pump-only supplies),
+        ``spill [m³/s]`` (flow over the relief valve: a pump-only supply, or a loaded pump
+        with a full store when the switching limits forbid unloading),
         ``accumulator_oil [m³]`` (at the step end), ``pressure_cold [Pa]`` and
         ``pressure_hot [Pa]`` (quasi-static, at the step end).  Balance per step:
         oil change = (pump_flow − spill − demand)·Δt.

@@ -277,3 +277,140 @@ def test_export_round_trip_with_schedule(cli_run, tmp_path):
         key = (r.controller, round(r.temperature - 273.15, 3))
         assert key in mine
         assert mine[key]["min_margin_bar"] == pytest.approx(r.min_margin / BAR, abs=0.01)
+
+
+# --------------------------------------------------------------------------- schedule.csv
+def _toy_schedule(tmp_path, oil_l, pump_lpm=(30, 30, 30, 30), relief_lpm=(0, 0, 20, 20)):
+    """A 4-step cycle (1 s steps) and a schedule.csv for a 30 L/min pump (invented data).
+
+    Pump loaded throughout; at steps 2 and 3 the store is full and 20 L/min of the 30 go
+    over the relief valve: oil change = (pump flow − relief flow − demand)·Δt.
+    """
+    cyc = tmp_path / "cycle.csv"
+    cyc.write_text(
+        "duration [s], flow [L/min], pressure [bar]\n1, 60, 100\n1, 0, 100\n2, 10, 100\n",
+        encoding="utf-8",
+    )
+    sch = tmp_path / "schedule.csv"
+    pd.DataFrame(
+        {
+            "time [s]": [0.0, 1.0, 2.0, 3.0],
+            "demand [L/min]": [60.0, 0.0, 10.0, 10.0],
+            "pump_loaded": [1, 1, 1, 1],
+            "pump_flow [L/min]": list(pump_lpm),
+            "accumulator_oil [L]": oil_l,
+            "relief_flow [L/min]": list(relief_lpm),
+        }
+    ).to_csv(sch, index=False)
+    return load_cycle(cyc), sch
+
+
+def _read_schedule(cycle, sch):
+    from types import SimpleNamespace
+
+    from optimiser.cli._designfile import _schedule
+
+    notes: list[str] = []
+    pump = SimpleNamespace(flow=30.0 / 60e3)  # 30 L/min, [m³/s]
+    bank = SimpleNamespace(gas_volume=0.01)  # 10 L, [m³]
+    return _schedule(sch, cycle, pump, bank, notes), notes
+
+
+def test_schedule_csv_rounding_above_the_pump_is_accepted(tmp_path):
+    # Regression: the export writes litres with 6 decimals, so one µL too many over a 1 s
+    # step reads as 30.00006 L/min from a 30 L/min pump; that is rounding, not a bad
+    # schedule, and the loaded fraction is clipped to 1.
+    cycle, sch = _toy_schedule(tmp_path, [1.5, 2.000001, 2.0, 2.0])
+    frame, notes = _read_schedule(cycle, sch)
+    assert notes == []
+    assert list(frame["pump_loaded [-]"]) == [1.0, 1.0, pytest.approx(1.0, abs=1e-5), 1.0]
+    assert frame["pump_loaded [-]"].between(0.0, 1.0).all()
+    # The relief flow is read into the design's spill column, [m³/s].
+    assert list(frame["spill [m³/s]"] * 60e3) == pytest.approx([0, 0, 20, 20])
+
+
+def test_schedule_csv_beyond_the_pump_is_skipped_with_one_note(tmp_path):
+    # 0.01 L more over 1 s is 30.6 L/min, far beyond the rounding of 6 decimals (the 0.01 L
+    # leaves over the relief valve in the next step, so the oil balance itself holds).
+    cycle, sch = _toy_schedule(
+        tmp_path, [1.5, 2.01, 2.0, 2.0], pump_lpm=(30, 30.6, 30, 30), relief_lpm=(0, 0, 20.6, 20)
+    )
+    frame, notes = _read_schedule(cycle, sch)
+    assert frame.empty
+    assert len(notes) == 1
+    assert "30.6 L/min" in notes[0] and "outside 0 … 30 L/min" in notes[0]
+
+
+@pytest.fixture(scope="module")
+def forming_press_export(tmp_path_factory):
+    """``stowflow design duty_cycles/forming_press.csv --out DIR``: the demo's exports."""
+    from pathlib import Path
+
+    from optimiser.cli import main
+
+    cyc = Path(__file__).resolve().parent.parent / "duty_cycles" / "forming_press.csv"
+    out = tmp_path_factory.mktemp("forming_press")
+    assert main(["design", str(cyc), "--out", str(out)]) in (0, 1)
+    assert (out / "schedule.csv").is_file()
+    return out, cyc
+
+
+def test_schedule_controller_runs_from_the_design_export(forming_press_export, cli_run):
+    # Regression: the exported schedule was refused ("asks more than the pump delivers")
+    # because the rounded stored oil implied 33.7136 L/min from a 33.7125 L/min pump.
+    out, cyc = forming_press_export
+    code, stdout, stderr = cli_run(
+        "simulate", out / "design.json", cyc, "--controller", "schedule", "--json"
+    )
+    assert code in (0, 1), stderr
+    res = json.loads(stdout)
+    assert {r["controller"] for r in res["runs"]} == {"schedule"}
+    assert not any("schedule controller skipped" in n for n in res["notes"])
+
+
+def test_skipped_schedule_is_explained_once(forming_press_export, cli_run, tmp_path):
+    # A schedule.csv whose oil does not balance: the reader says why it is skipped and the
+    # library's "the design carries no schedule" does not contradict it.
+    out, cyc = forming_press_export
+    t = pd.read_csv(out / "schedule.csv")
+    t.loc[5:, "accumulator_oil [L]"] += 0.5
+    bad = tmp_path / "schedule.csv"
+    t.to_csv(bad, index=False)
+    code, stdout, _ = cli_run("simulate", out / "design.json", cyc, "--schedule", bad, "--json")
+    notes = json.loads(stdout)["notes"]
+    assert code in (0, 1)
+    assert sum("schedule controller skipped" in n for n in notes) == 1
+    assert not any("carries no schedule" in n for n in notes)
+
+
+def test_position_switch_on_a_bladder_is_bad_input(cli_run, tmp_path, repo_root):
+    # Regression: "internal error (ValueError: max() arg is an empty sequence)", exit 1.
+    path = _write(tmp_path, HAND)
+    code, stdout, stderr = cli_run(
+        "simulate",
+        path,
+        repo_root / "duty_cycles" / "die_casting_shot.csv",
+        "--controller",
+        "position-switch",
+    )
+    assert code == 2 and stdout == ""
+    lines = stderr.strip().splitlines()
+    assert len(lines) == 1
+    assert "position-switch needs a piston accumulator" in lines[0] and "bladder" in lines[0]
+
+
+def test_cold_temperature_range_after_an_option(cli_run, tmp_path, repo_root):
+    # Regression: argparse read "-20..60" as an option ("expected one argument").
+    path = _write(tmp_path, HAND)
+    code, stdout, stderr = cli_run(
+        "simulate",
+        path,
+        repo_root / "duty_cycles" / "die_casting_shot.csv",
+        "--controller",
+        "pressure-switch",
+        "--temperature",
+        "-20°C..60°C",
+        "--json",
+    )
+    assert code in (0, 1), stderr
+    assert {r["temperature_c"] for r in json.loads(stdout)["runs"]} == {-20.0, 60.0}

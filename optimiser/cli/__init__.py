@@ -10,15 +10,25 @@ from __future__ import annotations
 
 import argparse
 import importlib
+import re
 import sys
 
 from optimiser import __version__
 from optimiser.errors import StowflowError
 
-__all__ = ["COMMANDS", "build_parser", "main"]
+__all__ = ["COMMANDS", "build_parser", "join_dash_values", "main"]
 
 #: Command modules, in the order ``stowflow --help`` lists them.
-COMMANDS: tuple[str, ...] = ("demo", "design", "check", "simulate", "size", "fill", "precharge")
+COMMANDS: tuple[str, ...] = (
+    "demo",
+    "design",
+    "check",
+    "simulate",
+    "size",
+    "fill",
+    "precharge",
+    "serve",
+)
 
 _DESCRIPTION = (
     "stowflow designs the least-installed-power hydraulic supply for a machine's duty cycle: "
@@ -42,10 +52,51 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
+#: A value that argparse would take for an option: '-' then a digit ("-20..60", "-5bar").
+_DASH_VALUE = re.compile(r"^-\.?\d")
+
+
+def _value_options(parser: argparse.ArgumentParser) -> set[str]:
+    """Option strings of ``parser`` and its subcommands that take a value."""
+    found: set[str] = set()
+    for action in parser._actions:
+        if isinstance(action, argparse._SubParsersAction):
+            for sub in action.choices.values():
+                found |= _value_options(sub)
+        elif action.option_strings and action.nargs != 0:
+            found.update(action.option_strings)
+    return found
+
+
+def join_dash_values(argv: list[str], parser: argparse.ArgumentParser) -> list[str]:
+    """Join an option and a value that starts with '-' and a digit into ``--opt=value``.
+
+    argparse reads ``--temperature -20..60`` as two options and refuses it ("expected one
+    argument"); ``--temperature=-20..60`` it reads as meant.  Only options that take a value
+    are joined, and nothing after ``--``.
+    """
+    takes_value = _value_options(parser)
+    out: list[str] = []
+    i = 0
+    while i < len(argv):
+        token = argv[i]
+        if token == "--":
+            return out + argv[i:]
+        nxt = argv[i + 1] if i + 1 < len(argv) else None
+        if token in takes_value and nxt is not None and _DASH_VALUE.match(nxt):
+            out.append(f"{token}={nxt}")
+            i += 2
+        else:
+            out.append(token)
+            i += 1
+    return out
+
+
 def main(argv: list[str] | None = None) -> int:
     """Run the command line; return the process exit code."""
     argv = list(sys.argv[1:] if argv is None else argv)
     parser = build_parser()
+    argv = join_dash_values(argv, parser)
     args = parser.parse_args(argv)
     debug = bool(getattr(args, "debug", False))
     try:

@@ -368,14 +368,31 @@ def read_setpoints(path: str | Path, p_ambient: float) -> dict:
 #: A schedule.csv is accepted when its stored oil follows its flows to this fraction of the
 #: bank's gas volume per step (the export rounds litres to 6 decimals), [-].
 _CSV_BALANCE_RTOL = 1e-5
+#: Decimals schedule.csv carries for litres and litres per minute (the export,
+#: :func:`optimiser.report.exports.schedule_frame`, rounds to µL and µL/min), [-].
+_CSV_DECIMALS = 6
+
+
+def _rounding_flow(dt: float) -> float:
+    """Largest flow error the export's rounding can put into a step's oil balance, [m³/s].
+
+    Each stored-oil value is off by up to half a unit of its last decimal, so the change over
+    one step by up to one unit, which over ``dt`` is a flow; the relief flow adds half a unit
+    of its own last decimal.
+    """
+    unit = 10.0**-_CSV_DECIMALS
+    return unit * si_factor("L", "volume") / dt + 0.5 * unit * si_factor("L/min", "flow")
 
 
 def _schedule(csv, cycle, pump, bank, notes) -> pd.DataFrame:
     """The design's schedule from a schedule.csv export, on the cycle's grid (else empty).
 
-    The stored-oil column is trusted (it is exported with 6 decimals of a litre); the pump
-    flow is taken from the oil balance so that the cycle closes exactly, after checking that
-    it agrees with the exported pump flow.
+    The stored-oil column is trusted (it is exported with :data:`_CSV_DECIMALS` decimals of
+    a litre); the pump flow is taken from the oil balance so that the cycle closes exactly,
+    after checking that it agrees with the exported pump flow.  The relief flow over a full
+    store (``relief_flow [L/min]``) leaves the balance: oil change = (pump flow − relief
+    flow − demand)·Δt.  The loaded fraction is the balanced pump flow over the pump's, [-],
+    clipped to 0 … 1 once it is inside the export's rounding of that range.
     """
     if csv is None or cycle is None or bank is None or not Path(csv).is_file():
         return pd.DataFrame()
@@ -386,11 +403,10 @@ def _schedule(csv, cycle, pump, bank, notes) -> pd.DataFrame:
         over = next((c for c in ("relief_flow [L/min]", "excess_flow [L/min]") if c in t), None)
         spill = t[over].to_numpy(float) * lpm if over else np.zeros(len(t))
         oil = t["accumulator_oil [L]"].to_numpy(float) * litre
-        loaded = t["pump_loaded"].to_numpy(float)
     except (KeyError, ValueError, OSError, pd.errors.ParserError) as exc:
         notes.append(f"{csv}: not a usable schedule ({exc}); schedule controller skipped")
         return pd.DataFrame()
-    good = all(np.all(np.isfinite(a)) for a in (pf, spill, oil, loaded))
+    good = all(np.all(np.isfinite(a)) for a in (pf, spill, oil))
     if len(t) != cycle.n_steps or not good:
         notes.append(
             f"{csv}: schedule does not fit the cycle's {cycle.n_steps} steps; "
@@ -403,19 +419,26 @@ def _schedule(csv, cycle, pump, bank, notes) -> pd.DataFrame:
     vg = bank.gas_volume
     if np.max(np.abs(balanced - pf)) * dt > _CSV_BALANCE_RTOL * vg:
         notes.append(
-            f"{csv}: stored oil does not follow pump flow − demand; schedule controller skipped"
+            f"{csv}: stored oil does not follow pump flow − relief flow − demand; "
+            "schedule controller skipped"
         )
         return pd.DataFrame()
-    if np.any(balanced > pump.flow * (1 + 1e-6)) or np.any(balanced < -1e-6 * pump.flow):
+    fraction = balanced / pump.flow
+    tol = _rounding_flow(dt) / pump.flow
+    if np.any(fraction > 1 + tol) or np.any(fraction < -tol):
+        i = int(np.argmax((fraction > 1 + tol) | (fraction < -tol)))
         notes.append(
-            f"{csv}: schedule asks more than the pump delivers; schedule controller skipped"
+            f"{csv}: at t = {cycle.time[i]:.4g} s the schedule asks "
+            f"{to_unit(balanced[i], 'L/min', 'flow'):.6g} L/min of the pump, outside 0 … "
+            f"{to_unit(pump.flow, 'L/min', 'flow'):.6g} L/min; schedule controller skipped"
         )
         return pd.DataFrame()
+    fraction = np.clip(fraction, 0.0, 1.0)
     return pd.DataFrame(
         {
             "demand [m³/s]": d,
-            "pump_loaded [-]": loaded,
-            "pump_flow [m³/s]": np.clip(balanced, 0.0, pump.flow),
+            "pump_loaded [-]": fraction,
+            "pump_flow [m³/s]": fraction * pump.flow,
             "spill [m³/s]": spill,
             "accumulator_oil [m³]": oil,
         },

@@ -18,15 +18,16 @@ example:
   stowflow design duty_cycles/forming_press.csv --temperature 10..50 --out reports/press
 
 writes report.html, design.json, schedule.csv and spec.csv to the output folder
-(default reports/<cycle name>/).  Pressures are gauge; values take units (5bar, 1s, 10%%).
+(default reports/<cycle name>/).  Pressures are gauge; values take units (5bar, 1s, 10%).
 """
 
 
 def add_design_options(parser: argparse.ArgumentParser) -> None:
     """Add the design settings and cost options shared by ``design`` and ``demo``."""
     g = parser.add_argument_group("design settings")
-    for key, (_field, kind, text) in DESIGN_OPTIONS.items():
+    for key, (_field, kind, raw) in DESIGN_OPTIONS.items():
         flag = "--" + key.replace("_", "-")
+        text = raw.replace("%", "%%")  # argparse formats help with % ("10%" → "10%%")
         if kind == "choice":
             g.add_argument(flag, dest=f"opt_{key}", choices=("real", "ideal"), help=text)
         else:

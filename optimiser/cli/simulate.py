@@ -16,6 +16,7 @@ from __future__ import annotations
 import argparse
 import json
 import math
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
@@ -28,7 +29,7 @@ from optimiser.catalogue import (
 from optimiser.cli._designfile import load_design, read_setpoints
 from optimiser.cli._output import print_json, print_table
 from optimiser.cycle import load_cycle
-from optimiser.errors import DesignFileError, UnitsError
+from optimiser.errors import DesignFileError, SettingsError, UnitsError
 from optimiser.options import parse_temperature_range
 from optimiser.settings import DesignSettings
 from optimiser.simulate import CONTROLLERS, verify
@@ -225,8 +226,20 @@ def run(args: argparse.Namespace) -> int:
     controllers = tuple(dict.fromkeys(args.controller or CONTROLLERS))
     if controllers == ("schedule",) and design.bank is not None and design.schedule.empty:
         raise DesignFileError(f"{sched}: no usable schedule.csv for the schedule controller")
+    bank = design.bank
+    if args.controller and "position-switch" in controllers and bank is not None:
+        if not bank.option.has_piston:
+            raise SettingsError(
+                f"{design_path}: --controller position-switch needs a piston accumulator "
+                f"(it switches on the piston's position); this design has a {bank.type}"
+            )
     given = read_setpoints(design_path, settings.p_ambient)
     v = verify(design, cycle, settings, controllers=controllers, setpoints=given or None)
+    if any(n.endswith("schedule controller skipped") for n in notes):
+        # The reader already said why the schedule is missing; the library's general
+        # "carries no schedule" would contradict it.
+        kept = tuple(n for n in v.notes if not n.startswith("the design carries no schedule"))
+        v = replace(v, notes=kept)
     pa = settings.p_ambient
     record = _record(v, pa, notes)
     if args.out:

@@ -36,6 +36,14 @@ def warm_up() -> None:
     density(2.0e7, 293.15, "real", method="direct")
 
 
+def _finite(x) -> float | None:
+    """A float for JSON: None for a missing, infinite or NaN value."""
+    if x is None:
+        return None
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
 def run_job(conn: Connection, study: Study, out_dir: str) -> None:
     """Run one study and write its report and exports to ``out_dir``; report on ``conn``.
 
@@ -68,9 +76,9 @@ def run_job(conn: Connection, study: Study, out_dir: str) -> None:
                 {
                     "status": d.status,
                     "reason": d.reason,
-                    "mip_gap": float(d.mip_gap),
+                    "mip_gap": _finite(d.mip_gap),
                     "verified": None if v is None else bool(v.passed),
-                    "seconds": time.perf_counter() - t0,
+                    "seconds": _finite(time.perf_counter() - t0),
                 },
             )
         )

@@ -130,6 +130,10 @@ class ServerConfig:
         Host header values answered (``("*",)`` for any).
     demo_cycle : pathlib.Path or None
         Cycle of the "try the demo cycle" button (default: the bundled forming press).
+    warm_up : bool
+        Whether the fork server fills the real-gas property caches before the first job (a
+        few seconds once; then every real-gas job starts warm).  Off only saves time when
+        the jobs use the ideal-gas model, as the tests do.
     """
 
     workers: int = field(default_factory=_default_workers)
@@ -140,6 +144,7 @@ class ServerConfig:
     max_studies: int = 100
     allowed_hosts: tuple[str, ...] = LOOPBACK_HOSTS
     demo_cycle: Path | None = None
+    warm_up: bool = True
 
     @property
     def limits(self) -> FormLimits:
@@ -202,6 +207,7 @@ def create_app(config: ServerConfig | None = None) -> Starlette:
         queue=cfg.queue,
         time_limit=cfg.time_limit,
         max_studies=cfg.max_studies,
+        warm_up=cfg.warm_up,
     )
     env = jinja2.Environment(
         loader=jinja2.FileSystemLoader(HERE / "templates"),

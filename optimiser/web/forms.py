@@ -40,6 +40,9 @@ __all__ = [
     "study_name",
 ]
 
+#: Part of a job's time limit given to the schedule solves, [-].
+SOLVE_SHARE = 0.5
+
 #: File inputs and the demo button.
 CYCLE_FIELD, CATALOGUE_FIELD, DEMO_FIELD = "cycle", "catalogue", "use_demo"
 
@@ -143,8 +146,14 @@ class FormLimits:
 
     @property
     def solve_time_limit(self) -> float:
-        """Default time limit of one schedule solve: the job's share per design pass, [s]."""
-        return min(DesignSettings().time_limit, self.job_time_limit / (MAX_TIGHTENINGS + 1))
+        """Default time limit of one schedule solve, [s].
+
+        Half the job's limit shared over the most design passes the pipeline makes; the other
+        half is left for reading, screening, model building and the time-domain checks.  A
+        solve stopped by it returns the best schedule found, with its gap ("feasible").
+        """
+        share = SOLVE_SHARE * self.job_time_limit / (MAX_TIGHTENINGS + 1)
+        return min(DesignSettings().time_limit, share)
 
 
 def _example(help_text: str) -> str:
@@ -167,7 +176,7 @@ def _field(name: str, key: str, help_text: str, limits: FormLimits) -> FormField
         help_text += (
             f"; this server's default is {limits.solve_time_limit:g} s so that all "
             f"{MAX_TIGHTENINGS + 1} design passes fit in its {limits.job_time_limit:g} s "
-            "limit per design"
+            "limit per design; a solve stopped by it keeps the best schedule found"
         )
     return FormField(name, label, help_text, placeholder, choices, suggestions)
 

@@ -27,8 +27,10 @@ import multiprocessing
 import secrets
 import shutil
 import statistics
+import sys
 import tempfile
 import time
+import traceback
 from collections import OrderedDict, deque
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -130,16 +132,29 @@ class JobManager:
         Wall-clock limit of one job, [s].
     max_studies : int
         Most studies kept (older finished ones are deleted), [-].
+    warm_up : bool
+        Whether the fork server also fills the real-gas property caches (else it only imports
+        the pipeline).  The fork server is one per process: the first manager's choice holds.
     """
 
-    def __init__(self, *, workers: int, queue: int, time_limit: float, max_studies: int) -> None:
+    def __init__(
+        self,
+        *,
+        workers: int,
+        queue: int,
+        time_limit: float,
+        max_studies: int,
+        warm_up: bool = True,
+    ) -> None:
         self.workers, self.queue_size = workers, queue
         self.time_limit, self.max_studies = time_limit, max_studies
         self.jobs: OrderedDict[str, Job] = OrderedDict()
         self.pending: deque[str] = deque()
         self.root: Path | None = None
         self._ctx = multiprocessing.get_context("forkserver")
-        self._ctx.set_forkserver_preload(["optimiser.web._preload"])
+        self._ctx.set_forkserver_preload(
+            ["optimiser.web._preload" if warm_up else "optimiser.web._worker"]
+        )
         self._durations: deque[float] = deque(maxlen=20)
         self._task: asyncio.Task | None = None
         self._warming: asyncio.Task | None = None
@@ -190,8 +205,12 @@ class JobManager:
         return sum(1 for j in self.jobs.values() if j.state == "running")
 
     def full(self) -> bool:
-        """Whether a new job would be refused."""
-        return len(self.pending) >= self.queue_size and self.running >= self.workers
+        """Whether a new job would be refused: every worker and every queue place taken.
+
+        A job waiting while a worker is free (until the watcher's next look) takes a worker's
+        place, so a burst of uploads never gets more than ``workers + queue`` accepted.
+        """
+        return len(self.pending) + self.running >= self.workers + self.queue_size
 
     def retry_after(self) -> int:
         """Estimated wait until a place frees up, [s] (at least 1)."""
@@ -229,15 +248,21 @@ class JobManager:
     async def watch(self) -> None:
         """Drain progress, enforce the time limit, start queued jobs; forever."""
         while True:
-            for job in list(self.jobs.values()):
-                if job.state == "running":
-                    self._poll(job)
-            self._reap()
-            while self.pending and self.running < self.workers:
-                job = self.jobs.get(self.pending.popleft())
-                if job is not None and job.state == "queued":
-                    await self._launch(job)
+            try:
+                await self._step()
+            except Exception:  # a bug here must not stop every later job: log it, go on
+                traceback.print_exc(file=sys.stderr)
             await asyncio.sleep(POLL_INTERVAL)
+
+    async def _step(self) -> None:
+        for job in list(self.jobs.values()):
+            if job.state == "running":
+                self._poll(job)
+        self._reap()
+        while self.pending and self.running < self.workers:
+            job = self.jobs.get(self.pending.popleft())
+            if job is not None and job.state == "queued":
+                await self._launch(job)
 
     async def _launch(self, job: Job) -> None:
         reader, writer = self._ctx.Pipe(duplex=False)
@@ -246,12 +271,19 @@ class JobManager:
         proc = self._ctx.Process(
             target=run_job, args=(writer, job.study, str(out)), name=f"stowflow-job-{job.id}"
         )
-        job.state, job.label, job.started = "running", "starting", time.monotonic()
+        job.state, job.label = "running", "starting a worker"
         job.process, job.conn, job.study = proc, reader, None
         try:
+            # The first start waits for the fork server's warm-up; the clock starts after it.
             await anyio.to_thread.run_sync(proc.start)
-        except Exception as exc:  # pragma: no cover - the machine refused a process
-            self._end(job, "failed", f"could not start a worker process ({exc})")
+            job.started = time.monotonic()
+        except Exception as exc:  # the machine refused a process (or a bad __main__)
+            job.process = None  # never started: nothing to join
+            first = str(exc).strip().splitlines()[0] if str(exc).strip() else ""
+            self._end(
+                job, "failed", f"could not start a worker process ({type(exc).__name__}: {first})"
+            )
+            traceback.print_exc(file=sys.stderr)
         finally:
             writer.close()
 

@@ -231,10 +231,11 @@ async def read_form(
     declared = headers.get("content-length")
     if declared is not None:
         try:
-            if int(declared) > max_bytes:
-                raise too_big
+            length = int(declared)
         except ValueError:
             raise UploadError(f"Content-Length '{declared[:20]}' is not a number") from None
+        if length > max_bytes:
+            raise too_big  # refused before a byte of the body is read
     counter = _Counter(text_fields, file_fields, max_lines or {})
     try:
         parser = MultipartParser(boundary, counter.callbacks())
