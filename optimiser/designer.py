@@ -217,6 +217,7 @@ def design(
     *,
     extra_pressure: np.ndarray | float = 0.0,
     progress: Callable[[float, str], None] | None = None,
+    min_power: float = 0.0,
     **overrides,
 ) -> Design:
     """Find the least-installed-power supply for a cycle.
@@ -233,6 +234,8 @@ def design(
         Extra pressure on every step's requirement (the verification's tightening), [Pa].
     progress : callable, optional
         ``progress(fraction, label)``.
+    min_power : float
+        Motor ratings known to be infeasible lie below this, [W] (see :func:`screen`).
 
     Returns
     -------
@@ -258,7 +261,7 @@ def design(
         fixed_baseline(demand, problem.p_step, dt, catalogue, s),
         compensated_baseline(demand, problem.p_step, dt, catalogue, s),
     )
-    sr = screen(problem, catalogue, report=lambda f, lab: report(0.4 * f, lab))
+    sr = screen(problem, catalogue, report=lambda f, lab: report(0.4 * f, lab), min_power=min_power)
     notes = [f"gas process: {problem.process_note}"]
     empty = pd.DataFrame()
     if not sr.candidates:

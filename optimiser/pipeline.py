@@ -31,6 +31,8 @@ __all__ = ["MAX_TIGHTENINGS", "Attempt", "Study", "StudyResult", "run"]
 MAX_TIGHTENINGS = 4
 #: Extra pressure added on top of a measured shortfall when tightening, [Pa].
 TIGHTEN_MARGIN = 0.5e5
+#: Resolution of the raised requirement, [Pa] (rounded up).
+TIGHTEN_STEP = 0.5e5
 #: Factor on the tightening per pass in a row that left the design unchanged, [-].
 STUCK_GAIN = 4.0
 
@@ -195,6 +197,8 @@ def run(study: Study, *, progress: Callable[[float, str], None] | None = None) -
             settings,
             extra_pressure=extra,
             progress=lambda f, lab, stage=stage: stage(0.5 * f, lab),
+            # a raised requirement never makes a smaller motor feasible again
+            min_power=previous.levels["installed_power [W]"] if previous is not None else 0.0,
         )
         t_design += time.perf_counter() - t1
         if not d.feasible or not study.verify:
@@ -218,7 +222,10 @@ def run(study: Study, *, progress: Callable[[float, str], None] | None = None) -
         stuck = stuck + 1 if same else 0
         previous = d
         gain = STUCK_GAIN**stuck
-        extra = extra + np.where(v.shortfall > 0, gain * (v.shortfall + TIGHTEN_MARGIN), 0.0)
+        raise_by = np.where(v.shortfall > 0, gain * (v.shortfall + TIGHTEN_MARGIN), 0.0)
+        # Rounded up to TIGHTEN_STEP: conservative, and few distinct pressure levels keep the
+        # screen's tables small.
+        extra = extra + np.ceil(raise_by / TIGHTEN_STEP) * TIGHTEN_STEP
     assert result is not None
     if verification is not None and verification.passed:
         # The working window the designer sets up is the one the recommended controller

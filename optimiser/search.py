@@ -385,6 +385,7 @@ def screen(
     catalogue: Catalogue,
     *,
     report: Callable[[float, str], None] | None = None,
+    min_power: float = 0.0,
 ) -> ScreenResult:
     """Exhaustive exact screen for levels 1 and 2 (least installed power, then least capex).
 
@@ -396,6 +397,9 @@ def screen(
         Components to choose from.
     report : callable, optional
         ``report(fraction_done, label)`` for progress.
+    min_power : float
+        Motor ratings below this are known to be infeasible and are skipped, [W] (the closed
+        loop only ever raises the requirement, so a rating that failed before fails again).
 
     Returns
     -------
@@ -526,6 +530,8 @@ def screen(
     frontier: list[Candidate] = []
     motor_powers = sorted({m.rated_power for m in motors})
     for level_no, power in enumerate(motor_powers):
+        if power < min_power * (1 - 1e-12):
+            continue
         if report:
             report(level_no / max(len(motor_powers), 1), f"motor {power / 1e3:g} kW")
         found = level_candidates(power)

@@ -14,6 +14,7 @@ import html
 import math
 from collections.abc import Callable
 from importlib import resources
+from pathlib import PurePath
 
 import plotly.graph_objects as go
 import plotly.offline
@@ -549,7 +550,8 @@ def render_html(result, *, generated: _dt.date | None = None) -> str:
     t_hi = kelvin_to_celsius(result.settings.t_max)
     meta = (
         f"cycle {cyc.name} · {cyc.n_steps} steps of {cyc.dt:g} s · {t_lo:.0f} … {t_hi:.0f} °C · "
-        f"catalogue {result.catalogue.source} · {day} · stowflow {__version__}"
+        # the file name only: a report travels, and a local folder means nothing to its reader
+        f"catalogue {PurePath(result.catalogue.source).name} · {day} · stowflow {__version__}"
     )
     plotly_js = plotly.offline.get_plotlyjs()
     return (

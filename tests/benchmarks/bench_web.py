@@ -1,6 +1,7 @@
 """Load benchmark of the local web page (run on demand, not part of the test suite).
 
     python tests/benchmarks/bench_web.py                    # 16 clients, 3 rounds
+    python tests/benchmarks/bench_web.py --parts report,load  # upload→report, 50 at once
     python tests/benchmarks/bench_web.py --clients 32 --requests 100 --rounds 5
 
 Starts ``stowflow serve`` on a free loopback port in a subprocess (one worker, two waiting by
@@ -17,7 +18,19 @@ default) and measures, with plain standard-library HTTP clients in threads:
 4. **Form page while the designs run.**  Step 1 again while the worker processes keep the CPU
    busy: does the page stay responsive?
 
-Each round uses a fresh server; the medians over the rounds are printed at the end.
+Each round uses a fresh server; the medians over the rounds are printed at the end.  Then,
+each once on a fresh server:
+
+5. **Upload to finished report.**  The bundled demo cycle (the "try the demo cycle" button,
+   default settings), ``--report-runs`` times one after the other through one server with one
+   worker: the time from sending the form to having report.html in hand [s], median and each
+   run (the first includes the fork server's warm-up).
+6. **Burst of uploads.**  ``--load-clients`` clients upload a small invented cycle at the same
+   moment (``--workers 1 --queue 4``, as tests/test_web_load.py): completed, refused (503),
+   anything else, p95 latency of the answers [ms], and the peak resident memory of the server
+   with its fork server and job processes [MiB].
+
+``--parts`` chooses among ``pages`` (1-4), ``report`` (5) and ``load`` (6).
 """
 
 from __future__ import annotations
@@ -25,57 +38,30 @@ from __future__ import annotations
 import argparse
 import http.client
 import select
-import signal
 import socket
 import statistics
-import subprocess
 import sys
+import tempfile
 import threading
 import time
+from pathlib import Path
+
+import httpx
+
+# tests/ is no package: the helpers shared with the web tests are found by path.
+sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
+from _web_server import (
+    load_run,
+    percentile,
+    start_serve,
+    stop_serve,
+    upload_burst,
+    wait_final,
+)
 
 BOUNDARY = "benchboundary"
-DEMO_BODY = (
-    f'--{BOUNDARY}\r\nContent-Disposition: form-data; name="use_demo"\r\n\r\n1\r\n'
-    f"--{BOUNDARY}--\r\n"
-).encode()
-FORM_HEADERS = {
-    "Content-Type": f"multipart/form-data; boundary={BOUNDARY}",
-    "Content-Length": str(len(DEMO_BODY)),
-}
-
-
-def free_port() -> int:
-    with socket.socket() as s:
-        s.bind(("127.0.0.1", 0))
-        return s.getsockname()[1]
-
-
-def start_server(port: int, workers: int, queue: int) -> subprocess.Popen:
-    cmd = [sys.executable, "-m", "optimiser", "serve", "--port", str(port)]
-    cmd += ["--workers", str(workers), "--queue", str(queue)]
-    proc = subprocess.Popen(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, text=True)
-    deadline = time.monotonic() + 60
-    while time.monotonic() < deadline:
-        try:
-            with socket.create_connection(("127.0.0.1", port), timeout=0.5):
-                return proc
-        except OSError:
-            time.sleep(0.1)
-    proc.kill()
-    raise SystemExit("stowflow serve did not start")
-
-
-def stop_server(proc: subprocess.Popen) -> None:
-    proc.send_signal(signal.SIGINT)
-    try:
-        proc.wait(timeout=30)
-    except subprocess.TimeoutExpired:
-        proc.kill()
-
-
-def pct(values: list[float], q: float) -> float:
-    values = sorted(values)
-    return values[min(len(values) - 1, round(q * (len(values) - 1)))]
+#: Upload of the load burst: the small cycle on a coarse grid (as tests/test_web_load.py).
+LOAD_FIELDS = {"step": "0.5s"}
 
 
 def form_page_load(port: int, clients: int, requests: int) -> dict:
@@ -110,42 +96,25 @@ def form_page_load(port: int, clients: int, requests: int) -> dict:
         t.join()
     wall = time.perf_counter() - t0
     return {
-        "p50_ms": pct(latencies, 0.50),
-        "p95_ms": pct(latencies, 0.95),
+        "p50_ms": percentile(latencies, 0.50),
+        "p95_ms": percentile(latencies, 0.95),
         "max_ms": max(latencies),
         "rps": len(latencies) / wall,
         "errors": len(errors),
     }
 
 
-def burst(port: int, n: int) -> dict:
+def burst(url: str, n: int) -> dict:
     """``n`` simultaneous demo submissions: status codes, Retry-After, refusal latency [ms]."""
-    results: list[tuple[int, str | None, float]] = []
-    lock = threading.Lock()
-    start = threading.Barrier(n)
-
-    def client() -> None:
-        conn = http.client.HTTPConnection("127.0.0.1", port, timeout=60)
-        start.wait()
-        t0 = time.perf_counter()
-        conn.request("POST", "/studies", body=DEMO_BODY, headers=FORM_HEADERS)
-        r = conn.getresponse()
-        r.read()
-        with lock:
-            results.append((r.status, r.getheader("Retry-After"), time.perf_counter() - t0))
-        conn.close()
-
-    threads = [threading.Thread(target=client) for _ in range(n)]
-    for t in threads:
-        t.start()
-    for t in threads:
-        t.join()
-    refused = [ms for s, _, ms in results if s == 503]
+    answers = upload_burst(url, n, None, use_demo="1")
+    refused = [a.seconds for a in answers if a.status == 503]
     return {
-        "accepted": sum(1 for s, _, _ in results if s == 303),
+        "accepted": sum(1 for a in answers if a.status == 303),
         "refused": len(refused),
-        "other": sorted(s for s, _, _ in results if s not in (303, 503)),
-        "retry_after_ok": all(h and int(h) >= 1 for s, h, _ in results if s == 503),
+        "other": sorted(a.status for a in answers if a.status not in (303, 503)),
+        "retry_after_ok": all(
+            a.retry_after and int(a.retry_after) >= 1 for a in answers if a.status == 503
+        ),
         "refusal_p50_ms": 1e3 * statistics.median(refused) if refused else float("nan"),
     }
 
@@ -192,30 +161,23 @@ def streamed_oversize(
 
 
 def one_round(args) -> dict:
-    port = free_port()
-    proc = start_server(port, args.workers, args.queue)
+    served = start_serve("--workers", str(args.workers), "--queue", str(args.queue))
+    port = served.port
     try:
         form_page_load(port, 2, 5)  # warm the connection pool and the templates
         idle = form_page_load(port, args.clients, args.requests)
         # Before the burst: a full queue refuses an upload unread.
         big = streamed_oversize(port, lines=True)
         long = streamed_oversize(port, lines=False)
-        b = burst(port, args.workers + args.queue + args.extra)
+        b = burst(served.url, args.workers + args.queue + args.extra)
         busy = form_page_load(port, args.clients, args.requests)
     finally:
-        stop_server(proc)
+        stop_serve(served)
     return {"idle": idle, "burst": b, "busy": busy, "upload": big, "long": long}
 
 
-def main() -> None:
-    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("--clients", type=int, default=16)
-    ap.add_argument("--requests", type=int, default=50, help="GET / per client")
-    ap.add_argument("--workers", type=int, default=1)
-    ap.add_argument("--queue", type=int, default=2)
-    ap.add_argument("--extra", type=int, default=5, help="submissions beyond workers + queue")
-    ap.add_argument("--rounds", type=int, default=3)
-    args = ap.parse_args()
+def pages(args) -> None:
+    """Parts 1-4, over ``--rounds`` fresh servers."""
     rounds = []
     for k in range(args.rounds):
         r = one_round(args)
@@ -260,6 +222,75 @@ def main() -> None:
         f"  50 MB streamed upload: answered after {med('upload', 'sent_mb'):.1f} MB sent (short "
         f"lines: line limit), {med('long', 'sent_mb'):.1f} MB (one line: 5 MB byte limit)"
     )
+
+
+def report_time(runs: int) -> None:
+    """Part 5: demo cycle, upload to report.html in hand, ``runs`` times on one server."""
+    served = start_serve("--workers", "1")
+    seconds, states = [], []
+    try:
+        with httpx.Client(base_url=served.url, timeout=120) as client:
+            for _ in range(runs):
+                t0 = time.perf_counter()
+                r = client.post("/studies", files={"use_demo": (None, "1")})
+                location = r.headers["location"]
+                status = wait_final(client, location, 300)
+                report = client.get(f"{location}/report")
+                seconds.append(time.perf_counter() - t0)
+                states.append(f"{status['state']}/{(status['summary'] or {}).get('status')}")
+                if report.status_code != 200:
+                    print(f"  UNEXPECTED: {location}: {status}, report {report.status_code}")
+    finally:
+        stop_serve(served)
+    print(
+        f"\ndemo cycle, upload to report.html (1 worker, {runs} runs one after the other, "
+        f"status polled every 0.1 s): median {statistics.median(seconds):.1f} s; runs "
+        + ", ".join(f"{s:.1f}" for s in seconds)
+        + f" s (the first includes the fork server's warm-up); {', '.join(sorted(set(states)))}"
+    )
+
+
+def load(clients: int) -> None:
+    """Part 6: ``clients`` uploads at once against one worker and four places."""
+    with tempfile.TemporaryDirectory(prefix="bench-web-") as tmp:
+        run = load_run(Path(tmp), clients, workers=1, queue=4, finish_s=120, **LOAD_FIELDS)
+    latencies = [1e3 * a.seconds for a in run.answers]
+    done = sum(1 for f in run.finals if f["state"] == "done")
+    other = sorted(a.status for a in run.answers if a.status not in (303, 503))
+    print(
+        f"\n{clients} uploads at once (--workers 1 --queue 4, 3-phase invented cycle, 0.5 s "
+        f"step, ideal gas, bladder): {len(run.accepted)} accepted of which {done} completed, "
+        f"{len(run.refused)} refused (503, Retry-After "
+        f"{'on all' if all(a.retry_after for a in run.refused) else 'MISSING'}), "
+        f"other {other or 'none'}; answer latency p50 {percentile(latencies, 0.5):.0f} ms, "
+        f"p95 {percentile(latencies, 0.95):.0f} ms, max {max(latencies):.0f} ms; peak memory "
+        f"{run.peak_total_mib:.0f} MiB for the whole tree ({run.processes} processes seen, "
+        f"largest one {run.peak_process_mib:.0f} MiB); GET / after: {run.form_status}; "
+        f"left in TMPDIR after Ctrl+C: {run.left or 'nothing'}"
+    )
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--clients", type=int, default=16)
+    ap.add_argument("--requests", type=int, default=50, help="GET / per client")
+    ap.add_argument("--workers", type=int, default=1)
+    ap.add_argument("--queue", type=int, default=2)
+    ap.add_argument("--extra", type=int, default=5, help="submissions beyond workers + queue")
+    ap.add_argument("--rounds", type=int, default=3)
+    ap.add_argument("--report-runs", type=int, default=5, help="demo designs, one by one")
+    ap.add_argument("--load-clients", type=int, default=50, help="uploads at the same moment")
+    ap.add_argument("--parts", default="pages,report,load", help="of pages, report, load")
+    args = ap.parse_args()
+    parts = {p.strip() for p in args.parts.split(",")}
+    if parts - {"pages", "report", "load"}:
+        ap.error(f"--parts {args.parts}: expected a comma list of pages, report, load")
+    if "pages" in parts:
+        pages(args)
+    if "report" in parts:
+        report_time(args.report_runs)
+    if "load" in parts:
+        load(args.load_clients)
 
 
 if __name__ == "__main__":
