@@ -339,15 +339,18 @@ def design(
                 # valve (the unloading valve would make a load event).  The relief valve then
                 # passes the full pump flow, so its override must stay within the pump's and
                 # the shell's ratings: the unload pressure comes down if needed.
-                fam = _relief_flow_family(problem, cand, fam, catalogue)
+                held = _relief_flow_family(problem, cand, fam, catalogue)
                 u1 = np.ones(problem.n, dtype=int)
-                run = run_store(u1, demand, fam.sp.qp, dt, fam.sp.upper)
+                run = None
+                if held is not None:
+                    run = run_store(u1, demand, held.sp.qp, dt, held.sp.upper)
                 if run is not None:
                     flows = (run.oil, np.zeros(problem.n), run.spill)
                     cand_best = _accept(
-                        problem, fam, cand, u1, (0.0, math.nan, "optimal", 1), notes, flows
+                        problem, held, cand, u1, (0.0, math.nan, "optimal", 1), notes, flows
                     )
                 if cand_best is not None:
+                    fam = held
                     notes.append(
                         "the load-event limit allows no load event in a cycle this short: "
                         "the pump stays loaded and the relief valve takes what the full store "
@@ -535,16 +538,19 @@ def _accept(problem, fam, cand, u, solver, notes, flows=None):
     return (e, fam, cand, u, oil, returned, relief, *solver)
 
 
-def _relief_flow_family(problem: Problem, cand: Candidate, fam: Family, catalogue) -> Family:
+def _relief_flow_family(problem: Problem, cand: Candidate, fam: Family, catalogue) -> Family | None:
     """The family with its unload pressure lowered so that the relief valve passing the full
     pump flow (:data:`optimiser._simcore.RELIEF_OVERRIDE` above cracking) stays within the
-    pump's and the accumulator's maximum pressure."""
+    pump's and the accumulator's maximum pressure; None when that leaves no room above the
+    requirement."""
     s = problem.settings
     limit = min(cand.pump.max_pressure, cand.option.max_pressure)
     pa = s.p_ambient
     p_cap = s.max_unload_for_relief(pa + (limit - pa) / (1.0 + RELIEF_OVERRIDE))
-    if p_cap >= fam.p_max or p_cap < float(problem.p_end.max()):
+    if p_cap >= fam.p_max:
         return fam
+    if p_cap < float(problem.p_end.max()):
+        return None
     return family_problem(problem, cand, fam.precharge, p_cap, catalogue)
 
 
