@@ -58,6 +58,10 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+# pyomo.core is all the model needs (pyomo.environ would also load every solver plugin); the
+# standard-form compiler hands the model to HiGHS.
+import pyomo.core as pyo
+
 from optimiser.schedule import run_store, window_steps
 
 __all__ = [
@@ -372,8 +376,6 @@ def solve_schedule(
     -------
     ScheduleSolution
     """
-    import pyomo.environ as pyo
-
     if valves not in VALVE_MODES:
         raise ValueError(f"valves must be one of {VALVE_MODES}, not {valves!r}")
     strict = valves == "strict"

@@ -101,7 +101,9 @@ def hostile():
     from optimiser.pipeline import Study, run
 
     cycle = parse_cycle_text(_HOSTILE_CYCLE, name=STUDY_NAME)
-    cat = parse_catalogue_text(_HOSTILE_CATALOGUE, source="<script>x</script>.toml")
+    cat = parse_catalogue_text(
+        _HOSTILE_CATALOGUE, source="/srv/uploads/<img src=y onerror=alert(4)>.toml"
+    )
     return run(Study(cycle=cycle, catalogue=cat, verify=False))
 
 

@@ -163,7 +163,9 @@ def test_user_strings_are_inert_in_the_html():
     assert "&lt;img src=x onerror=alert(2)&gt;" in rest  # study name in the title and header
     assert "&lt;script&gt;alert(3)&lt;/script&gt;" in rest  # catalogue name in the spec
     assert "&lt;b&gt;EUR&lt;/b&gt;" in rest  # currency label
-    assert "&lt;script&gt;x&lt;/script&gt;.toml" in rest  # catalogue file name
+    # the catalogue's file name, escaped, without the folder it was read from
+    assert "&lt;img src=y onerror=alert(4)&gt;.toml" in rest
+    assert "/srv/uploads" not in rest
     # cycle labels travel in the figure data: HTML-escaped before Plotly sees them (Plotly
     # renders some tags in labels), then JSON-escaped by Plotly inside the script block
     assert "\\u003cscript\\u003ealert(1)" not in rest

@@ -48,7 +48,6 @@ from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
-from scipy.optimize import brentq
 
 from optimiser._n2table import fields_rhoT, isentrope_T_at_rho
 from optimiser.duties._common import (
@@ -207,6 +206,8 @@ def _margin(log_m, rho0, T, p_c, standby_leak, cum, p_min, proc, model) -> float
 
 def _least_mass(rho0, T, p_c, standby_leak, cum, p_min, proc, model) -> float:
     """Least nitrogen mass that meets every motion at temperature T, [kg]."""
+    from scipy.optimize import brentq  # here: scipy is slow to import and rarely needed
+
     rho_c = float(density(p_c, T, model))
     rho_min = np.asarray(density(p_min, T, model), dtype=float)
     # Isothermal lower bound: (leak + draw_i) ≤ m (1/ρ(p_min,i) − 1/ρ_c).

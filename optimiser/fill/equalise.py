@@ -29,7 +29,6 @@ from __future__ import annotations
 
 import numpy as np
 import pandas as pd
-from scipy.optimize import brentq
 
 from optimiser._n2table import fields_rhoT, isentrope_T_at_rho
 from optimiser.gas import KAPPA, density, pressure_from_density, state_from_density
@@ -125,6 +124,8 @@ def adiabatic_transfer(
             return after(0.0)
         # The warm receiver and the cold bottle meet before the settled split is reached.
         settled = (m_a + m_b) / (V_a + V_b) * V_a - m_a
+        from scipy.optimize import brentq  # here: scipy is slow to import and rarely needed
+
         dm = brentq(lambda x: after(x)["p_a"] - after(x)["p_b"], 0.0, settled, xtol=1e-14 * m_b)
     return after(float(dm))
 

@@ -2,6 +2,7 @@
 
     python tests/benchmarks/bench_design.py            # everything
     python tests/benchmarks/bench_design.py --quick    # skip the exhaustive sweep
+    python tests/benchmarks/bench_design.py --scaling  # only the 600 / 6,000 / 36,000-step runs
 
 1. Whole-process wall time of ``stowflow check``, ``stowflow design`` and ``stowflow demo`` on the
    bundled demo (median of 5 runs each, fresh processes, imports included).
@@ -10,6 +11,10 @@
    step-by-step simulation of the always-loaded store at both temperature ends): both must give
    the same least installed power and capex; the ratio of their times is reported, measured in
    the same run.
+3. Scaling: the forming-press cycle repeated to about 600, 6,000 and 36,000 steps (same step),
+   one fresh process each: wall time of ``design()``, the schedule model's Pyomo build and its
+   solve (standard-form compile + HiGHS) separately, the block size, and the process's peak
+   resident memory.
 """
 
 from __future__ import annotations
@@ -133,11 +138,52 @@ def sweep(cycle, catalogue, s: DesignSettings) -> tuple[float, float, int]:
     return best[0], best[1], judged
 
 
+def scaling_run(repeats: int) -> None:
+    """One scaling point, in this process: print one line of figures."""
+    import resource
+
+    from optimiser.cycle import cycle_from_arrays
+
+    base = load_cycle(CYCLE)
+    flow = np.tile(base.flow, repeats)
+    pressure = np.tile(base.pressure, repeats)
+    c = cycle_from_arrays(base.dt, flow, pressure, name=f"press x{repeats}")
+    cat = load_catalogue(CATALOGUE)
+    t0 = time.perf_counter()
+    d = design(c, cat, DesignSettings())
+    wall_s = time.perf_counter() - t0
+    peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024  # Linux: kB → MiB
+    st = d.stats
+    print(
+        f"{c.n_steps:>6} steps: design() {wall_s:6.2f} s (screen {st.screen_time:.2f} s, "
+        f"Pyomo build {st.build_time:.2f} s, solve {st.solve_time:.2f} s, block {st.block}), "
+        f"status {d.status}, gap {d.mip_gap:.1e}, peak memory {peak:.0f} MiB"
+    )
+
+
+def scaling() -> None:
+    """The three scaling points, each in a fresh process (peak memory is per process)."""
+    base = load_cycle(CYCLE)
+    for target in (600, 6000, 36000):
+        repeats = max(1, round(target / base.n_steps))
+        subprocess.run(
+            [sys.executable, __file__, "--scaling-point", str(repeats)], check=False, cwd=ROOT
+        )
+
+
 def main() -> None:
     """Run the benchmarks and print the figures."""
     ap = argparse.ArgumentParser()
     ap.add_argument("--quick", action="store_true", help="skip the exhaustive sweep")
+    ap.add_argument("--scaling", action="store_true", help="only the scaling runs")
+    ap.add_argument("--scaling-point", type=int, help=argparse.SUPPRESS)
     args = ap.parse_args()
+    if args.scaling_point:
+        scaling_run(args.scaling_point)
+        return
+    if args.scaling:
+        scaling()
+        return
     exe = [sys.executable, "-m", "optimiser"]
     with tempfile.TemporaryDirectory() as tmp:
         for name, argv in (
