@@ -263,8 +263,8 @@ def design(
     )
     sr = screen(problem, catalogue, report=lambda f, lab: report(0.4 * f, lab), min_power=min_power)
     notes = [f"gas process: {problem.process_note}"]
-    empty = pd.DataFrame()
-    if not sr.candidates:
+
+    def infeasible(reason: str) -> Design:
         stats = SearchStats(
             candidates=sr.evaluated,
             screen_time=sr.elapsed,
@@ -272,7 +272,7 @@ def design(
         )
         return Design(
             "infeasible",
-            sr.reason,
+            reason,
             None,
             None,
             None,
@@ -280,7 +280,7 @@ def design(
             math.nan,
             math.nan,
             _process_label(problem),
-            empty,
+            pd.DataFrame(),
             math.nan,
             math.nan,
             math.nan,
@@ -290,6 +290,9 @@ def design(
             stats,
             tuple(notes),
         )
+
+    if not sr.candidates:
+        return infeasible(sr.reason)
 
     # Level 3 among the ties: rank by the ideal controller, then the MILP for the best few.
     report(0.45, "ranking tied designs by energy")
@@ -321,119 +324,18 @@ def design(
         if fam is None:
             cand_best = (e_rank, None, cand, u0, None, None, None, 0.0, e_rank, "optimal", 1)
         else:
-            u0 = greedy_schedule(
-                demand,
-                fam.sp.lower,
-                fam.sp.upper,
-                fam.sp.qp,
-                dt,
-                min_up=fam.sp.min_up,
-                min_down=fam.sp.min_down,
-                max_events_per_hour=fam.sp.max_events_per_hour,
-                discharge_limit=fam.sp.discharge_limit,
+            cand_best, n_solves, t_build, t_solve = _schedule_family(
+                problem, fam, cand, catalogue, notes
             )
-            block = _block_size(problem, fam.sp)
-            cand_best = None
-            if _no_load_event_allowed(problem, fam.sp):
-                # One schedule is left: loaded throughout; a full store spills over the relief
-                # valve (the unloading valve would make a load event).  The relief valve then
-                # passes the full pump flow, so its override must stay within the pump's and
-                # the shell's ratings: the unload pressure comes down if needed.
-                held = _relief_flow_family(problem, cand, fam, catalogue)
-                u1 = np.ones(problem.n, dtype=int)
-                run = None
-                if held is not None:
-                    run = run_store(u1, demand, held.sp.qp, dt, held.sp.upper)
-                if run is not None:
-                    flows = (run.oil, np.zeros(problem.n), run.spill)
-                    cand_best = _accept(
-                        problem, held, cand, u1, (0.0, math.nan, "optimal", 1), notes, flows
-                    )
-                if cand_best is not None:
-                    fam = held
-                    notes.append(
-                        "the load-event limit allows no load event in a cycle this short: "
-                        "the pump stays loaded and the relief valve takes what the full store "
-                        "cannot"
-                    )
-            modes = () if cand_best is not None else _valve_modes(problem, fam.sp, block)
-            for valves in modes:
-                sol = solve_schedule(
-                    fam.sp,
-                    warm_u=u0 if block == 1 else None,
-                    block=block,
-                    mip_gap=s.mip_gap,
-                    time_limit=s.time_limit if valves == "switch" else STRICT_TIME_LIMIT,
-                    valves=valves,
-                )
-                solved += 1
-                build_time += sol.build_time
-                solve_time += sol.solve_time
-                if sol.status == "failed":
-                    continue
-                rec = _accept(
-                    problem,
-                    fam,
-                    cand,
-                    sol.u,
-                    (sol.gap, sol.bound, sol.status, sol.block),
-                    notes,
-                    (sol.oil, sol.spill, sol.relief),
-                )
-                if rec is None:
-                    continue
-                cand_best = rec
-                if valves == "strict":
-                    notes.append(
-                        "the load events hidden in part-loaded steps would break the limit: "
-                        "the schedule unloads only at the end of a loaded stretch and the "
-                        "relief valve takes what a full store cannot"
-                    )
-                if not _hidden_excess(problem, fam.sp, sol.u, sol.spill):
-                    break
-            if cand_best is not None:
-                excess = _hidden_excess(problem, fam.sp, cand_best[3], cand_best[5])
-                if excess:
-                    notes.append(
-                        f"the schedule is the ideal pressure switch's plan: its part-loaded "
-                        f"steps would mean {excess:.0f} load events per hour, above the limit; "
-                        "the pressure switch with the derived band carries the cycle within "
-                        "the limits (see the verification)"
-                    )
-            if cand_best is None:  # the greedy schedule is feasible by construction
-                cand_best = _accept(
-                    problem, fam, cand, u0, (math.nan, math.nan, "feasible", 1), notes
-                )
+            solved += n_solves
+            build_time += t_build
+            solve_time += t_solve
             if cand_best is None:
                 continue
         if best is None or cand_best[0] < best[0]:
             best = cand_best
     if best is None:
-        stats = SearchStats(
-            candidates=sr.evaluated,
-            screen_time=sr.elapsed,
-            total_time=time.perf_counter() - t_start,
-        )
-        return Design(
-            "infeasible",
-            "no schedule passed the full-resolution check",
-            None,
-            None,
-            None,
-            math.nan,
-            math.nan,
-            math.nan,
-            _process_label(problem),
-            empty,
-            math.nan,
-            math.nan,
-            math.nan,
-            {},
-            lb_power,
-            baselines,
-            stats,
-            tuple(notes),
-        )
+        return infeasible("no schedule passed the full-resolution check")
     energy, fam, cand, u, oil, returned, relief_flow, gap, bound, status, block = best
     if len(ranked) > MILP_FAMILIES:
         notes.append(
@@ -536,6 +438,94 @@ def _accept(problem, fam, cand, u, solver, notes, flows=None):
         relief = np.where(last, 0.0, run.spill)
     e = _energy(problem, fam, u, oil, returned, relief)
     return (e, fam, cand, u, oil, returned, relief, *solver)
+
+
+def _schedule_family(problem: Problem, fam: Family, cand: Candidate, catalogue, notes):
+    """The least-energy schedule of one family, checked at full resolution.
+
+    Returns (record or None, schedule-model solves, build time [s], solve time [s]); the
+    record is the search's tuple (energy, family, candidate, u, oil, returned, relief, gap,
+    bound, status, block).
+    """
+    s = problem.settings
+    demand, dt = problem.demand, problem.dt
+    sp = fam.sp
+    u0 = greedy_schedule(
+        demand,
+        sp.lower,
+        sp.upper,
+        sp.qp,
+        dt,
+        min_up=sp.min_up,
+        min_down=sp.min_down,
+        max_events_per_hour=sp.max_events_per_hour,
+        discharge_limit=sp.discharge_limit,
+    )
+    if _no_load_event_allowed(problem, sp):
+        rec = _always_loaded(problem, fam, cand, catalogue, notes)
+        if rec is not None:
+            return rec, 0, 0.0, 0.0
+    block = _block_size(problem, sp)
+    rec, solves, t_build, t_solve = None, 0, 0.0, 0.0
+    for valves in _valve_modes(problem, sp, block):
+        sol = solve_schedule(
+            sp,
+            warm_u=u0 if block == 1 else None,
+            block=block,
+            mip_gap=s.mip_gap,
+            time_limit=s.time_limit if valves == "switch" else STRICT_TIME_LIMIT,
+            valves=valves,
+        )
+        solves += 1
+        t_build += sol.build_time
+        t_solve += sol.solve_time
+        if sol.status == "failed":
+            continue
+        solver = (sol.gap, sol.bound, sol.status, sol.block)
+        found = _accept(problem, fam, cand, sol.u, solver, notes, (sol.oil, sol.spill, sol.relief))
+        if found is None:
+            continue
+        rec = found
+        if valves == "strict":
+            notes.append(
+                "the load events hidden in part-loaded steps would break the limit: the "
+                "schedule unloads only at the end of a loaded stretch and the relief valve "
+                "takes what a full store cannot"
+            )
+        if not _hidden_excess(problem, sp, sol.u, sol.spill):
+            break
+    if rec is None:  # the greedy schedule is feasible by construction
+        rec = _accept(problem, fam, cand, u0, (math.nan, math.nan, "feasible", 1), notes)
+    elif excess := _hidden_excess(problem, sp, rec[3], rec[5]):
+        notes.append(
+            f"the schedule is the ideal pressure switch's plan: its part-loaded steps would "
+            f"mean {excess:.0f} load events per hour, above the limit; the pressure switch "
+            "with the derived band carries the cycle within the limits (see the verification)"
+        )
+    return rec, solves, t_build, t_solve
+
+
+def _always_loaded(problem: Problem, fam: Family, cand: Candidate, catalogue, notes):
+    """The one schedule left when the load-event limit allows none in a cycle: loaded
+    throughout, a full store spilling over the relief valve (the unloading valve would make a
+    load event).  The relief valve then passes the full pump flow, so its override must stay
+    within the pump's and the shell's ratings: the unload pressure comes down if needed.
+    Returns the search's record, or None."""
+    held = _relief_flow_family(problem, cand, fam, catalogue)
+    if held is None:
+        return None
+    u1 = np.ones(problem.n, dtype=int)
+    run = run_store(u1, problem.demand, held.sp.qp, problem.dt, held.sp.upper)
+    if run is None:
+        return None
+    flows = (run.oil, np.zeros(problem.n), run.spill)
+    rec = _accept(problem, held, cand, u1, (0.0, math.nan, "optimal", 1), notes, flows)
+    if rec is not None:
+        notes.append(
+            "the load-event limit allows no load event in a cycle this short: the pump stays "
+            "loaded and the relief valve takes what the full store cannot"
+        )
+    return rec
 
 
 def _relief_flow_family(problem: Problem, cand: Candidate, fam: Family, catalogue) -> Family | None:
