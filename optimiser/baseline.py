@@ -37,6 +37,21 @@ def smallest_motor(catalogue: Catalogue, shaft_power: float) -> MotorOption | No
     return min(fits, key=lambda m: (m.rated_power, m.price))
 
 
+def _least_drive(pumps, catalogue: Catalogue, gauge: float):
+    """Pump and motor with the least rated power, then the least price, for pumps working
+    at ``gauge`` [Pa] at full flow: (pump, motor, shaft power [W]) or None."""
+    best = None
+    for pump in sorted(pumps, key=lambda p: (p.flow, p.price)):
+        shaft = pump.flow * gauge / pump.overall_efficiency
+        motor = smallest_motor(catalogue, shaft)
+        if motor is None:
+            continue
+        key = (motor.rated_power, pump.price + motor.price)
+        if best is None or key < best[0]:
+            best = (key, pump, motor, shaft)
+    return None if best is None else best[1:]
+
+
 def fixed_baseline(
     demand: np.ndarray,
     p_required: np.ndarray,
@@ -83,15 +98,7 @@ def fixed_baseline(
             reason=f"no pump in the catalogue delivers the peak flow "
             f"{peak * 6e4:.1f} L/min at {(relief - s.p_ambient) / 1e5:.0f} bar",
         )
-    best = None
-    for pump in sorted(pumps, key=lambda p: (p.flow, p.price)):
-        shaft = pump.flow * (relief - s.p_ambient) / pump.overall_efficiency
-        motor = smallest_motor(catalogue, shaft)
-        if motor is None:
-            continue
-        key = (motor.rated_power, pump.price + motor.price)
-        if best is None or key < best[0]:
-            best = (key, pump, motor, shaft)
+    best = _least_drive(pumps, catalogue, relief - s.p_ambient)
     if best is None:
         return Baseline(
             "fixed",
@@ -102,7 +109,7 @@ def fixed_baseline(
             reason="no motor in the catalogue drives a pump for the peak flow at "
             f"{(relief - s.p_ambient) / 1e5:.0f} bar",
         )
-    _, pump, motor, shaft = best
+    pump, motor, shaft = best
     # Always loaded at the relief setting: constant shaft power.
     energy = shaft / motor.efficiency * demand.size * dt
     return Baseline("fixed", pump, motor, relief, energy, shaft_power_peak=shaft)
@@ -145,15 +152,7 @@ def compensated_baseline(
             reason="no pressure-compensated pump in the catalogue delivers the peak "
             f"flow {peak * 6e4:.1f} L/min at {g / 1e5:.0f} bar",
         )
-    best = None
-    for pump in sorted(pumps, key=lambda p: (p.flow, p.price)):
-        shaft_full = pump.flow * g / pump.overall_efficiency
-        motor = smallest_motor(catalogue, shaft_full)
-        if motor is None:
-            continue
-        key = (motor.rated_power, pump.price + motor.price)
-        if best is None or key < best[0]:
-            best = (key, pump, motor, shaft_full)
+    best = _least_drive(pumps, catalogue, g)
     if best is None:
         return Baseline(
             "compensated",
@@ -164,7 +163,7 @@ def compensated_baseline(
             reason="no motor in the catalogue drives a compensated pump for the "
             f"peak flow at {g / 1e5:.0f} bar",
         )
-    _, pump, motor, shaft_full = best
+    pump, motor, shaft_full = best
     leak = (1.0 - pump.volumetric_efficiency) * pump.flow / max(pump.volumetric_efficiency, 1e-9)
     shaft = (demand + leak) * g / pump.overall_efficiency
     energy = float(np.sum(shaft) * dt) / motor.efficiency
