@@ -163,13 +163,9 @@ def schedule_fraction(design: Design, cycle: DutyCycle) -> np.ndarray | None:
     d = np.asarray(cycle.flow, float)
     step = oil - np.roll(oil, 1)
     tol = BALANCE_RTOL * max(design.bank.gas_volume, float(np.max(np.abs(oil))))
-    delivered = None
-    for cand in (pf - spill, pf):
-        resid = step - (cand - d) * dt
-        if float(np.max(np.abs(resid))) <= tol:
-            delivered = cand
-            break
-    if delivered is None:
+    # The balance is oil change = (pump_flow − spill − demand)·Δt; a hand-edited design may
+    # leave the spill out of it.
+    if not any(float(np.max(np.abs(step - (into - d) * dt))) <= tol for into in (pf - spill, pf)):
         resid = step - (pf - spill - d) * dt
         i = int(np.argmax(np.abs(resid)))
         raise SettingsError(
@@ -179,12 +175,11 @@ def schedule_fraction(design: Design, cycle: DutyCycle) -> np.ndarray | None:
         )
     # The pump puts pump_flow into the line; whatever a full store cannot take goes over the
     # relief valve, which the simulator models itself.
-    delivered = pf
-    f = delivered / qp
+    f = pf / qp
     if np.any(f < -1e-9) or np.any(f > 1 + 1e-9):
         i = int(np.argmax((f < -1e-9) | (f > 1 + 1e-9)))
         raise SettingsError(
-            f"design schedule: pump delivers {lpm_text(delivered[i])} at t = {i * dt:.4g} s, "
+            f"design schedule: pump delivers {lpm_text(pf[i])} at t = {i * dt:.4g} s, "
             f"outside 0 … {lpm_text(qp)}"
         )
     f = np.clip(f, 0.0, 1.0)
