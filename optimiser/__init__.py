@@ -7,6 +7,10 @@ report, pipeline).
 
 from __future__ import annotations
 
+from optimiser._deps import trim_pyomo_scipy_hook
+
 __version__ = "0.1.0"
+
+trim_pyomo_scipy_hook()
 
 __all__ = ["__version__"]

@@ -2,6 +2,6 @@
 
 import sys
 
-from optimiser.cli import main
+from optimiser.cli import entry
 
-sys.exit(main())
+sys.exit(entry())

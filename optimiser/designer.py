@@ -35,7 +35,15 @@ from optimiser.schedule import (
     switch_counts,
     window_steps,
 )
-from optimiser.search import Candidate, Problem, bank_bounds, make_problem, screen
+from optimiser.search import (
+    Candidate,
+    Problem,
+    bank_bounds,
+    make_problem,
+    screen,
+    stored_pressure,
+    top_pressure,
+)
 from optimiser.settings import DesignSettings
 from optimiser.solution import Alternative, Bank, Design, SearchStats
 
@@ -73,6 +81,9 @@ class Family:
     robust : bool
         True when one open-loop schedule holds at every temperature of the range; False when
         it is planned at the middle temperature.
+    p_top : float
+        Where a discharge starts on the quasi-static curve, absolute, [Pa]
+        (:func:`optimiser.search.top_pressure`).
     """
 
     candidate: Candidate
@@ -81,6 +92,7 @@ class Family:
     sp: ScheduleProblem
     volume: float
     robust: bool = True
+    p_top: float = math.nan
 
 
 def _dwell_steps(seconds: float, dt: float) -> int:
@@ -116,6 +128,7 @@ def family_problem(
     t_mid = 0.5 * (s.t_min + s.t_max)
     temps = (s.t_min, s.t_max, t_mid)
     lo, up, pm = bank_bounds(problem, opt.type, np.array([p0]), p_max, levels, rules, temps)
+    p_top = float(top_pressure(s, pm[0]))
     volume = cand.count * opt.nominal_volume
     swept = cand.count * opt.swept_volume if opt.swept_volume else np.inf
     # One open-loop schedule for the whole temperature range when the bank allows it (the
@@ -137,9 +150,7 @@ def family_problem(
     s_lo = float(max(lower.min(), 0.0))
     knots = np.linspace(s_lo, upper, CHORDS + 1)
     p_knots = (
-        gas.pressure_at_oil_fraction(
-            np.clip(knots / volume, 0.0, 0.999), p0, t_mid, problem.process, s.gas_model
-        )
+        stored_pressure(problem, np.clip(knots / volume, 0.0, 0.999), p0, t_mid, p_top)
         - s.p_ambient
     )
     cuts = []
@@ -162,7 +173,7 @@ def family_problem(
         min_down=_dwell_steps(s.min_unloaded_dwell, problem.dt),
         max_events_per_hour=s.max_load_events_per_hour,
     )
-    return Family(cand, float(p0), float(pm[0]), sp, volume, robust)
+    return Family(cand, float(p0), float(pm[0]), sp, volume, robust, p_top)
 
 
 def _energy(
@@ -184,7 +195,7 @@ def _energy(
     t_mid = 0.5 * (s.t_min + s.t_max)
     mid = 0.5 * (np.roll(oil, 1) + oil)
     frac = np.clip(mid / fam.volume, 0.0, 0.999)
-    p = gas.pressure_at_oil_fraction(frac, fam.precharge, t_mid, problem.process, s.gas_model)
+    p = stored_pressure(problem, frac, fam.precharge, t_mid, fam.p_top)
     sp = fam.sp
     hyd = problem.demand * (p - s.p_ambient) + np.asarray(relief, float) * sp.relief_gauge
     idle = (1 - np.asarray(u, float) + np.asarray(returned, float) / sp.qp) * sp.unloaded_power
@@ -204,7 +215,7 @@ def _pressures(problem: Problem, fam: Family, oil: np.ndarray) -> tuple[np.ndarr
     frac = np.clip(oil / fam.volume, 0.0, 0.999)
     out = []
     for t_k in (s.t_min, s.t_max):
-        p = gas.pressure_at_oil_fraction(frac, fam.precharge, t_k, problem.process, s.gas_model)
+        p = stored_pressure(problem, frac, fam.precharge, t_k, fam.p_top)
         p0_t = gas.precharge_at(fam.precharge, t_k, s.gas_model)
         out.append(np.maximum(p, p0_t))
     return out[0], out[1]

@@ -67,10 +67,12 @@ __all__ = [
     "compressibility",
     "density",
     "end_temperature",
+    "expansion_ratio",
     "gas_volume_ratio",
     "oil_fraction",
     "parse_process",
     "precharge_at",
+    "pressure_after_expansion",
     "pressure_at_oil_fraction",
     "pressure_from_density",
     "reference_precharge",
@@ -629,4 +631,100 @@ def pressure_at_oil_fraction(
         return pressure_from_density(rho, T, "real", method=method)
     s0 = fields_rhoT(rho0, T, method, ("s",))[0]
     T2 = isentrope_T_at_rho(rho, s0, T * r ** (1.0 - KAPPA), method)
+    return pressure_from_density(rho, T2, "real", method=method)
+
+
+def expansion_ratio(
+    p,
+    p_start,
+    T_start,
+    process: Process | str = ISOTHERMAL,
+    model: GasModel = "real",
+    *,
+    method: Method = "table",
+):
+    """Gas volume over its start volume, :math:`V/V_s`, after a quasi-static change from a
+    gas at rest, :math:`(p_s, T_s)`, to pressure p (an expansion for p < p_s).
+
+    This is the discharge of a charged accumulator: the gas sits at the wall temperature at
+    the top of its window and the machine draws oil from it.
+
+    .. math::
+        \\frac{V}{V_s} = \\Big(\\frac{p_s}{p}\\Big)^{1/n}
+        \\quad\\text{(polytropic; every ideal-gas process)}, \\qquad
+        \\frac{V}{V_s} = \\frac{\\rho(p_s, T_s)}{\\rho(p, T_2)}
+        \\quad\\text{(real gas: } T_2 = T_s \\text{ isothermal, isentrope adiabatic)}
+
+    Parameters
+    ----------
+    p : array_like
+        Absolute pressure after the change, [Pa].
+    p_start : array_like
+        Absolute pressure of the gas at rest, [Pa].
+    T_start : array_like
+        Its temperature, [K].
+    process : Process or str
+        The process the change follows.
+    model : {"real", "ideal"}
+        Gas model.
+    method : {"table", "direct"}
+        Tabulated fast path or direct CoolProp calls.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        :math:`V/V_s` (> 1 for an expansion), broadcast over the inputs, [-].
+    """
+    proc = parse_process(process)
+    _model(model)
+    p = _positive("pressure", p, "Pa")
+    p_s = _positive("start pressure", p_start, "Pa")
+    T_s = _positive("temperature", T_start, "K")
+    p, p_s, T_s = np.broadcast_arrays(p, p_s, T_s)
+    if proc.kind == "polytropic" or model == "ideal":
+        return _out((p_s / p) ** (1.0 / proc.n))
+    rho_s = np.asarray(density(p_s, T_s, "real", method=method), dtype=float)
+    if proc.kind == "isothermal":
+        return _out(rho_s / np.asarray(density(p, T_s, "real", method=method), dtype=float))
+    s0 = fields_rhoT(rho_s, T_s, method, ("s",))[0]
+    T2 = isentrope_T_at_p(p, s0, T_s * (p / p_s) ** ((KAPPA - 1) / KAPPA), method)
+    return _out(rho_s / np.asarray(density(p, T2, "real", method=method), dtype=float))
+
+
+def pressure_after_expansion(
+    ratio,
+    p_start,
+    T_start,
+    process: Process | str = ISOTHERMAL,
+    model: GasModel = "real",
+    *,
+    method: Method = "table",
+):
+    """Pressure at the volume ratio :math:`V/V_s` (inverse of :func:`expansion_ratio`).
+
+    Parameters
+    ----------
+    ratio : array_like
+        :math:`V/V_s`, > 0, [-].
+    p_start, T_start, process, model, method
+        As for :func:`expansion_ratio`.
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Absolute pressure, [Pa].
+    """
+    proc = parse_process(process)
+    _model(model)
+    r = _positive("volume ratio", ratio, "-")
+    p_s = _positive("start pressure", p_start, "Pa")
+    T_s = _positive("temperature", T_start, "K")
+    r, p_s, T_s = np.broadcast_arrays(r, p_s, T_s)
+    if proc.kind == "polytropic" or model == "ideal":
+        return _out(p_s * r ** (-proc.n))
+    rho = np.asarray(density(p_s, T_s, "real", method=method), dtype=float) / r
+    if proc.kind == "isothermal":
+        return pressure_from_density(rho, T_s, "real", method=method)
+    s0 = fields_rhoT(rho * r, T_s, method, ("s",))[0]
+    T2 = isentrope_T_at_rho(rho, s0, T_s * r ** (1.0 - KAPPA), method)
     return pressure_from_density(rho, T2, "real", method=method)

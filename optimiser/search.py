@@ -37,25 +37,40 @@ import numpy as np
 from optimiser import accumulator as acc
 from optimiser import gas
 from optimiser.catalogue import AccumulatorOption, Catalogue, MotorOption, PumpOption
+from optimiser.controllers import MIN_BAND_FRACTION, MIN_BAND_PRESSURE
 from optimiser.cycle import DutyCycle
 from optimiser.errors import SettingsError
 from optimiser.schedule import deficit_from_full
 from optimiser.settings import DesignSettings
+from optimiser.units import T_REF
 
 #: Motor ratings above the least power scanned for the power–capex frontier.
 FRONTIER_LEVELS = 4
+#: Gas expansion V2/V1 of the discharge at which the ``auto`` process takes its effective
+#: index: a short stroke from the top of the window, where real nitrogen is stiffest (our
+#: choice, no published source; 1.5 gives an index about 0.1 lower near 200 bar).
+AUTO_EXPANSION = 1.1
+#: Runge–Kutta steps of the ``auto`` process's real-gas thermal integration, [-].
+AUTO_STEPS = 32
 
 __all__ = [
+    "AUTO_EXPANSION",
     "FRONTIER_LEVELS",
     "Candidate",
+    "PrechargeGrid",
     "Problem",
     "ScreenResult",
     "bank_bounds",
     "bank_lower",
     "bank_upper",
+    "charge_heating",
     "make_problem",
     "resolve_process",
     "screen",
+    "stored_fraction",
+    "stored_pressure",
+    "top_pressure",
+    "warm_oil",
 ]
 
 
@@ -123,11 +138,16 @@ def _discharge_time(demand: np.ndarray, dt: float) -> float:
     return best * dt
 
 
-def resolve_process(demand: np.ndarray, dt: float, settings: DesignSettings):
-    """Choose the quasi-static gas process.
+def resolve_process(
+    demand: np.ndarray, dt: float, settings: DesignSettings, p_start: float | None = None
+):
+    """Choose the quasi-static gas process of the discharge.
 
     ``"auto"`` integrates the thermal time-constant model (Otis & Pourmovahed) over the
-    cycle's longest discharge and uses the effective polytropic index it gives.
+    cycle's longest discharge, an expansion by :data:`AUTO_EXPANSION` from a gas at rest at
+    ``p_start`` and the coldest temperature, and uses the effective polytropic index it gives
+    (real nitrogen for the real gas model: about 1.5–1.9 near 200 bar, where an ideal gas
+    gives at most 1.4).
 
     Parameters
     ----------
@@ -137,6 +157,9 @@ def resolve_process(demand: np.ndarray, dt: float, settings: DesignSettings):
         Step length, [s].
     settings : DesignSettings
         Settings (process, time constant, gas model).
+    p_start : float, optional
+        Absolute pressure where the discharge starts, [Pa]: the real gas's index depends on
+        it (default 200 bar).
 
     Returns
     -------
@@ -152,14 +175,33 @@ def resolve_process(demand: np.ndarray, dt: float, settings: DesignSettings):
     from optimiser import thermal
 
     t_d = _discharge_time(demand, dt)
-    n_eff = float(
-        thermal.effective_polytropic_index(t_d, settings.time_constant, 1.5, model="ideal")
-    )
-    n_eff = min(max(n_eff, 1.0), 1.4)
+    if settings.gas_model == "real":
+        p1 = float(p_start) if p_start is not None else settings.p_ambient + 200e5
+        n_eff = float(
+            thermal.effective_polytropic_index(
+                t_d,
+                settings.time_constant,
+                1.0 / AUTO_EXPANSION,
+                model="real",
+                p_start=p1,
+                T_start=settings.t_min,
+                steps=AUTO_STEPS,
+            )
+        )
+        where = f" of real nitrogen from {(p1 - settings.p_ambient) / 1e5:.0f} bar"
+    else:
+        n_eff = float(
+            thermal.effective_polytropic_index(
+                t_d, settings.time_constant, 1.0 / AUTO_EXPANSION, model="ideal"
+            )
+        )
+        where = " of an ideal gas"
+    n_eff = min(max(n_eff, 1.0), 3.0)
     proc = gas.Process("polytropic", n_eff)
     note = (
-        f"polytropic n = {n_eff:.3f}: thermal time-constant model (τ = "
-        f"{settings.time_constant:g} s) over the longest discharge of {t_d:.3g} s"
+        f"discharge polytropic n = {n_eff:.3f}{where}: thermal time-constant model (τ = "
+        f"{settings.time_constant:g} s) over the longest discharge of {t_d:.3g} s, from a gas "
+        "at rest at the top of the window"
     )
     return proc, note
 
@@ -190,7 +232,7 @@ def make_problem(
         )
     p_step = np.asarray(cycle.pressure, float) + settings.line_loss + extra_pressure
     p_end = np.maximum(p_step, np.roll(p_step, -1))
-    proc, note = resolve_process(cycle.flow, cycle.dt, settings)
+    proc, note = resolve_process(cycle.flow, cycle.dt, settings, float(p_end.max()))
     return Problem(
         dt=float(cycle.dt),
         demand=np.asarray(cycle.flow, float),
@@ -200,6 +242,193 @@ def make_problem(
         process_note=note,
         settings=settings,
     )
+
+
+def top_pressure(settings: DesignSettings, p_max) -> np.ndarray | float:
+    """Where a discharge starts under an unload pressure, absolute, [Pa].
+
+    The load point of the narrowest pressure-switch band below ``p_max``
+    (:func:`optimiser.controllers.narrowest_band`): a switched pump lets the store drift down
+    to it before loading again, so the machine may start drawing there.
+    """
+    p_max = np.asarray(p_max, float)
+    return _out(
+        p_max - np.maximum(MIN_BAND_PRESSURE, MIN_BAND_FRACTION * (p_max - settings.p_ambient))
+    )
+
+
+def _out(a: np.ndarray):
+    return float(a) if np.ndim(a) == 0 else a
+
+
+@dataclass(frozen=True)
+class PrechargeGrid:
+    """Precharges with their gas density and their pressure at each temperature.
+
+    Attributes
+    ----------
+    p0 : numpy.ndarray
+        Precharges at 20 °C, absolute, (P,), [Pa].
+    rho : numpy.ndarray
+        Gas density at rest, (P,), [kg/m³].
+    at : dict
+        Temperature [K] -> precharge at that temperature (isochoric), (P,), [Pa].
+    """
+
+    p0: np.ndarray
+    rho: np.ndarray
+    at: dict
+
+    @classmethod
+    def of(cls, problem: Problem, p0, temperatures=()) -> PrechargeGrid:
+        """The grid for precharges ``p0`` [Pa] at the operating and the given temperatures."""
+        if isinstance(p0, cls):
+            return p0
+        model = problem.settings.gas_model
+        p0 = np.atleast_1d(np.asarray(p0, float))
+        rho = np.asarray(gas.density(p0, T_REF, model), float)
+        temps = {*problem.temperatures, *temperatures}
+        return cls(
+            p0, rho, {t: np.asarray(gas.pressure_from_density(rho, t, model)) for t in temps}
+        )
+
+    def head(self, n: int) -> PrechargeGrid:
+        """The first ``n`` precharges."""
+        return PrechargeGrid(self.p0[:n], self.rho[:n], {t: v[:n] for t, v in self.at.items()})
+
+    def precharge_at(self, problem: Problem, T: float) -> np.ndarray:
+        """Precharge at temperature T, absolute, [Pa]."""
+        if T not in self.at:
+            self.at[T] = np.asarray(
+                gas.pressure_from_density(self.rho, T, problem.settings.gas_model)
+            )
+        return self.at[T]
+
+
+def _iso_ratio(p: np.ndarray, rho0: np.ndarray, T: float, model: str) -> np.ndarray:
+    """Gas volume over nominal volume on the isotherm T: min(ρ0/ρ(p, T), 1) [-]."""
+    u, inv = np.unique(p, return_inverse=True)
+    rho = np.asarray(gas.density(u, T, model), float)[inv].reshape(p.shape)
+    return np.minimum(rho0 / rho, 1.0)
+
+
+def stored_fraction(problem: Problem, p, p0, T: float, p_top, rho0=None) -> np.ndarray | float:
+    """Oil fraction S/V0 the store holds at pressure p on the design's quasi-static curve.
+
+    The gas, of the mass the precharge ``p0`` (20 °C) fixes, is charged at rest to
+    ``p_top`` at the wall temperature T (isothermal: the pump fills slowly), then discharged
+    from there along ``problem.process``.  Above ``p_top`` the store follows the isotherm.
+    An isothermal process is the isotherm throughout.
+
+    Parameters
+    ----------
+    problem : Problem
+        For the process and the gas model.
+    p : array_like
+        Absolute pressure, [Pa].
+    p0 : array_like
+        Precharge at 20 °C, absolute, [Pa].
+    T : float
+        Wall temperature, [K].
+    p_top : array_like
+        Where the discharge starts, absolute, [Pa].
+    rho0 : array_like, optional
+        The gas density at rest of ``p0`` (saves its computation), [kg/m³].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Oil fraction in [0, 1), broadcast over p, p0 and p_top, [-].
+    """
+    model = problem.settings.gas_model
+    if rho0 is None:
+        rho0 = gas.density(p0, T_REF, model)
+    p, rho0, p_top = np.broadcast_arrays(*(np.asarray(a, float) for a in (p, rho0, p_top)))
+    v = np.array(_iso_ratio(p, rho0, T, model), dtype=float)
+    below = p < p_top
+    if problem.process.kind != "isothermal" and np.any(below):
+        v_top = _iso_ratio(p_top[below], rho0[below], T, model)
+        r = gas.expansion_ratio(p[below], p_top[below], T, problem.process, model)
+        v[below] = np.minimum(v_top * r, 1.0)
+    return _out(1.0 - v)
+
+
+def stored_pressure(problem: Problem, frac, p0, T: float, p_top) -> np.ndarray | float:
+    """Pressure at the oil fraction ``frac`` (inverse of :func:`stored_fraction`), [Pa]."""
+    model = problem.settings.gas_model
+    iso = gas.ISOTHERMAL
+    if problem.process.kind == "isothermal":
+        return gas.pressure_at_oil_fraction(frac, p0, T, iso, model)
+    frac, p0, p_top = np.broadcast_arrays(*(np.asarray(a, float) for a in (frac, p0, p_top)))
+    v = 1.0 - frac
+    v_top = np.asarray(gas.gas_volume_ratio(p_top, p0, T, iso, model), float)
+    p = np.asarray(gas.pressure_at_oil_fraction(frac, p0, T, iso, model), float).copy()
+    below = v > v_top
+    if np.any(below):
+        p[below] = gas.pressure_after_expansion(
+            v[below] / v_top[below], p_top[below], T, problem.process, model
+        )
+    return _out(p)
+
+
+def charge_heating(problem: Problem, p_top, T: float) -> np.ndarray | float:
+    """Heating factor :math:`g\\,\\alpha_p T` of the gas at the top of the window, [-].
+
+    A pump charging the store at the net rate q heats its gas; the Otis & Pourmovahed energy
+    equation (:func:`optimiser.thermal.temperature_rate`) gives, for a charge at a constant
+    rate from rest, a temperature excess that rises towards
+
+    .. math::
+        \\frac{T - T_w}{T} = \\tau\\, g\\, \\frac{q}{V}, \\qquad
+        g = \\frac{(\\partial p/\\partial T)_v}{\\rho\\, c_v}
+
+    (g = κ − 1 for an ideal gas) and never exceeds the adiabatic heating of the oil the charge
+    puts in, :math:`g\\,D/V`.  At the unload pressure the warm gas fills
+    :math:`\\Delta V = V\\alpha_p (T - T_w)` more than at rest, oil the machine cannot draw
+    before the gas cools:
+
+    .. math:: \\Delta V \\le g\\,(\\alpha_p T)\\,\\min(\\tau q,\\ D)
+
+    This function returns :math:`g\\,\\alpha_p T` (1 × (κ − 1) for an ideal gas); see
+    :func:`warm_oil`.  Only the ``auto`` process carries it (a process that is set is taken
+    as the whole gas law): 0 otherwise.
+
+    Parameters
+    ----------
+    problem : Problem
+        For the settings (gas model, process).
+    p_top : array_like
+        Unload pressure, absolute, [Pa].
+    T : float
+        Wall temperature, [K].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        :math:`g\\,\\alpha_p T`, broadcast over ``p_top``, [-].
+    """
+    s = problem.settings
+    p_top = np.asarray(p_top, float)
+    if s.process != "auto":
+        return _out(np.zeros(p_top.shape))
+    model = s.gas_model
+    p, inv = np.unique(p_top, return_inverse=True)
+    rho = np.asarray(gas.density(p, T, model), float)
+    st = gas.state_from_density(rho, np.full(rho.shape, float(T)), model)
+    g = np.asarray(st.dpdT_v) / (rho * np.asarray(st.cv))
+    d = 1e-3  # relative temperature step for α_p T = (∂ ln V/∂ ln T)_p
+    alpha_t = (rho / np.asarray(gas.density(p, T * (1 + d), model), float) - 1.0) / d
+    return _out((g * alpha_t)[inv].reshape(p_top.shape))
+
+
+def warm_oil(heating, settings: DesignSettings, flow: float, refill: float):
+    """Oil the warm gas withholds at the top of the window, [m³].
+
+    ``heating`` from :func:`charge_heating`, ``flow`` the pump's delivery [m³/s] (the
+    fastest charge), ``refill`` the most oil a cycle puts back [m³]:
+    :math:`g\\,\\alpha_p T\\,\\min(\\tau q, D)`.
+    """
+    return np.asarray(heating, float) * min(settings.time_constant * flow, refill)
 
 
 def bank_bounds(
@@ -214,9 +443,11 @@ def bank_bounds(
     """Oil fractions of a bank for a grid of precharges, at each temperature.
 
     At temperature ``T`` the precharge, stated at 20 °C, has become ``p0(T)`` (isochoric);
-    the store must hold at least the oil that gives each required pressure and at least the
-    oil the type's precharge rule asks for (the working pressure must stay above the
-    precharge by the type's margin), and at most the oil at the unload pressure.
+    the store must hold at least the oil that gives each required pressure after a
+    discharge from the top of the window (:func:`stored_fraction`, :func:`top_pressure`) and
+    at least the oil the type's precharge rule asks for (the working pressure must stay above
+    the precharge by the type's margin), and at most the oil at the unload pressure, gas at
+    rest.
 
     Parameters
     ----------
@@ -243,37 +474,40 @@ def bank_bounds(
         limits (the pressure ratio counts at the coldest temperature, where the precharge is
         lowest), [Pa].  Combinations the type rules out have ``upper = -inf``.
     """
-    lower = bank_lower(problem, acc_type, p0, p_levels, rules, temperatures)
-    upper, p_max = bank_upper(problem, acc_type, p0, p_allowed, p_levels, rules, temperatures)
+    grid = PrechargeGrid.of(problem, p0, temperatures or ())
+    upper, p_max = bank_upper(problem, acc_type, grid, p_allowed, p_levels, rules, temperatures)
+    lower = bank_lower(problem, acc_type, grid, p_levels, rules, temperatures, p_max)
     return lower, upper, p_max
 
 
 def bank_lower(
     problem: Problem,
     acc_type: str,
-    p0: np.ndarray,
+    p0,
     p_levels: np.ndarray,
     rules,
-    temperatures: tuple[float, ...] | None = None,
+    temperatures: tuple[float, ...] | None,
+    p_max: np.ndarray,
 ) -> np.ndarray:
-    """The ``lower`` part of :func:`bank_bounds`, (T, P, K) [-]: it does not depend on the
-    unload pressure, so the screen computes it once per type for its widest precharge grid."""
-    s = problem.settings
+    """The ``lower`` part of :func:`bank_bounds`, (T, P, K) [-], for the unload pressures
+    ``p_max`` (P,) [Pa] of the precharges ``p0`` (array or :class:`PrechargeGrid`)."""
     temps = temperatures or problem.temperatures
-    p0 = np.asarray(p0, float)
-    lower = np.empty((len(temps), p0.size, p_levels.size))
+    grid = PrechargeGrid.of(problem, p0, temps)
+    top = np.asarray(top_pressure(problem.settings, p_max), float)[:, None]
+    lower = np.empty((len(temps), grid.p0.size, p_levels.size))
     for i, t_k in enumerate(temps):
-        p0_t = gas.precharge_at(p0, t_k, s.gas_model)
-        floor = acc.min_working_pressure_for_precharge(acc_type, p0_t, rules)
+        floor = acc.min_working_pressure_for_precharge(
+            acc_type, grid.precharge_at(problem, t_k), rules
+        )
         need = np.maximum(p_levels[None, :], np.asarray(floor)[:, None])
-        lower[i] = gas.oil_fraction(need, p0[:, None], t_k, problem.process, s.gas_model)
+        lower[i] = stored_fraction(problem, need, grid.p0[:, None], t_k, top, grid.rho[:, None])
     return lower
 
 
 def bank_upper(
     problem: Problem,
     acc_type: str,
-    p0: np.ndarray,
+    p0,
     p_allowed: float,
     p_levels: np.ndarray,
     rules,
@@ -281,16 +515,16 @@ def bank_upper(
 ) -> tuple[np.ndarray, np.ndarray]:
     """The ``upper`` (T, P) [-] and ``p_max`` (P,) [Pa] parts of :func:`bank_bounds`."""
     s = problem.settings
-    model = s.gas_model
     temps = temperatures or problem.temperatures
-    p0 = np.asarray(p0, float)
-    p0_cold = gas.precharge_at(p0, s.t_min, model)
+    grid = PrechargeGrid.of(problem, p0, temps)
+    p0_cold = grid.precharge_at(problem, s.t_min)
     p_type = acc.max_pressure_for_precharge(acc_type, p0_cold, rules)
     p_max = np.minimum(p_allowed, p_type)
     ok = (p_max >= p_levels.max() - 1e-6) & (p_max > p0_cold)
-    upper = np.empty((len(temps), p0.size))
+    upper = np.empty((len(temps), grid.p0.size))
     for i, t_k in enumerate(temps):
-        upper[i] = np.where(ok, gas.oil_fraction(p_max, p0, t_k, problem.process, model), -np.inf)
+        frac = 1.0 - _iso_ratio(p_max, grid.rho, t_k, s.gas_model)
+        upper[i] = np.where(ok, frac, -np.inf)
     return upper, p_max
 
 
@@ -433,44 +667,52 @@ def screen(
         deficit_max[j] = dm
 
     bounds_cache: dict[tuple, tuple] = {}
-    # The least oil per precharge does not depend on the unload pressure: one table per type
-    # over the widest precharge grid any pump, motor and shell allow; each unload pressure
-    # takes the prefix of that grid below it.
+    volume_cache: dict[tuple, np.ndarray] = {}
     p_widest = max((pump_unload_limit(p, m, s) for p in pumps for m in motors), default=s.p_ambient)
-    full_grid = _precharge_grid(s, p_widest)
-    lower_cache: dict[str, np.ndarray] = {}
+    full_grid = PrechargeGrid.of(problem, _precharge_grid(s, p_widest))
 
     def bank_counts(j: int, pump: PumpOption, p_allowed: float, option: AccumulatorOption):
         """Least count per precharge for one pump and row (inf where impossible)."""
         dm = deficit_max[j]
         key = (option.type, round(p_allowed, -2))
         if key not in bounds_cache:
-            grid = full_grid[full_grid < p_allowed]
+            head = full_grid.head(int(np.count_nonzero(full_grid.p0 < p_allowed)))
+            grid = head.p0
             if grid.size:
-                if option.type not in lower_cache:
-                    lower_cache[option.type] = bank_lower(
-                        problem, option.type, full_grid, levels, rules[option.type]
-                    )
-                lo = lower_cache[option.type][:, : grid.size, :]
-                up, pm = bank_upper(
-                    problem, option.type, grid, p_allowed, levels, rules[option.type]
-                )
+                r = rules[option.type]
+                up, pm = bank_upper(problem, option.type, head, p_allowed, levels, r)
+                lo = bank_lower(problem, option.type, head, levels, r, None, pm)
+                heat = np.stack([charge_heating(problem, pm, t_k) for t_k in problem.temperatures])
             else:
-                lo, up, pm = np.empty((0, levels.size)), np.empty(0), np.empty(0)
-            bounds_cache[key] = (grid, lo, up, pm)
-        grid, lo, up, pm = bounds_cache[key]
+                lo, up, pm, heat = np.empty((0, levels.size)), np.empty(0), np.empty(0), None
+            bounds_cache[key] = (grid, lo, up, pm, heat)
+        grid, lo, up, pm, heat = bounds_cache[key]
         if grid.size == 0:
             return grid, np.empty(0), pm
+
+        def least_volume(vu: float, cap: np.ndarray) -> np.ndarray:
+            """Per precharge, the most any (temperature, level) asks of one unit's volume
+            (``vu`` nominal, ``cap`` (T, P) oil at the unload pressure, both m³)."""
+            room = cap[:, :, None] - vu * lo  # (T, P, K), m³ per unit
+            # Where the store must give oil, the charge's warm gas takes some of it.
+            warm = warm_oil(heat, s, pump.flow, float(dm.max()))
+            draw = np.where(dm > 0, dm + warm[:, :, None], dm)
+            with np.errstate(divide="ignore", invalid="ignore"):
+                need = np.where(room > 0, draw / room, np.inf)
+            # A level with no deficit only needs room ≥ 0 (the store may sit at its top).
+            need = np.where((dm <= 0) & (room >= -1e-12 * vu), 0.0, need)
+            return np.max(need, axis=(0, 2))
+
         vu = option.nominal_volume
-        cap = vu * up  # (T, P), m³ per unit
         if option.swept_volume:
-            cap = np.minimum(cap, option.swept_volume)
-        room = cap[:, :, None] - vu * lo  # (T, P, K), m³ per unit
-        with np.errstate(divide="ignore", invalid="ignore"):
-            need = np.where(room > 0, dm / room, np.inf)
-        # A level with no deficit only needs room ≥ 0 (the store may sit at its top).
-        need = np.where((dm <= 0) & (room >= -1e-12 * vu), 0.0, need)
-        n_store = np.ceil(np.max(need, axis=(0, 2)) - 1e-9)
+            cap = np.minimum(vu * up, option.swept_volume)
+            per_unit = least_volume(vu, cap)
+        else:
+            # Without a stroke limit the need scales with 1/vu: one table per pump and key.
+            if (key, j) not in volume_cache:
+                volume_cache[(key, j)] = least_volume(1.0, up)
+            per_unit = volume_cache[(key, j)] / vu
+        n_store = np.ceil(per_unit - 1e-9)
         n_store[~np.all(np.isfinite(up), axis=0)] = np.inf
         q_unit = acc.unit_flow_limit(
             option.type, option.nominal_volume, option.bore, option.max_flow, rules[option.type]

@@ -41,7 +41,7 @@ price = 500
 name = "=cmd|' /C calc'!A0"
 [[accumulator]]
 type = "bladder"
-nominal_volume_l = 4
+nominal_volume_l = 10
 max_pressure_bar = 330
 price = 600
 name = "<script>alert(3)</script>"

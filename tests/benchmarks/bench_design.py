@@ -37,7 +37,15 @@ from optimiser import gas  # noqa: E402
 from optimiser.catalogue import load_catalogue  # noqa: E402
 from optimiser.cycle import load_cycle  # noqa: E402
 from optimiser.designer import design  # noqa: E402
-from optimiser.search import make_problem, screen  # noqa: E402
+from optimiser.schedule import deficit_from_full  # noqa: E402
+from optimiser.search import (  # noqa: E402
+    charge_heating,
+    make_problem,
+    screen,
+    stored_fraction,
+    top_pressure,
+    warm_oil,
+)
 from optimiser.settings import DesignSettings  # noqa: E402
 
 CYCLE = ROOT / "duty_cycles" / "forming_press.csv"
@@ -65,6 +73,8 @@ def sweep(cycle, catalogue, s: DesignSettings) -> tuple[float, float, int]:
     for pump in catalogue.pumps:
         qp = pump.flow * worn
         net = (qp - demand) * dt
+        deficit = deficit_from_full(net)
+        refill = float(deficit.max()) if deficit is not None else 0.0
         for opt in catalogue.accumulators:
             if opt.type not in s.types:
                 continue
@@ -101,23 +111,27 @@ def sweep(cycle, catalogue, s: DesignSettings) -> tuple[float, float, int]:
             for t_k in (s.t_min, s.t_max):
                 p0t = gas.precharge_at(p0c, t_k, s.gas_model)
                 floor = acc.min_working_pressure_for_precharge(opt.type, p0t, rules)
-                need = v0[:, None] * gas.oil_fraction(
+                need = v0[:, None] * stored_fraction(
+                    problem,
                     np.maximum(levels[None, :], floor[:, None]),
                     p0c[:, None],
                     t_k,
-                    problem.process,
-                    s.gas_model,
+                    top_pressure(s, p_max)[:, None],
                 )
-                top = v0 * gas.oil_fraction(p_max, p0c, t_k, problem.process, s.gas_model)
+                top = v0 * gas.oil_fraction(p_max, p0c, t_k, gas.ISOTHERMAL, s.gas_model)
                 if opt.swept_volume:
                     top = np.minimum(top, cc * opt.swept_volume)
+                # oil the warm gas of the charge withholds whenever the store is drawn down
+                warm = warm_oil(charge_heating(problem, p_max, t_k), s, pump.flow, refill)
                 store = top.copy()
                 ends = []
                 for _cycle in range(3):
                     good = np.ones(store.size, bool)
                     for t in range(demand.size):
                         store = np.minimum(top, store + net[t])
-                        good &= store >= need[:, level_of[t]] - 1e-12
+                        drawn = store < top * (1 - 1e-12)
+                        avail = np.where(drawn, store - warm, store)
+                        good &= avail >= need[:, level_of[t]] - 1e-12
                     ends.append(store.copy())
                 periodic = np.abs(ends[-1] - ends[-2]) <= 1e-12
                 feasible &= good & periodic
