@@ -37,8 +37,10 @@ from optimiser.schedule import (
 )
 from optimiser.search import (
     Candidate,
+    PrechargeGrid,
     Problem,
-    bank_bounds,
+    bank_lower,
+    bank_upper,
     make_problem,
     screen,
     stored_pressure,
@@ -47,7 +49,7 @@ from optimiser.search import (
 from optimiser.settings import DesignSettings
 from optimiser.solution import Alternative, Bank, Design, SearchStats
 
-__all__ = ["Family", "design", "family_problem"]
+__all__ = ["Family", "design", "family_problem", "family_problems"]
 
 #: Most tied families that get the schedule MILP (the rest are ranked by the greedy rule).
 MILP_FAMILIES = 1
@@ -121,59 +123,78 @@ def family_problem(
     -------
     Family
     """
+    return family_problems(problem, cand, [p0], [p_max], catalogue)[0]
+
+
+def family_problems(problem: Problem, cand: Candidate, p0s, p_maxs, catalogue) -> list[Family]:
+    """:func:`family_problem` for several precharges of one component set (one batch of gas
+    evaluations); ``p0s`` and ``p_maxs`` pair up, [Pa]."""
     s = problem.settings
     opt = cand.option
     rules = acc.rules_for(opt.type, (catalogue.limits or {}).get(opt.type))
     levels, inverse = np.unique(problem.p_end, return_inverse=True)
     t_mid = 0.5 * (s.t_min + s.t_max)
     temps = (s.t_min, s.t_max, t_mid)
-    lo, up, pm = bank_bounds(problem, opt.type, np.array([p0]), p_max, levels, rules, temps)
-    p_top = float(top_pressure(s, pm[0]))
+    p0s, p_maxs = np.asarray(p0s, float), np.asarray(p_maxs, float)
+    grid = PrechargeGrid.of(problem, p0s, temps)
+    up, pm = bank_upper(problem, opt.type, grid, p_maxs, levels, rules, temps)
+    diag = np.arange(p0s.size)
+    up, pm = up[:, diag, diag], pm[diag, diag]  # each precharge with its own unload pressure
+    lo = bank_lower(problem, opt.type, grid, levels, rules, temps, pm)
+    p_top = np.asarray(top_pressure(s, pm), float)
     volume = cand.count * opt.nominal_volume
     swept = cand.count * opt.swept_volume if opt.swept_volume else np.inf
-    # One open-loop schedule for the whole temperature range when the bank allows it (the
-    # store then keeps the coldest lower bound and the hottest upper bound); otherwise the
-    # schedule is planned at the middle temperature and the pressure switch adapts at the
-    # extremes (the screen has proven each temperature feasible on its own).
-    lower = volume * np.max(lo[:2, 0, :], axis=0)[inverse]
-    upper = min(volume * float(np.min(up[:2, 0])), swept)
     deficit = deficit_from_full((cand.pump.flow - problem.demand) * problem.dt)
-    robust = deficit is not None and bool(np.all(upper - lower >= deficit - 1e-12 * volume))
-    if not robust:
-        lower = volume * lo[2, 0, :][inverse]
-        upper = min(volume * float(up[2, 0]), swept)
     q_bank = cand.count * acc.unit_flow_limit(
         opt.type, opt.nominal_volume, opt.bore, opt.max_flow, rules
     )
     pump, motor = cand.pump, cand.motor
     eta = pump.overall_efficiency * motor.efficiency
-    s_lo = float(max(lower.min(), 0.0))
-    knots = np.linspace(s_lo, upper, CHORDS + 1)
+    shape: list[tuple] = []
+    for i in diag:
+        # One open-loop schedule for the whole temperature range when the bank allows it
+        # (the store then keeps the coldest lower bound and the hottest upper bound);
+        # otherwise the schedule is planned at the middle temperature and the pressure switch
+        # adapts at the extremes (the screen has proven each temperature feasible on its own).
+        lower = volume * np.max(lo[:2, i, :], axis=0)[inverse]
+        upper = min(volume * float(np.min(up[:2, i])), swept)
+        robust = deficit is not None and bool(np.all(upper - lower >= deficit - 1e-12 * volume))
+        if not robust:
+            lower = volume * lo[2, i, :][inverse]
+            upper = min(volume * float(up[2, i]), swept)
+        s_lo = float(max(lower.min(), 0.0))
+        shape.append((lower, upper, robust, np.linspace(s_lo, upper, CHORDS + 1)))
+    knots = np.array([k for *_, k in shape])
     p_knots = (
-        stored_pressure(problem, np.clip(knots / volume, 0.0, 0.999), p0, t_mid, p_top)
+        stored_pressure(
+            problem, np.clip(knots / volume, 0.0, 0.999), p0s[:, None], t_mid, p_top[:, None]
+        )
         - s.p_ambient
     )
-    cuts = []
-    for j in range(CHORDS):
-        ds = knots[j + 1] - knots[j]
-        slope = (p_knots[j + 1] - p_knots[j]) / ds if ds > 0 else 0.0
-        cuts.append((float(p_knots[j] - slope * knots[j]), float(slope)))
-    sp = ScheduleProblem(
-        dt=problem.dt,
-        demand=problem.demand,
-        lower=lower,
-        upper=upper,
-        qp=pump.flow,
-        discharge_limit=q_bank,
-        pressure_cuts=tuple(cuts),
-        relief_gauge=s.relief_setting(p_max) - s.p_ambient,
-        efficiency=eta,
-        unloaded_power=pump.flow * s.standby_pressure / eta,
-        min_up=_dwell_steps(s.min_loaded_dwell, problem.dt),
-        min_down=_dwell_steps(s.min_unloaded_dwell, problem.dt),
-        max_events_per_hour=s.max_load_events_per_hour,
-    )
-    return Family(cand, float(p0), float(pm[0]), sp, volume, robust, p_top)
+    out = []
+    for i, (lower, upper, robust, kn) in enumerate(shape):
+        cuts = []
+        for j in range(CHORDS):
+            ds = kn[j + 1] - kn[j]
+            slope = (p_knots[i, j + 1] - p_knots[i, j]) / ds if ds > 0 else 0.0
+            cuts.append((float(p_knots[i, j] - slope * kn[j]), float(slope)))
+        sp = ScheduleProblem(
+            dt=problem.dt,
+            demand=problem.demand,
+            lower=lower,
+            upper=upper,
+            qp=pump.flow,
+            discharge_limit=q_bank,
+            pressure_cuts=tuple(cuts),
+            relief_gauge=s.relief_setting(p_maxs[i]) - s.p_ambient,
+            efficiency=eta,
+            unloaded_power=pump.flow * s.standby_pressure / eta,
+            min_up=_dwell_steps(s.min_loaded_dwell, problem.dt),
+            min_down=_dwell_steps(s.min_unloaded_dwell, problem.dt),
+            max_events_per_hour=s.max_load_events_per_hour,
+        )
+        out.append(Family(cand, float(p0s[i]), float(pm[i]), sp, volume, robust, float(p_top[i])))
+    return out
 
 
 def _energy(
@@ -315,8 +336,8 @@ def design(
         idx = np.arange(cand.precharges.size)
         if idx.size > PRECHARGES_PER_SET:
             idx = np.unique(np.linspace(0, idx.size - 1, PRECHARGES_PER_SET).round().astype(int))
-        for i in idx:
-            fam = family_problem(problem, cand, cand.precharges[i], cand.p_max[i], catalogue)
+        fams = family_problems(problem, cand, cand.precharges[idx], cand.p_max[idx], catalogue)
+        for fam in fams:
             # Rank by the ideal controller: loaded whenever the store must rise, unloaded
             # part-way as soon as it may (the lowest trajectory); the MILP adds the limits.
             ideal = lowest_trajectory(

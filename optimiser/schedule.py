@@ -28,7 +28,9 @@ __all__ = [
     "check_schedule",
     "deficit_from_full",
     "greedy_schedule",
+    "level_draws",
     "lowest_trajectory",
+    "refill_memory",
     "run_store",
     "switch_counts",
 ]
@@ -64,6 +66,115 @@ def deficit_from_full(net: np.ndarray) -> np.ndarray | None:
     c = np.concatenate(([0.0], np.cumsum(np.concatenate((net, net)))))
     d = np.maximum.accumulate(c) - c
     return d[net.size + 1 :]
+
+
+def refill_memory(deficit: np.ndarray, dt: float, tau: float) -> np.ndarray:
+    """Recent refill of the store, weighted by how long ago it came in, [m³] (periodic).
+
+    The oil the store gains in each step (the fall of the deficit) heats its gas; the heat
+    leaves through the wall with the time constant τ.  Linearised, the gas's excess
+    temperature follows the refill through a first-order lag, so it is proportional to
+
+    .. math::
+        E(t) = \\int_{-\\infty}^{t} r(s)\\, e^{-(t - s)/\\tau}\\, ds, \\qquad
+        E_t = a\\,E_{t-1} + \\Delta S_t\\,\\frac{\\tau}{\\Delta t}(1 - a),
+        \\quad a = e^{-\\Delta t/\\tau}
+
+    with ``r`` the refill rate (exact for a rate constant within each step).  A steady refill
+    at the rate q gives E = τ·q; a refill much quicker than τ gives E = its volume.
+
+    Parameters
+    ----------
+    deficit : numpy.ndarray
+        Periodic deficit below a full store (:func:`deficit_from_full`), [m³].
+    dt : float
+        Step length, [s].
+    tau : float
+        Thermal time constant, [s] (``inf``: the gas never cools, E is not bounded: refused).
+
+    Returns
+    -------
+    numpy.ndarray
+        E at the end of each step in the periodic state, [m³].
+    """
+    if not (math.isfinite(tau) and tau > 0):
+        raise ValueError("refill memory needs a finite time constant > 0")
+    d = np.asarray(deficit, dtype=float)
+    gain = np.maximum(np.roll(d, 1) - d, 0.0)
+    a = math.exp(-dt / tau)
+    x = gain * (tau / dt) * (1.0 - a)
+    out = np.empty(d.size)
+
+    def sweep(e0: float) -> float:
+        # y_t = a·y_{t-1} + x_t in blocks short enough for a^-k to stay finite
+        block = max(1, int(50.0 * tau / dt))
+        y = e0
+        for i in range(0, d.size, block):
+            xb = x[i : i + block]
+            k = np.arange(1, xb.size + 1)
+            w = a**k
+            out[i : i + block] = w * (y + np.cumsum(xb / w))
+            y = float(out[i + xb.size - 1])
+        return y
+
+    end = sweep(0.0)
+    # linear in the start value: the periodic start is end / (1 - a^n)
+    decay = a**d.size
+    sweep(end / (1.0 - decay) if decay < 1.0 else end)
+    return out
+
+
+def level_draws(
+    deficit: np.ndarray, memory: np.ndarray | None, inverse: np.ndarray, levels: int
+) -> list[tuple[np.ndarray, np.ndarray]]:
+    """Per pressure level, the (deficit, memory) pairs that can set the most it asks, [m³].
+
+    A level's draw on the store for a heating factor h ≥ 0 is
+    :math:`\\max_t (D_t + h E_t)` over its steps with a deficit.  Only the upper convex hull
+    of the points :math:`(E_t, D_t)` can attain that maximum, so each level keeps those.
+
+    Parameters
+    ----------
+    deficit, memory : numpy.ndarray
+        :func:`deficit_from_full` and :func:`refill_memory` per step (memory None: zero).
+    inverse : numpy.ndarray
+        Level index of each step, [-].
+    levels : int
+        Number of levels, [-].
+
+    Returns
+    -------
+    list of (D, E) array pairs
+        Empty arrays for a level without a deficit.
+    """
+    d = np.asarray(deficit, float)
+    e = np.zeros(d.size) if memory is None else np.asarray(memory, float)
+    out = []
+    for k in range(levels):
+        m = (inverse == k) & (d > 0)
+        dk, ek = d[m], e[m]
+        if dk.size == 0:
+            out.append((dk, ek))
+            continue
+        # upper hull for slopes h in [0, inf): from the largest D (h = 0) towards the
+        # largest E, keeping the points where the envelope turns
+        order = np.lexsort((-ek, -dk))
+        hull: list[int] = []
+        for i in order:
+            if hull and ek[i] <= ek[hull[-1]]:
+                continue  # dominated: no more E for less D
+            while len(hull) >= 2:
+                j0, j1 = hull[-2], hull[-1]
+                # j1 is redundant when the line through j0 and i passes above it
+                cross = (ek[j1] - ek[j0]) * (dk[i] - dk[j0]) - (dk[j1] - dk[j0]) * (ek[i] - ek[j0])
+                if cross >= 0:
+                    hull.pop()
+                else:
+                    break
+            hull.append(i)
+        idx = np.array(hull, int)
+        out.append((dk[idx], ek[idx]))
+    return out
 
 
 @dataclass(frozen=True)
@@ -431,8 +542,10 @@ def greedy_schedule(
         return always
     idle_1 = _idle_threshold(demand, req, dt, 1, discharge_limit)
     idle_down = _idle_threshold(demand, req, dt, max(1, min_down), discharge_limit)
-    gain = (qp - demand) * dt
-    loss = demand * dt
+    # Python floats: the step loop below runs on scalars, where lists beat numpy indexing.
+    gain = ((qp - demand) * dt).tolist()
+    loss = (demand * dt).tolist()
+    req_l, idle_1_l, idle_down_l = req.tolist(), idle_1.tolist(), idle_down.tolist()
 
     def attempt(fill: float) -> np.ndarray | None:
         u_prev, run_len, level = 1, min_up, upper
@@ -443,21 +556,21 @@ def greedy_schedule(
             if key in seen:
                 break
             seen.add(key)
-            u = np.zeros(n, dtype=int)
+            u = [0] * n
             for t in range(n):
                 if u_prev == 1:
                     load = run_len < min_up
                     if not load:
-                        target = req[t - 1]
+                        target = req_l[t - 1]
                         target = target + fill * (upper - target)
-                        load = level < target - 1e-12 or level < idle_down[t]
+                        load = level < target - 1e-12 or level < idle_down_l[t]
                 else:
-                    load = run_len >= min_down and level < idle_1[t]
-                u[t] = load
+                    load = run_len >= min_down and level < idle_1_l[t]
+                u[t] = int(load)
                 level = min(upper, level + (gain[t] if load else -loss[t]))
                 run_len = run_len + 1 if load == u_prev else 1
                 u_prev = int(load)
-            last = u
+            last = np.array(u, dtype=int)
         return last
 
     for fill in (0.0, 0.25, 0.5, 1.0):

@@ -40,7 +40,7 @@ from optimiser.catalogue import AccumulatorOption, Catalogue, MotorOption, PumpO
 from optimiser.controllers import MIN_BAND_FRACTION, MIN_BAND_PRESSURE
 from optimiser.cycle import DutyCycle
 from optimiser.errors import SettingsError
-from optimiser.schedule import deficit_from_full
+from optimiser.schedule import deficit_from_full, level_draws, refill_memory
 from optimiser.settings import DesignSettings
 from optimiser.units import T_REF
 
@@ -70,7 +70,6 @@ __all__ = [
     "stored_fraction",
     "stored_pressure",
     "top_pressure",
-    "warm_oil",
 ]
 
 
@@ -374,24 +373,25 @@ def stored_pressure(problem: Problem, frac, p0, T: float, p_top) -> np.ndarray |
 def charge_heating(problem: Problem, p_top, T: float) -> np.ndarray | float:
     """Heating factor :math:`g\\,\\alpha_p T` of the gas at the top of the window, [-].
 
-    A pump charging the store at the net rate q heats its gas; the Otis & Pourmovahed energy
-    equation (:func:`optimiser.thermal.temperature_rate`) gives, for a charge at a constant
-    rate from rest, a temperature excess that rises towards
+    Oil pumped into the store heats its gas.  The Otis & Pourmovahed energy equation
+    (:func:`optimiser.thermal.temperature_rate`), linearised about the wall temperature,
+    gives the gas's excess temperature as a first-order lag of the refill rate r:
 
     .. math::
-        \\frac{T - T_w}{T} = \\tau\\, g\\, \\frac{q}{V}, \\qquad
-        g = \\frac{(\\partial p/\\partial T)_v}{\\rho\\, c_v}
+        \\frac{d}{dt}\\frac{T - T_w}{T} = -\\frac{1}{\\tau}\\frac{T - T_w}{T}
+            + g\\,\\frac{r}{V}, \\qquad g = \\frac{(\\partial p/\\partial T)_v}{\\rho\\, c_v}
 
-    (g = κ − 1 for an ideal gas) and never exceeds the adiabatic heating of the oil the charge
-    puts in, :math:`g\\,D/V`.  At the unload pressure the warm gas fills
+    (g = κ − 1 for an ideal gas).  At a given pressure the warm gas fills
     :math:`\\Delta V = V\\alpha_p (T - T_w)` more than at rest, oil the machine cannot draw
     before the gas cools:
 
-    .. math:: \\Delta V \\le g\\,(\\alpha_p T)\\,\\min(\\tau q,\\ D)
+    .. math:: \\Delta V = g\\,(\\alpha_p T)\\, E, \\qquad
+        E = \\int r(s)\\, e^{-(t - s)/\\tau}\\, ds
 
-    This function returns :math:`g\\,\\alpha_p T` (1 × (κ − 1) for an ideal gas); see
-    :func:`warm_oil`.  Only the ``auto`` process carries it (a process that is set is taken
-    as the whole gas law): 0 otherwise.
+    with E from :func:`optimiser.schedule.refill_memory` (τ·q for a steady refill at the
+    rate q).  This function returns :math:`g\\,\\alpha_p T` (κ − 1 for an ideal gas).  Only
+    the ``auto`` process carries it (a process that is set is taken as the whole gas law):
+    0 otherwise.
 
     Parameters
     ----------
@@ -419,16 +419,6 @@ def charge_heating(problem: Problem, p_top, T: float) -> np.ndarray | float:
     d = 1e-3  # relative temperature step for α_p T = (∂ ln V/∂ ln T)_p
     alpha_t = (rho / np.asarray(gas.density(p, T * (1 + d), model), float) - 1.0) / d
     return _out((g * alpha_t)[inv].reshape(p_top.shape))
-
-
-def warm_oil(heating, settings: DesignSettings, flow: float, refill: float):
-    """Oil the warm gas withholds at the top of the window, [m³].
-
-    ``heating`` from :func:`charge_heating`, ``flow`` the pump's delivery [m³/s] (the
-    fastest charge), ``refill`` the most oil a cycle puts back [m³]:
-    :math:`g\\,\\alpha_p T\\,\\min(\\tau q, D)`.
-    """
-    return np.asarray(heating, float) * min(settings.time_constant * flow, refill)
 
 
 def bank_bounds(
@@ -490,11 +480,12 @@ def bank_lower(
     p_max: np.ndarray,
 ) -> np.ndarray:
     """The ``lower`` part of :func:`bank_bounds`, (T, P, K) [-], for the unload pressures
-    ``p_max`` (P,) [Pa] of the precharges ``p0`` (array or :class:`PrechargeGrid`)."""
+    ``p_max`` (P,) [Pa] of the precharges ``p0`` (array or :class:`PrechargeGrid`); for
+    ``p_max`` of shape (A, P), one table per row: (T, A, P, K)."""
     temps = temperatures or problem.temperatures
     grid = PrechargeGrid.of(problem, p0, temps)
-    top = np.asarray(top_pressure(problem.settings, p_max), float)[:, None]
-    lower = np.empty((len(temps), grid.p0.size, p_levels.size))
+    top = np.asarray(top_pressure(problem.settings, p_max), float)[..., None]
+    lower = np.empty((len(temps), *top.shape[:-1], p_levels.size))
     for i, t_k in enumerate(temps):
         floor = acc.min_working_pressure_for_precharge(
             acc_type, grid.precharge_at(problem, t_k), rules
@@ -513,15 +504,18 @@ def bank_upper(
     rules,
     temperatures: tuple[float, ...] | None = None,
 ) -> tuple[np.ndarray, np.ndarray]:
-    """The ``upper`` (T, P) [-] and ``p_max`` (P,) [Pa] parts of :func:`bank_bounds`."""
+    """The ``upper`` (T, P) [-] and ``p_max`` (P,) [Pa] parts of :func:`bank_bounds`; for
+    ``p_allowed`` of shape (A,), one row each: (T, A, P) and (A, P)."""
     s = problem.settings
     temps = temperatures or problem.temperatures
     grid = PrechargeGrid.of(problem, p0, temps)
     p0_cold = grid.precharge_at(problem, s.t_min)
     p_type = acc.max_pressure_for_precharge(acc_type, p0_cold, rules)
-    p_max = np.minimum(p_allowed, p_type)
+    p_max = np.minimum(np.asarray(p_allowed, float)[..., None], p_type)
+    if np.ndim(p_allowed) == 0:
+        p_max = p_max.reshape(p_type.shape)
     ok = (p_max >= p_levels.max() - 1e-6) & (p_max > p0_cold)
-    upper = np.empty((len(temps), grid.p0.size))
+    upper = np.empty((len(temps), *p_max.shape))
     for i, t_k in enumerate(temps):
         frac = 1.0 - _iso_ratio(p_max, grid.rho, t_k, s.gas_model)
         upper[i] = np.where(ok, frac, -np.inf)
@@ -606,6 +600,13 @@ def pump_unload_limit(pump: PumpOption, motor: MotorOption, s: DesignSettings) -
     return min(by_motor, by_pump)
 
 
+def _bound_key(p_allowed: float) -> tuple[float, float]:
+    """(the unload pressure, the one its bank bounds are computed at): rounded down to 100 Pa
+    so that unload pressures a few pascals apart share their bounds, never above the
+    limit, [Pa]."""
+    return p_allowed, math.floor(p_allowed / 100.0) * 100.0
+
+
 def _precharge_grid(s: DesignSettings, p_hi: float) -> np.ndarray:
     """Precharges at 20 °C from 2 bar gauge to just below ``p_hi``, absolute, [Pa]."""
     lo = s.p_ambient + 2e5
@@ -654,8 +655,10 @@ def screen(
     rules = {t: acc.rules_for(t, (catalogue.limits or {}).get(t)) for t in s.types}
     evaluated = 0
 
-    # Deficits depend on the pump only.
+    # Deficits depend on the pump only; so does the refill that warms the gas (auto process).
     deficit_max: dict[int, np.ndarray | None] = {}
+    draws: dict[int, list] = {}
+    warms = s.process == "auto" and math.isfinite(s.time_constant)
     worn = 1.0 - s.flow_margin  # the design must hold with a worn pump
     for j, pump in enumerate(pumps):
         d = deficit_from_full((pump.flow * worn - demand) * dt)
@@ -665,38 +668,66 @@ def screen(
         dm = np.zeros(levels.size)
         np.maximum.at(dm, inverse, d)
         deficit_max[j] = dm
+        memory = refill_memory(d, dt, s.time_constant) if warms else None
+        draws[j] = level_draws(d, memory, inverse, levels.size)
 
     bounds_cache: dict[tuple, tuple] = {}
     volume_cache: dict[tuple, np.ndarray] = {}
-    p_widest = max((pump_unload_limit(p, m, s) for p in pumps for m in motors), default=s.p_ambient)
+    draw_cache: dict[tuple, np.ndarray] = {}
+    # the widest precharge grid: every pump with the largest motor (more power, higher limit)
+    big = max(motors, key=lambda m: m.rated_power, default=None)
+    p_widest = max((pump_unload_limit(p, big, s) for p in pumps), default=s.p_ambient)
     full_grid = PrechargeGrid.of(problem, _precharge_grid(s, p_widest))
 
-    def bank_counts(j: int, pump: PumpOption, p_allowed: float, option: AccumulatorOption):
-        """Least count per precharge for one pump and row (inf where impossible)."""
+    def fill_bounds(acc_type: str, limits: list[float]) -> None:
+        """Bank bounds of a type for several unload pressures at once (one batch of gas
+        evaluations), cut to each pressure's precharge grid."""
+        n_of = [int(np.count_nonzero(full_grid.p0 < p)) for p in limits]
+        head = full_grid.head(max(n_of))
+        r = rules[acc_type]
+        up, pm = bank_upper(problem, acc_type, head, np.array(limits), levels, r)
+        lo = bank_lower(problem, acc_type, head, levels, r, None, pm)
+        heat = np.stack([charge_heating(problem, pm, t_k) for t_k in problem.temperatures])
+        for a, (p_a, n) in enumerate(zip(limits, n_of, strict=True)):
+            if n == 0:
+                bounds_cache[(acc_type, p_a)] = (
+                    head.p0[:0],
+                    np.empty((0, levels.size)),
+                    np.empty(0),
+                    np.empty(0),
+                    None,
+                )
+                continue
+            bounds_cache[(acc_type, p_a)] = (
+                head.p0[:n],
+                lo[:, a, :n, :],
+                up[:, a, :n],
+                pm[a, :n],
+                heat[:, a, :n],
+            )
+
+    def bank_counts(j: int, pump: PumpOption, key: tuple, option: AccumulatorOption):
+        """Least count per precharge for one pump and row (inf where impossible); ``key`` is
+        (type, unload pressure rounded to 100 Pa) of the bank bounds."""
         dm = deficit_max[j]
-        key = (option.type, round(p_allowed, -2))
-        if key not in bounds_cache:
-            head = full_grid.head(int(np.count_nonzero(full_grid.p0 < p_allowed)))
-            grid = head.p0
-            if grid.size:
-                r = rules[option.type]
-                up, pm = bank_upper(problem, option.type, head, p_allowed, levels, r)
-                lo = bank_lower(problem, option.type, head, levels, r, None, pm)
-                heat = np.stack([charge_heating(problem, pm, t_k) for t_k in problem.temperatures])
-            else:
-                lo, up, pm, heat = np.empty((0, levels.size)), np.empty(0), np.empty(0), None
-            bounds_cache[key] = (grid, lo, up, pm, heat)
         grid, lo, up, pm, heat = bounds_cache[key]
         if grid.size == 0:
             return grid, np.empty(0), pm
+
+        if (key, j) not in draw_cache:
+            # What each (temperature, precharge, level) draws from the store: the deficit
+            # plus the oil the gas a refill left warm withholds (charge_heating × memory).
+            draw = np.zeros((heat.shape[0], heat.shape[1], levels.size))
+            for k, (d_k, e_k) in enumerate(draws[j]):
+                if d_k.size:
+                    draw[:, :, k] = np.max(d_k + heat[:, :, None] * e_k, axis=2)
+            draw_cache[(key, j)] = draw
+        draw = draw_cache[(key, j)]
 
         def least_volume(vu: float, cap: np.ndarray) -> np.ndarray:
             """Per precharge, the most any (temperature, level) asks of one unit's volume
             (``vu`` nominal, ``cap`` (T, P) oil at the unload pressure, both m³)."""
             room = cap[:, :, None] - vu * lo  # (T, P, K), m³ per unit
-            # Where the store must give oil, the charge's warm gas takes some of it.
-            warm = warm_oil(heat, s, pump.flow, float(dm.max()))
-            draw = np.where(dm > 0, dm + warm[:, :, None], dm)
             with np.errstate(divide="ignore", invalid="ignore"):
                 need = np.where(room > 0, draw / room, np.inf)
             # A level with no deficit only needs room ≥ 0 (the store may sit at its top).
@@ -722,49 +753,67 @@ def screen(
         n = np.maximum(np.maximum(n_store, n_rate), 1)
         return grid, n, pm
 
+    motors_at: dict[float, list] = {}
+    for m in motors:
+        motors_at.setdefault(m.rated_power, []).append(m)
+    option_caps = [s.max_unload_for_relief(o.max_pressure) for o in options]
+    shell_caps = sorted({(o.type, cap) for o, cap in zip(options, option_caps, strict=True)})
+
     def level_candidates(power: float) -> list[Candidate]:
         nonlocal evaluated
         found: list[Candidate] = []
-        for j, pump in enumerate(pumps):
-            if deficit_max[j] is None:
-                continue
-            for motor in (m for m in motors if m.rated_power == power):
-                p_allowed = pump_unload_limit(pump, motor, s)
-                if p_allowed < p_need_max:
-                    continue
-                # Pump only: loaded all the time against the relief valve, so the motor must
-                # cover the pump at the relief setting.
-                if s.allow_pump_only and pump.flow * worn >= peak * (1 - 1e-12):
-                    relief = s.relief_setting(p_need_max)
-                    shaft = pump.flow * (relief - s.p_ambient) / pump.overall_efficiency
-                    if shaft <= motor.rated_power and relief <= pump.max_pressure:
-                        found.append(
-                            Candidate(
-                                pump,
-                                motor,
-                                None,
-                                0,
-                                np.empty(0),
-                                np.array([p_need_max]),
-                                pump.price + motor.price,
-                            )
-                        )
-                for option in options:
-                    evaluated += 1
-                    p_opt = min(p_allowed, s.max_unload_for_relief(option.max_pressure))
-                    if p_opt < p_need_max:
-                        continue
-                    grid, n, pm = bank_counts(j, pump, p_opt, option)
-                    if n.size == 0:
-                        continue
-                    n_best = float(np.min(n))
-                    if not math.isfinite(n_best) or n_best > s.max_count:
-                        continue
-                    sel = n == n_best
-                    capex = int(n_best) * option.price + pump.price + motor.price
+        pairs = [
+            (j, pump, motor, pump_unload_limit(pump, motor, s))
+            for j, pump in enumerate(pumps)
+            if deficit_max[j] is not None
+            for motor in motors_at[power]
+        ]
+        pairs = [p for p in pairs if p[3] >= p_need_max]
+        # Each pair's unload pressure under each shell limit, as bank-bound keys; the bounds
+        # this level needs and has not met yet are computed in one batch per type.
+        keys = [
+            {(t, cap): _bound_key(min(p_allowed, cap)) for t, cap in shell_caps}
+            for *_, p_allowed in pairs
+        ]
+        missing: dict[str, set] = {}
+        for pair_keys in keys:
+            for (t, _cap), (p_opt, p_key) in pair_keys.items():
+                if p_opt >= p_need_max and (t, p_key) not in bounds_cache:
+                    missing.setdefault(t, set()).add(p_key)
+        for acc_type, limits in missing.items():
+            fill_bounds(acc_type, sorted(limits))
+        for (j, pump, motor, _p_allowed), pair_keys in zip(pairs, keys, strict=True):
+            # Pump only: loaded all the time against the relief valve, so the motor must
+            # cover the pump at the relief setting.
+            if s.allow_pump_only and pump.flow * worn >= peak * (1 - 1e-12):
+                relief = s.relief_setting(p_need_max)
+                shaft = pump.flow * (relief - s.p_ambient) / pump.overall_efficiency
+                if shaft <= motor.rated_power and relief <= pump.max_pressure:
                     found.append(
-                        Candidate(pump, motor, option, int(n_best), grid[sel], pm[sel], capex)
+                        Candidate(
+                            pump,
+                            motor,
+                            None,
+                            0,
+                            np.empty(0),
+                            np.array([p_need_max]),
+                            pump.price + motor.price,
+                        )
                     )
+            for option, cap in zip(options, option_caps, strict=True):
+                evaluated += 1
+                p_opt, p_key = pair_keys[(option.type, cap)]
+                if p_opt < p_need_max:
+                    continue
+                grid, n, pm = bank_counts(j, pump, (option.type, p_key), option)
+                if n.size == 0:
+                    continue
+                n_best = float(np.min(n))
+                if not math.isfinite(n_best) or n_best > s.max_count:
+                    continue
+                sel = n == n_best
+                capex = int(n_best) * option.price + pump.price + motor.price
+                found.append(Candidate(pump, motor, option, int(n_best), grid[sel], pm[sel], capex))
         return found
 
     feasible: list[Candidate] = []

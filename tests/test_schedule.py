@@ -17,6 +17,7 @@ from optimiser.schedule import (
     check_schedule,
     deficit_from_full,
     greedy_schedule,
+    level_draws,
     run_store,
     switch_counts,
     window_steps,
@@ -118,3 +119,23 @@ def test_greedy_is_feasible_whenever_any_schedule_is(demand, min_up, min_down, c
     if best is None:
         return  # nothing works; the screen would have refused this pair
     assert chk.ok, chk.problems
+
+
+def test_level_draws_keep_the_upper_envelope():
+    # Mathematics: max_t (D_t + h·E_t) over a level's steps, for every h ≥ 0, is attained on
+    # the points the hull keeps (seeded random points against the plain maximum).
+    rng = np.random.default_rng(7)
+    for _ in range(200):
+        n = int(rng.integers(1, 60))
+        d = rng.random(n) * rng.integers(0, 2, n)
+        e = rng.random(n)
+        level = rng.integers(0, 3, n)
+        hulls = level_draws(d, e, level, 3)
+        for k, (d_k, e_k) in enumerate(hulls):
+            m = (level == k) & (d > 0)
+            assert d_k.size <= m.sum()
+            for h in (0.0, 0.1, 0.5, 1.0, 3.0, 100.0):
+                if m.any():
+                    assert np.max(d_k + h * e_k) == pytest.approx(np.max(d[m] + h * e[m]))
+                else:
+                    assert d_k.size == 0

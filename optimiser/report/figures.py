@@ -12,7 +12,6 @@ import html
 
 import numpy as np
 import plotly.graph_objects as go
-from plotly.subplots import make_subplots
 
 from optimiser.report import content
 from optimiser.units import to_unit
@@ -59,48 +58,125 @@ _BAR_NAMES = {
 }
 
 
-def _layout(fig: go.Figure, height: int) -> go.Figure:
-    fig.update_layout(
-        template=None,
-        height=height,
-        margin={"l": 70, "r": 24, "t": 48, "b": 46},
-        font={"family": FONT, "size": 12, "color": COLOURS["ink"]},
-        paper_bgcolor="#ffffff",
-        plot_bgcolor="#ffffff",
-        hovermode="x unified",
-        legend={"orientation": "h", "y": 1.02, "yanchor": "bottom", "x": 0, "xanchor": "left"},
-        hoverlabel={"font": {"family": FONT}},
-    )
-    axes = {
-        "showline": True,
-        "linecolor": COLOURS["muted"],
-        "gridcolor": COLOURS["grid"],
-        "zeroline": False,
-        "ticks": "outside",
-        "tickcolor": COLOURS["muted"],
+#: Styling of every axis of every figure.
+_AXIS = {
+    "showline": True,
+    "linecolor": COLOURS["muted"],
+    "gridcolor": COLOURS["grid"],
+    "zeroline": False,
+    "ticks": "outside",
+    "tickcolor": COLOURS["muted"],
+}
+#: Font of the panel titles.
+_TITLE_FONT = {"family": FONT, "size": 12, "color": COLOURS["muted"]}
+
+
+def _on(panel: int) -> dict:
+    """The axis references ("x", "y2", ...) of a trace drawn in panel ``panel`` (1 = top left)."""
+    n = "" if panel == 1 else str(panel)
+    return {"xaxis": f"x{n}", "yaxis": f"y{n}"}
+
+
+def _grid(titles, rows=1, cols=1, heights=None, vspace=0.0, hspace=0.0, shared_x=False):
+    """Axes and titles of a grid of panels, placed where ``make_subplots`` puts them.
+
+    Panels are numbered row by row from the top left, as ``make_subplots`` numbers them; the
+    domains follow its arithmetic (a top-left start cell), so the panels land in the same place.
+
+    Parameters
+    ----------
+    titles : sequence of str
+        Title of each panel, in panel order; it sits above the panel at its left edge.
+    rows, cols : int
+        Size of the grid.
+    heights : sequence of float, optional
+        Relative row heights, top row first (equal rows without it).
+    vspace, hspace : float
+        Gap between rows and between columns [fraction of the plotting area].
+    shared_x : bool
+        The panels of a column share the x axis of the bottom one, which alone shows tick labels.
+
+    Returns
+    -------
+    axes : dict
+        Layout entries "xaxis", "yaxis", "xaxis2", ... with their domain and anchor.
+    annotations : list of dict
+        The panel titles as layout annotations.
+    """
+    widths = [(1.0 - hspace * (cols - 1)) / cols] * cols
+    h = [(1.0 - vspace * (rows - 1)) / rows] * rows
+    if heights is not None:
+        total = float(sum(heights))
+        h = [(1.0 - vspace * (rows - 1)) * (x / total) for x in heights]
+    up = h[::-1]  # rows are stacked from the bottom
+
+    def clip(v):  # rounding may step just past the edge of the figure
+        return min(max(v, 0.0), 1.0)
+
+    axes, annotations = {}, []
+    for r in range(rows):
+        below = rows - 1 - r
+        y0 = sum(up[:below]) + below * vspace
+        y0, y1 = clip(y0), clip(y0 + h[r])
+        for c in range(cols):
+            x0 = sum(widths[:c]) + c * hspace
+            k = r * cols + c + 1
+            ref = _on(k)
+            n = ref["xaxis"][1:]
+            axes[f"xaxis{n}"] = {"anchor": ref["yaxis"], "domain": [x0, x0 + widths[c]]}
+            axes[f"yaxis{n}"] = {"anchor": ref["xaxis"], "domain": [y0, y1]}
+            if shared_x and r < rows - 1:
+                bottom = _on((rows - 1) * cols + c + 1)["xaxis"]
+                axes[f"xaxis{n}"] |= {"matches": bottom, "showticklabels": False}
+            if k <= len(titles) and titles[k - 1]:
+                annotations.append(
+                    {"font": _TITLE_FONT, "showarrow": False, "text": titles[k - 1], "x": x0,
+                     "xanchor": "left", "xref": "paper", "y": y1, "yanchor": "bottom",
+                     "yref": "paper"}
+                )  # fmt: skip
+    return axes, annotations
+
+
+def _figure(data, axes, height, annotations=(), shapes=(), **layout) -> go.Figure:
+    """The figure in the report's style, built in one call from plain dicts.
+
+    Parameters
+    ----------
+    data : list of dict
+        Traces, each with its "type" and, in a grid, its "xaxis" and "yaxis".
+    axes : dict
+        Layout axes ("xaxis", "yaxis2", ...); each gets the report's axis style.
+    height : int
+        Figure height [px].
+    annotations, shapes : sequence of dict
+        Layout annotations and shapes.
+    **layout
+        Further layout settings.
+    """
+    spec = {
+        "template": {},  # none (plotly stores its empty "none" template): all style is here
+        "height": height,
+        "margin": {"l": 70, "r": 24, "t": 48, "b": 46},
+        "font": {"family": FONT, "size": 12, "color": COLOURS["ink"]},
+        "paper_bgcolor": "#ffffff",
+        "plot_bgcolor": "#ffffff",
+        "hovermode": "x unified",
+        "legend": {"orientation": "h", "y": 1.02, "yanchor": "bottom", "x": 0, "xanchor": "left"},
+        "hoverlabel": {"font": {"family": FONT}},
     }
-    fig.update_xaxes(**axes)
-    fig.update_yaxes(**axes)
-    return fig
+    spec |= {name: ax | _AXIS for name, ax in axes.items()}
+    if annotations:
+        spec["annotations"] = list(annotations)
+    if shapes:
+        spec["shapes"] = list(shapes)
+    return go.Figure(data=data, layout=spec | layout)
 
 
-def _subplots(**kwargs) -> go.Figure:
-    """make_subplots with the subplot titles set at the left edge of their panel."""
-    fig = make_subplots(**kwargs)
-    for a in fig.layout.annotations:
-        a.font = {"family": FONT, "size": 12, "color": COLOURS["muted"]}
-        a.xanchor, a.x = "left", a.x - 0.5 * _domain_width(fig, a)
-    return fig
-
-
-def _domain_width(fig: go.Figure, annotation) -> float:
-    # subplot titles sit at the centre of their domain; move them to its left edge.
-    for ax in fig.layout:
-        if ax.startswith("xaxis"):
-            dom = fig.layout[ax].domain
-            if dom and abs(0.5 * (dom[0] + dom[1]) - annotation.x) < 1e-6:
-                return dom[1] - dom[0]
-    return 0.0
+def _hline(y: float, line: dict, panel: int = 1) -> dict:
+    """A horizontal line across panel ``panel`` at ``y`` (in its y units) as a layout shape."""
+    ref = _on(panel)
+    return {"type": "line", "xref": f"{ref['xaxis']} domain", "x0": 0, "x1": 1,
+            "yref": ref["yaxis"], "y0": y, "y1": y, "line": line}  # fmt: skip
 
 
 def _closed(t: np.ndarray, y: np.ndarray, end: float) -> tuple[np.ndarray, np.ndarray]:
@@ -114,54 +190,52 @@ def cycle_figure(result) -> go.Figure:
     t = frame.index.to_numpy(dtype=float)
     end = result.cycle.duration
     labels = np.array([html.escape(x) for x in frame["label"]] + [""], dtype=object)
-    fig = _subplots(
+    axes, titles = _grid(
+        ("demand flow [L/min]", "required pressure at the consumer [bar]"),
         rows=2,
-        cols=1,
-        shared_xaxes=True,
-        vertical_spacing=0.1,
-        subplot_titles=("demand flow [L/min]", "required pressure at the consumer [bar]"),
+        vspace=0.1,
+        shared_x=True,
     )
     x, q = _closed(t, frame["demand [L/min]"].to_numpy(), end)
-    fig.add_trace(
-        go.Scatter(
-            x=x,
-            y=q,
-            name="demand",
-            mode="lines",
-            line={"shape": "hv", "color": COLOURS["flow"], "width": 1.6},
-            fill="tozeroy",
-            fillcolor="rgba(14,124,102,0.12)",
-            customdata=labels,
-            hovertemplate="%{y:.1f} L/min<br>%{customdata}<extra>demand</extra>",
-        ),
-        row=1,
-        col=1,
-    )
+    data = [
+        {
+            "type": "scatter",
+            "x": x,
+            "y": q,
+            "name": "demand",
+            "mode": "lines",
+            "line": {"shape": "hv", "color": COLOURS["flow"], "width": 1.6},
+            "fill": "tozeroy",
+            "fillcolor": "rgba(14,124,102,0.12)",
+            "customdata": labels,
+            "hovertemplate": "%{y:.1f} L/min<br>%{customdata}<extra>demand</extra>",
+            **_on(1),
+        }
+    ]
     p = frame["required_pressure [bar]"].to_numpy()
     if np.all(np.isfinite(p)):
         x, p = _closed(t, p, end)
-        fig.add_trace(
-            go.Scatter(
-                x=x,
-                y=p,
-                name="required pressure",
-                mode="lines",
-                line={"shape": "hv", "color": COLOURS["required"], "width": 1.6},
-                customdata=labels,
-                hovertemplate="%{y:.1f} bar<br>%{customdata}<extra>required</extra>",
-            ),
-            row=2,
-            col=1,
+        data.append(
+            {
+                "type": "scatter",
+                "x": x,
+                "y": p,
+                "name": "required pressure",
+                "mode": "lines",
+                "line": {"shape": "hv", "color": COLOURS["required"], "width": 1.6},
+                "customdata": labels,
+                "hovertemplate": "%{y:.1f} bar<br>%{customdata}<extra>required</extra>",
+                **_on(2),
+            }
         )
-    fig.update_xaxes(range=[0, end])
-    fig.update_xaxes(title_text="time in cycle [s]", row=2, col=1)
-    fig.update_yaxes(title_text="L/min", rangemode="tozero", row=1, col=1)
-    fig.update_yaxes(title_text="bar", rangemode="tozero", row=2, col=1)
-    fig.update_layout(showlegend=False)
-    return _layout(fig, 440)
+    axes["xaxis"] |= {"range": [0, end]}
+    axes["xaxis2"] |= {"range": [0, end], "title": {"text": "time in cycle [s]"}}
+    axes["yaxis"] |= {"title": {"text": "L/min"}, "rangemode": "tozero"}
+    axes["yaxis2"] |= {"title": {"text": "bar"}, "rangemode": "tozero"}
+    return _figure(data, axes, 440, titles, showlegend=False)
 
 
-def _line(fig, row, t, y, name, hover, which, width, step_end, legend) -> None:
+def _line(panel, t, y, name, hover, which, width, step_end, legend) -> dict:
     """One trace of the operation figure in the colour of its temperature ("cold"/"hot").
 
     With ``step_end`` (the cycle end, [s]) the line is drawn as steps closed at that time.
@@ -170,9 +244,9 @@ def _line(fig, row, t, y, name, hover, which, width, step_end, legend) -> None:
     if step_end is not None:
         x, y = _closed(t, np.asarray(y, dtype=float), step_end)
     style = {"color": COLOURS[which], "width": width} | ({"shape": "hv"} if step_end else {})
-    trace = go.Scatter(x=x, y=y, mode="lines", name=name, legendgroup=which, showlegend=legend,
-                       line=style, hovertemplate=hover)  # fmt: skip
-    fig.add_trace(trace, row=row, col=1)
+    return {"type": "scatter", "x": x, "y": y, "mode": "lines", "name": name,
+            "legendgroup": which, "showlegend": legend, "line": style, "hovertemplate": hover,
+            **_on(panel)}  # fmt: skip
 
 
 def operation_figure(result) -> go.Figure | None:
@@ -181,20 +255,20 @@ def operation_figure(result) -> go.Figure | None:
     if ops is None:
         return None
     d = result.design
-    fig = _subplots(
-        rows=4,
-        cols=1,
-        shared_xaxes=True,
-        vertical_spacing=0.05,
-        row_heights=[0.38, 0.22, 0.14, 0.26],
-        subplot_titles=(
+    axes, notes = _grid(
+        (
             "accumulator pressure and required pressure [bar]",
             "oil stored in the accumulators [L]" if d.bank else "oil stored [L] (no accumulator)",
             "pump loaded (1) / unloaded (0); ▼ relief flow",
             "margin above the required pressure [bar]",
         ),
+        rows=4,
+        heights=[0.38, 0.22, 0.14, 0.26],
+        vspace=0.05,
+        shared_x=True,
     )
     end = result.cycle.duration
+    data = []
     first = True
     for which in ("cold", "hot"):
         f = ops.frames.get(which)
@@ -204,18 +278,19 @@ def operation_figure(result) -> go.Figure | None:
         tag = f"{ops.temperatures[which]:.0f} °C"
         t = f["time [s]"].to_numpy()
 
-        def line(row, y, name, hover, width=1.4, step=False, legend=False, t=t, which=which):
-            _line(fig, row, t, y, name, hover, which, width, end if step else None, legend)
+        def line(panel, y, name, hover, width=1.4, step=False, legend=False, t=t, which=which):
+            data.append(
+                _line(panel, t, y, name, hover, which, width, end if step else None, legend)
+            )
 
         line(1, f["pressure [bar]"], f"pressure at {tag}", "%{y:.1f} bar", width=1.8, legend=True)
         if first:
             x, y = _closed(t, f["required_pressure [bar]"].to_numpy(), end)
             style = {"color": COLOURS["required"], "width": 1.4, "dash": "dash", "shape": "hv"}
-            fig.add_trace(
-                go.Scatter(x=x, y=y, mode="lines", name="required (with line loss)", line=style,
-                           hovertemplate="%{y:.1f} bar"),
-                row=1,
-                col=1,
+            data.append(
+                {"type": "scatter", "x": x, "y": y, "mode": "lines",
+                 "name": "required (with line loss)", "line": style,
+                 "hovertemplate": "%{y:.1f} bar", **_on(1)}
             )  # fmt: skip
         if d.bank is not None and (ops.source == "verification" or first):
             line(2, f["accumulator_oil [L]"], f"stored oil at {tag}", "%{y:.2f} L", width=1.6)
@@ -223,20 +298,20 @@ def operation_figure(result) -> go.Figure | None:
         ex = f["relief_flow [L/min]"].to_numpy()
         hit = ex > 1e-6 * max(float(np.nanmax(np.abs(ex))) if ex.size else 0.0, 1e-9)
         if np.any(hit):
-            fig.add_trace(
-                go.Scatter(
-                    x=t[hit],
-                    y=np.full(int(hit.sum()), 1.25 if which == "cold" else 1.45),
-                    mode="markers",
-                    name=f"relief flow at {tag}",
-                    legendgroup=which,
-                    showlegend=False,
-                    marker={"symbol": "triangle-down", "size": 6, "color": colour},
-                    customdata=ex[hit],
-                    hovertemplate="relief %{customdata:.1f} L/min",
-                ),
-                row=3,
-                col=1,
+            data.append(
+                {
+                    "type": "scatter",
+                    "x": t[hit],
+                    "y": np.full(int(hit.sum()), 1.25 if which == "cold" else 1.45),
+                    "mode": "markers",
+                    "name": f"relief flow at {tag}",
+                    "legendgroup": which,
+                    "showlegend": False,
+                    "marker": {"symbol": "triangle-down", "size": 6, "color": colour},
+                    "customdata": ex[hit],
+                    "hovertemplate": "relief %{customdata:.1f} L/min",
+                    **_on(3),
+                }
             )
         line(4, f["margin [bar]"], f"margin at {tag}", "%{y:.1f} bar")
         first = False
@@ -254,27 +329,31 @@ def operation_figure(result) -> go.Figure | None:
     lines.append(
         (relief, f"relief {relief:.0f} bar", COLOURS["fixed"], "dashdot", "right", "bottom")
     )
+    shapes = []
     for y, text, colour, dash, side, anchor in lines:
-        fig.add_hline(y=y, line={"color": colour, "width": 1, "dash": dash}, row=1, col=1)
-        fig.add_annotation(
-            x=0.005 if side == "left" else 0.995,
-            xref="x domain",
-            y=y,
-            yref="y",
-            xanchor=side,
-            yanchor=anchor,
-            text=text,
-            showarrow=False,
-            font={"size": 10, "color": colour if side == "right" else COLOURS["muted"]},
+        shapes.append(_hline(y, {"color": colour, "width": 1, "dash": dash}))
+        notes.append(
+            {
+                "x": 0.005 if side == "left" else 0.995,
+                "xref": "x domain",
+                "y": y,
+                "yref": "y",
+                "xanchor": side,
+                "yanchor": anchor,
+                "text": text,
+                "showarrow": False,
+                "font": {"size": 10, "color": colour if side == "right" else COLOURS["muted"]},
+            }
         )
-    fig.add_hline(y=0, line={"color": COLOURS["ink"], "width": 1}, row=4, col=1)
-    fig.update_yaxes(title_text="bar", row=1, col=1)
-    fig.update_yaxes(title_text="L", rangemode="tozero", row=2, col=1)
-    fig.update_yaxes(range=[-0.15, 1.6], tickvals=[0, 1], row=3, col=1)
-    fig.update_yaxes(title_text="bar", row=4, col=1)
-    fig.update_xaxes(range=[0, end])
-    fig.update_xaxes(title_text="time in cycle [s]", row=4, col=1)
-    return _layout(fig, 760)
+    shapes.append(_hline(0, {"color": COLOURS["ink"], "width": 1}, panel=4))
+    axes["yaxis"] |= {"title": {"text": "bar"}}
+    axes["yaxis2"] |= {"title": {"text": "L"}, "rangemode": "tozero"}
+    axes["yaxis3"] |= {"range": [-0.15, 1.6], "tickvals": [0, 1]}
+    axes["yaxis4"] |= {"title": {"text": "bar"}}
+    for n in ("", "2", "3", "4"):
+        axes[f"xaxis{n}"] |= {"range": [0, end]}
+    axes["xaxis4"] |= {"title": {"text": "time in cycle [s]"}}
+    return _figure(data, axes, 760, notes, shapes)
 
 
 def _options(result):
@@ -294,29 +373,30 @@ def comparison_figure(result) -> go.Figure | None:
         ("energy per year [MWh]", lambda o: to_unit(o.energy_per_year, "MWh", "energy"), ",.1f"),
         (f"total cost over {years} years [{cur}]", lambda o: o.tco, ",.0f"),
     )
-    fig = _subplots(rows=1, cols=4, horizontal_spacing=0.07, subplot_titles=[p[0] for p in panels])
+    axes, titles = _grid([p[0] for p in panels], cols=4, hspace=0.07)
     names = [_BAR_NAMES[o.key] for o in opts]
     colours = [COLOURS[o.key] for o in opts]
+    data = []
     for k, (_title, get, spec) in enumerate(panels, start=1):
         values = [float(get(o)) for o in opts]
-        fig.add_trace(
-            go.Bar(
-                x=names,
-                y=values,
-                marker={"color": colours},
-                text=[format(v, spec) for v in values],
-                textposition="outside",
-                cliponaxis=False,
-                hovertemplate="%{text}<extra></extra>",
-                showlegend=False,
-            ),
-            row=1,
-            col=k,
+        data.append(
+            {
+                "type": "bar",
+                "x": names,
+                "y": values,
+                "marker": {"color": colours},
+                "text": [format(v, spec) for v in values],
+                "textposition": "outside",
+                "cliponaxis": False,
+                "hovertemplate": "%{text}<extra></extra>",
+                "showlegend": False,
+                **_on(k),
+            }
         )
-        fig.update_yaxes(rangemode="tozero", row=1, col=k)
-        fig.update_xaxes(tickangle=0, tickfont={"size": 10}, row=1, col=k)
-    fig.update_layout(hovermode="closest", bargap=0.35)
-    return _layout(fig, 360)
+        n = "" if k == 1 else str(k)
+        axes[f"yaxis{n}"] |= {"rangemode": "tozero"}
+        axes[f"xaxis{n}"] |= {"tickangle": 0, "tickfont": {"size": 10}}
+    return _figure(data, axes, 360, titles, bargap=0.35)
 
 
 def timeline_figure(result) -> go.Figure | None:
@@ -326,28 +406,41 @@ def timeline_figure(result) -> go.Figure | None:
         return None
     tl = result.comparison.cost_timeline()
     cur = html.escape(content.currency(result))
-    fig = go.Figure()
-    for o in opts:
-        fig.add_trace(
-            go.Scatter(
-                x=tl.index.to_numpy(),
-                y=tl[o.key],
-                name=_OPTION_NAMES[o.key],
-                mode="lines+markers",
-                line={"color": COLOURS[o.key], "width": 2},
-                marker={"size": 5},
-                hovertemplate="%{y:,.0f} " + cur,
-            )
-        )
+    data = [
+        {
+            "type": "scatter",
+            "x": tl.index.to_numpy(),
+            "y": tl[o.key],
+            "name": _OPTION_NAMES[o.key],
+            "mode": "lines+markers",
+            "line": {"color": COLOURS[o.key], "width": 2},
+            "marker": {"size": 5},
+            "hovertemplate": "%{y:,.0f} " + cur,
+        }
+        for o in opts
+    ]
+    axes = {
+        "xaxis": {"title": {"text": "year"}, "dtick": 1},
+        "yaxis": {
+            "title": {"text": f"capex + present value of energy [{cur}]"},
+            "rangemode": "tozero",
+        },
+    }
     ref = result.comparison.reference
-    if ref is not None and ref.discounted_years not in (None, 0.0):
-        fig.add_vline(
-            x=ref.discounted_years,
-            line={"color": COLOURS["muted"], "width": 1, "dash": "dot"},
-            annotation_text=f"discounted payback {ref.discounted_years:.1f} years",
-            annotation_position="top right",
-            annotation_font={"size": 10, "color": COLOURS["muted"]},
-        )
-    fig.update_xaxes(title_text="year", dtick=1)
-    fig.update_yaxes(title_text=f"capex + present value of energy [{cur}]", rangemode="tozero")
-    return _layout(fig, 340)
+    if ref is None or ref.discounted_years in (None, 0.0):
+        return _figure(data, axes, 340)
+    x = ref.discounted_years
+    line = {"type": "line", "xref": "x", "x0": x, "x1": x, "yref": "y domain", "y0": 0, "y1": 1,
+            "line": {"color": COLOURS["muted"], "width": 1, "dash": "dot"}}  # fmt: skip
+    note = {
+        "x": x,
+        "xref": "x",
+        "xanchor": "left",
+        "y": 1,
+        "yref": "y domain",
+        "yanchor": "top",
+        "text": f"discounted payback {x:.1f} years",
+        "showarrow": False,
+        "font": {"size": 10, "color": COLOURS["muted"]},
+    }
+    return _figure(data, axes, 340, [note], [line])

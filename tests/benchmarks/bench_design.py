@@ -20,6 +20,7 @@
 from __future__ import annotations
 
 import argparse
+import math
 import statistics
 import subprocess
 import sys
@@ -37,14 +38,12 @@ from optimiser import gas  # noqa: E402
 from optimiser.catalogue import load_catalogue  # noqa: E402
 from optimiser.cycle import load_cycle  # noqa: E402
 from optimiser.designer import design  # noqa: E402
-from optimiser.schedule import deficit_from_full  # noqa: E402
 from optimiser.search import (  # noqa: E402
     charge_heating,
     make_problem,
     screen,
     stored_fraction,
     top_pressure,
-    warm_oil,
 )
 from optimiser.settings import DesignSettings  # noqa: E402
 
@@ -73,8 +72,6 @@ def sweep(cycle, catalogue, s: DesignSettings) -> tuple[float, float, int]:
     for pump in catalogue.pumps:
         qp = pump.flow * worn
         net = (qp - demand) * dt
-        deficit = deficit_from_full(net)
-        refill = float(deficit.max()) if deficit is not None else 0.0
         for opt in catalogue.accumulators:
             if opt.type not in s.types:
                 continue
@@ -121,16 +118,21 @@ def sweep(cycle, catalogue, s: DesignSettings) -> tuple[float, float, int]:
                 top = v0 * gas.oil_fraction(p_max, p0c, t_k, gas.ISOTHERMAL, s.gas_model)
                 if opt.swept_volume:
                     top = np.minimum(top, cc * opt.swept_volume)
-                # oil the warm gas of the charge withholds whenever the store is drawn down
-                warm = warm_oil(charge_heating(problem, p_max, t_k), s, pump.flow, refill)
+                # the gas a refill left warm withholds oil (heating × decaying refill memory)
+                heat = charge_heating(problem, p_max, t_k)
+                decay = math.exp(-dt / s.time_constant)
                 store = top.copy()
+                memory = np.zeros(store.size)
                 ends = []
                 for _cycle in range(3):
                     good = np.ones(store.size, bool)
                     for t in range(demand.size):
+                        before = store
                         store = np.minimum(top, store + net[t])
+                        gain = np.maximum(store - before, 0.0)
+                        memory = decay * memory + gain * (s.time_constant / dt) * (1 - decay)
                         drawn = store < top * (1 - 1e-12)
-                        avail = np.where(drawn, store - warm, store)
+                        avail = np.where(drawn, store - heat * memory, store)
                         good &= avail >= need[:, level_of[t]] - 1e-12
                     ends.append(store.copy())
                 periodic = np.abs(ends[-1] - ends[-2]) <= 1e-12
