@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 import argparse
+import subprocess
+import sys
 
 import pytest
 
@@ -106,3 +108,33 @@ def test_cold_values_parse_after_an_option_in_every_command(argv, dest):
     value = "-5" if dest == "ambient" else "-20..60"
     args = build_parser().parse_args(join_dash_values([*argv, value], build_parser()))
     assert getattr(args, dest) == value
+
+
+def test_design_keeps_pyomo_from_importing_scipy_stats(tmp_path):
+    # optimiser._deps: Pyomo's scipy hook imports scipy.sparse only (about 0.5 s of start-up);
+    # the design, its Pyomo model and its verification still run.
+    code = (
+        "import sys, numpy as np\n"
+        "import optimiser\n"
+        "from optimiser.cycle import cycle_from_arrays\n"
+        "from optimiser.pipeline import Study, run\n"
+        "flow = np.array([60.0, 0, 10, 0]) / 6e4\n"
+        "cyc = cycle_from_arrays(2.0, flow, np.full(4, 120e5 + 101325))\n"
+        "r = run(Study(cycle=cyc))\n"
+        "assert r.design.feasible and r.verification is not None\n"
+        "print('scipy.stats' in sys.modules, 'scipy.sparse' in sys.modules)\n"
+    )
+    out = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, check=True, cwd=tmp_path
+    )
+    assert out.stdout.split() == ["False", "True"]
+
+
+def test_installed_program_returns_the_command_exit_code(tmp_path):
+    # optimiser.cli.entry (the `stowflow` program and `python -m optimiser`) keeps main's code.
+    bad = tmp_path / "bad.csv"
+    bad.write_text("time [s], flow\n0, 1\n", encoding="utf-8")
+    out = subprocess.run(
+        [sys.executable, "-m", "optimiser", "check", str(bad)], capture_output=True, text=True
+    )
+    assert out.returncode == 2 and out.stderr.startswith("stowflow: error:")
