@@ -26,6 +26,7 @@ __all__ = [
     "ScheduleCheck",
     "StoreRun",
     "check_schedule",
+    "cooling_loss",
     "deficit_from_full",
     "greedy_schedule",
     "level_draws",
@@ -124,19 +125,55 @@ def refill_memory(deficit: np.ndarray, dt: float, tau: float) -> np.ndarray:
     return out
 
 
-def level_draws(
-    deficit: np.ndarray, memory: np.ndarray | None, inverse: np.ndarray, levels: int
-) -> list[tuple[np.ndarray, np.ndarray]]:
-    """Per pressure level, the (deficit, memory) pairs that can set the most it asks, [m³].
+def cooling_loss(deficit: np.ndarray, memory: np.ndarray) -> np.ndarray:
+    """Oil-equivalent heat the gas has lost since the store was last full, [m³].
 
-    A level's draw on the store for a heating factor h ≥ 0 is
-    :math:`\\max_t (D_t + h E_t)` over its steps with a deficit.  Only the upper convex hull
-    of the points :math:`(E_t, D_t)` can attain that maximum, so each level keeps those.
+    When the store was last full (the pump unloading at the unload pressure) its gas held the
+    heat ``memory`` of the refills before (:func:`refill_memory`); the unloading stopped the
+    fill that much short of the isotherm.  By superposition on the linearised energy
+    equation, what the gas has lost of that heat since, less the heat of any refill since,
+    is pressure the store now lacks against its isothermal curve:
+    :math:`L_t = \\max(0, E_{s(t)} - E_t)`, with s(t) the last full step (L = 0 where the store
+    is full).  The cooling of a draw's own expansion is the discharge's polytropic process.
 
     Parameters
     ----------
-    deficit, memory : numpy.ndarray
-        :func:`deficit_from_full` and :func:`refill_memory` per step (memory None: zero).
+    deficit : numpy.ndarray
+        Periodic deficit below a full store (:func:`deficit_from_full`), [m³].
+    memory : numpy.ndarray
+        :func:`refill_memory` of the same deficits, [m³].
+
+    Returns
+    -------
+    numpy.ndarray
+        L per step, [m³].
+    """
+    d = np.asarray(deficit, dtype=float)
+    e = np.asarray(memory, dtype=float)
+    n = d.size
+    full = d <= 0
+    if not full.any():
+        return np.zeros(n)
+    # index of the last full step at or before t, cyclically
+    twice = np.concatenate((full, full))
+    last = np.maximum.accumulate(np.where(twice, np.arange(2 * n), -1))[n:] % n
+    return np.where(full, 0.0, np.maximum(0.0, e[last] - e))
+
+
+def level_draws(
+    deficit: np.ndarray, loss: np.ndarray | None, inverse: np.ndarray, levels: int
+) -> list[tuple[np.ndarray, np.ndarray]]:
+    """Per pressure level, the (deficit, loss) pairs that can set the most it asks, [m³].
+
+    A level's draw on the store for a heating factor h ≥ 0 is
+    :math:`\\max_t (D_t + h L_t)` over its steps with a deficit (L: :func:`cooling_loss`).
+    Only the upper convex hull of the points :math:`(L_t, D_t)` can attain that maximum, so
+    each level keeps those.
+
+    Parameters
+    ----------
+    deficit, loss : numpy.ndarray
+        :func:`deficit_from_full` and :func:`cooling_loss` per step (None: zero).
     inverse : numpy.ndarray
         Level index of each step, [-].
     levels : int
@@ -144,11 +181,11 @@ def level_draws(
 
     Returns
     -------
-    list of (D, E) array pairs
+    list of (D, L) array pairs
         Empty arrays for a level without a deficit.
     """
     d = np.asarray(deficit, float)
-    e = np.zeros(d.size) if memory is None else np.asarray(memory, float)
+    e = np.zeros(d.size) if loss is None else np.asarray(loss, float)
     out = []
     for k in range(levels):
         m = (inverse == k) & (d > 0)

@@ -40,7 +40,7 @@ from optimiser.catalogue import AccumulatorOption, Catalogue, MotorOption, PumpO
 from optimiser.controllers import MIN_BAND_FRACTION, MIN_BAND_PRESSURE
 from optimiser.cycle import DutyCycle
 from optimiser.errors import SettingsError
-from optimiser.schedule import deficit_from_full, level_draws, refill_memory
+from optimiser.schedule import cooling_loss, deficit_from_full, level_draws, refill_memory
 from optimiser.settings import DesignSettings
 from optimiser.units import T_REF
 
@@ -381,16 +381,17 @@ def charge_heating(problem: Problem, p_top, T: float) -> np.ndarray | float:
         \\frac{d}{dt}\\frac{T - T_w}{T} = -\\frac{1}{\\tau}\\frac{T - T_w}{T}
             + g\\,\\frac{r}{V}, \\qquad g = \\frac{(\\partial p/\\partial T)_v}{\\rho\\, c_v}
 
-    (g = κ − 1 for an ideal gas).  At a given pressure the warm gas fills
-    :math:`\\Delta V = V\\alpha_p (T - T_w)` more than at rest, oil the machine cannot draw
-    before the gas cools:
+    (g = κ − 1 for an ideal gas).  At a given pressure a gas ΔT warmer than at rest fills
+    :math:`\\Delta V = V\\alpha_p\\,\\Delta T` more, so its heat counts as oil:
 
     .. math:: \\Delta V = g\\,(\\alpha_p T)\\, E, \\qquad
         E = \\int r(s)\\, e^{-(t - s)/\\tau}\\, ds
 
     with E from :func:`optimiser.schedule.refill_memory` (τ·q for a steady refill at the
-    rate q).  This function returns :math:`g\\,\\alpha_p T` (κ − 1 for an ideal gas).  Only
-    the ``auto`` process carries it (a process that is set is taken as the whole gas law):
+    rate q).  The pump unloads at the unload pressure with the gas still warm; the heat the
+    gas loses after that (:func:`optimiser.schedule.cooling_loss`) is pressure the store
+    lacks.  This function returns :math:`g\\,\\alpha_p T` (κ − 1 for an ideal gas).  Only the
+    ``auto`` process carries it (a process that is set is taken as the whole gas law):
     0 otherwise.
 
     Parameters
@@ -658,18 +659,20 @@ def screen(
     # Deficits depend on the pump only; so does the refill that warms the gas (auto process).
     deficit_max: dict[int, np.ndarray | None] = {}
     draws: dict[int, list] = {}
-    warms = s.process == "auto" and math.isfinite(s.time_constant)
     worn = 1.0 - s.flow_margin  # the design must hold with a worn pump
+    deficits = {}
     for j, pump in enumerate(pumps):
         d = deficit_from_full((pump.flow * worn - demand) * dt)
-        if d is None:
-            deficit_max[j] = None
-            continue
-        dm = np.zeros(levels.size)
-        np.maximum.at(dm, inverse, d)
-        deficit_max[j] = dm
-        memory = refill_memory(d, dt, s.time_constant) if warms else None
-        draws[j] = level_draws(d, memory, inverse, levels.size)
+        deficit_max[j] = None
+        if d is not None:
+            deficit_max[j] = np.zeros(levels.size)
+            np.maximum.at(deficit_max[j], inverse, d)
+            deficits[j] = d
+    # The warm gas of the refills (auto process, gas that cools): heat lost since full.
+    cools = s.process == "auto" and math.isfinite(s.time_constant)
+    for j, d in deficits.items():
+        loss = cooling_loss(d, refill_memory(d, dt, s.time_constant)) if cools else None
+        draws[j] = level_draws(d, loss, inverse, levels.size)
 
     bounds_cache: dict[tuple, tuple] = {}
     volume_cache: dict[tuple, np.ndarray] = {}
@@ -716,7 +719,7 @@ def screen(
 
         if (key, j) not in draw_cache:
             # What each (temperature, precharge, level) draws from the store: the deficit
-            # plus the oil the gas a refill left warm withholds (charge_heating × memory).
+            # plus the heat the gas has lost since the pump unloaded (charge_heating × loss).
             draw = np.zeros((heat.shape[0], heat.shape[1], levels.size))
             for k, (d_k, e_k) in enumerate(draws[j]):
                 if d_k.size:

@@ -22,7 +22,7 @@ from CoolProp.CoolProp import PropsSI
 from optimiser import gas, thermal
 from optimiser.cycle import cycle_from_arrays
 from optimiser.gas import KAPPA, expansion_ratio, pressure_after_expansion
-from optimiser.schedule import refill_memory
+from optimiser.schedule import cooling_loss, refill_memory
 from optimiser.search import (
     charge_heating,
     make_problem,
@@ -240,3 +240,36 @@ def test_auto_process_takes_the_real_gas_index():
     assert ideal.process.n <= KAPPA + 1e-12
     assert "real nitrogen" in real.process_note
     assert math.isfinite(real.process.n)
+
+
+@pytest.mark.parametrize("model", ["ideal", "real"])
+def test_heat_lost_at_rest_matches_the_energy_equation(model):
+    """After a charge the gas cools at constant volume (the pump unloaded): its excess volume
+    over the gas at rest at its own pressure falls as exp(−t/τ) (the energy equation at
+    V̇ = 0), so what it has lost since the charge, as oil, is charge_heating × cooling_loss."""
+    tau, dt, refill, duration, hold = 5.0, 0.05, 0.012, 125.0, 4.0
+    excess_0, p_0 = _excess_after_charge(model, duration, refill, tau)
+    T_w = T10
+    mass = 0.05 * gas.density(150 * BAR, T_w, model)
+    V2 = 0.05 - refill
+    T_0 = float(gas.temperature_from_density(mass / V2, p_0, model))
+    _, p_1 = thermal.linear_volume_change(hold, tau, V2, V2, mass, T_0, model, T_wall=T_w)
+    excess_1 = V2 - mass / gas.density(p_1, T_w, model)
+    pb = _problem("auto", model, tau=tau)
+    heat = float(charge_heating(pb, p_0, T10))
+    # deficits: the charge ends full, then the pump unloads and the oil stays (a store just
+    # off full, no flow) for the hold
+    d = np.concatenate((_charge_cycle(refill, duration, 50 * tau, dt), np.full(80, 1e-12)))
+    loss = cooling_loss(d, refill_memory(d, dt, tau))
+    assert loss[-1] * heat == pytest.approx(excess_0 - excess_1, rel=0.05)
+    assert excess_1 == pytest.approx(excess_0 * math.exp(-hold / tau), rel=0.02)
+
+
+def test_cooling_loss_counts_from_the_last_full_step():
+    # Mathematics of L_t = max(0, E_s(t) − E_t), s(t) the last step with D = 0, cyclic.
+    d = np.array([0, 1, 2, 1, 0, 0, 3, 2, 0.0])
+    e = np.array([5, 4, 3, 3.5, 4, 4.2, 3, 2.5, 2.0])
+    assert cooling_loss(d, e) == pytest.approx([0, 1, 2, 1.5, 0, 0, 1.2, 1.7, 0])
+    d = np.array([1, 2, 0, 3.0])  # the first steps count from step 2 of the cycle before
+    assert cooling_loss(d, np.array([1, 1, 5, 2.0])) == pytest.approx([4, 4, 0, 3])
+    assert cooling_loss(np.ones(3), np.ones(3)) == pytest.approx([0, 0, 0])  # never full

@@ -118,11 +118,12 @@ def sweep(cycle, catalogue, s: DesignSettings) -> tuple[float, float, int]:
                 top = v0 * gas.oil_fraction(p_max, p0c, t_k, gas.ISOTHERMAL, s.gas_model)
                 if opt.swept_volume:
                     top = np.minimum(top, cc * opt.swept_volume)
-                # the gas a refill left warm withholds oil (heating × decaying refill memory)
+                # heat of the refills the gas has lost since the pump last unloaded
                 heat = charge_heating(problem, p_max, t_k)
                 decay = math.exp(-dt / s.time_constant)
                 store = top.copy()
                 memory = np.zeros(store.size)
+                at_full = np.zeros(store.size)
                 ends = []
                 for _cycle in range(3):
                     good = np.ones(store.size, bool)
@@ -132,7 +133,9 @@ def sweep(cycle, catalogue, s: DesignSettings) -> tuple[float, float, int]:
                         gain = np.maximum(store - before, 0.0)
                         memory = decay * memory + gain * (s.time_constant / dt) * (1 - decay)
                         drawn = store < top * (1 - 1e-12)
-                        avail = np.where(drawn, store - heat * memory, store)
+                        at_full = np.where(drawn, at_full, memory)
+                        lost = heat * np.maximum(0.0, at_full - memory)
+                        avail = np.where(drawn, store - lost, store)
                         good &= avail >= need[:, level_of[t]] - 1e-12
                     ends.append(store.copy())
                 periodic = np.abs(ends[-1] - ends[-2]) <= 1e-12
