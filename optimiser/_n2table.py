@@ -44,6 +44,7 @@ References
 
 from __future__ import annotations
 
+import atexit
 import functools
 from dataclasses import dataclass
 from pathlib import Path
@@ -298,6 +299,9 @@ def load_table(path: str | None = None) -> N2Table | None:
 def _abstract_state():
     import CoolProp.CoolProp as CP
 
+    # Let the state go at exit, while CoolProp can still free it (otherwise its bindings
+    # report it as leaked when the interpreter skips the last collection: cli.entry).
+    atexit.register(_abstract_state.cache_clear)
     return CP, CP.AbstractState("HEOS", "Nitrogen")
 
 
