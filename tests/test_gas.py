@@ -259,10 +259,6 @@ def test_real_gas_tends_to_ideal_at_low_pressure(p0, k, T):
 def test_direct_state_is_freed_at_exit_without_a_last_collection():
     # The installed program skips the interpreter's last garbage collection (cli.entry);
     # CoolProp's bindings would then report its cached state as leaked on stderr.
-    code = (
-        "import gc, optimiser._n2table as t;"
-        "t.direct('PT', 200e5, 300.0, ('rho',));"
-        "gc.freeze()"
-    )
+    code = "import gc, optimiser._n2table as t;t.direct('PT', 200e5, 300.0, ('rho',));gc.freeze()"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert "leaked" not in out.stderr
