@@ -347,14 +347,15 @@ def stored_fraction(problem: Problem, p, p0, T: float, p_top, rho0=None) -> np.n
     below = p < p_top
     if problem.process.kind != "isothermal" and np.any(below):
         v_top = _iso_ratio(p_top[below], rho0[below], T, model)
-        # each distinct (pressure, top) pair once: the real isentrope is costly per point
-        pairs, inv = np.unique(
-            np.stack((p[below], p_top[below]), axis=1), axis=0, return_inverse=True
-        )
-        r = np.asarray(
-            gas.expansion_ratio(pairs[:, 0], pairs[:, 1], T, problem.process, model), float
-        )
-        v[below] = np.minimum(v_top * r[inv.ravel()], 1.0)
+        pb, tb = p[below], p_top[below]
+        if problem.process.kind == "polytropic" or model == "ideal":
+            r = np.asarray(gas.expansion_ratio(pb, tb, T, problem.process, model), float)
+        else:  # the real isentrope is costly per point: each distinct pair once
+            pairs, inv = np.unique(np.stack((pb, tb), axis=1), axis=0, return_inverse=True)
+            r = np.asarray(
+                gas.expansion_ratio(pairs[:, 0], pairs[:, 1], T, problem.process, model), float
+            )[inv.ravel()]
+        v[below] = np.minimum(v_top * r, 1.0)
     return _out(1.0 - v)
 
 
