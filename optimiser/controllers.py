@@ -211,6 +211,6 @@ def derive_switch(
     return a, pay_a, notes
 
 
-def narrowest_band(off_gauge: float) -> float:
-    """Narrowest pressure band tried for an unload gauge pressure, [Pa]."""
-    return max(MIN_BAND_PRESSURE, MIN_BAND_FRACTION * off_gauge)
+def narrowest_band(off_gauge):
+    """Narrowest pressure band tried for an unload gauge pressure, [Pa] (float or array)."""
+    return np.maximum(MIN_BAND_PRESSURE, MIN_BAND_FRACTION * np.asarray(off_gauge, float))

@@ -37,7 +37,7 @@ import numpy as np
 from optimiser import accumulator as acc
 from optimiser import gas
 from optimiser.catalogue import AccumulatorOption, Catalogue, MotorOption, PumpOption
-from optimiser.controllers import MIN_BAND_FRACTION, MIN_BAND_PRESSURE
+from optimiser.controllers import narrowest_band
 from optimiser.cycle import DutyCycle
 from optimiser.errors import SettingsError
 from optimiser.schedule import cooling_loss, deficit_from_full, level_draws, refill_memory
@@ -60,7 +60,6 @@ __all__ = [
     "PrechargeGrid",
     "Problem",
     "ScreenResult",
-    "bank_bounds",
     "bank_lower",
     "bank_upper",
     "charge_heating",
@@ -251,9 +250,7 @@ def top_pressure(settings: DesignSettings, p_max) -> np.ndarray | float:
     to it before loading again, so the machine may start drawing there.
     """
     p_max = np.asarray(p_max, float)
-    return _out(
-        p_max - np.maximum(MIN_BAND_PRESSURE, MIN_BAND_FRACTION * (p_max - settings.p_ambient))
-    )
+    return _out(p_max - narrowest_band(p_max - settings.p_ambient))
 
 
 def _out(a: np.ndarray):
@@ -429,55 +426,6 @@ def charge_heating(problem: Problem, p_top, T: float) -> np.ndarray | float:
     return _out((g * alpha_t)[inv].reshape(p_top.shape))
 
 
-def bank_bounds(
-    problem: Problem,
-    acc_type: str,
-    p0: np.ndarray,
-    p_allowed: float,
-    p_levels: np.ndarray,
-    rules,
-    temperatures: tuple[float, ...] | None = None,
-) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """Oil fractions of a bank for a grid of precharges, at each temperature.
-
-    At temperature ``T`` the precharge, stated at 20 °C, has become ``p0(T)`` (isochoric);
-    the store must hold at least the oil that gives each required pressure after a
-    discharge from the top of the window (:func:`stored_fraction`, :func:`top_pressure`) and
-    at least the oil the type's precharge rule asks for (the working pressure must stay above
-    the precharge by the type's margin), and at most the oil at the unload pressure, gas at
-    rest.
-
-    Parameters
-    ----------
-    problem : Problem
-        The prepared cycle.
-    acc_type : str
-        Accumulator type.
-    p0 : numpy.ndarray
-        Precharges at 20 °C, absolute, shape (P,), [Pa].
-    p_allowed : float
-        Highest unload pressure the pump, motor, relief and shell allow, absolute, [Pa].
-    p_levels : numpy.ndarray
-        Distinct pressures the store must hold, absolute, shape (K,), [Pa].
-    rules : TypeRules
-        Rules of the accumulator type.
-    temperatures : tuple of float, optional
-        Temperatures, [K]; default the coldest and hottest operating temperature.
-
-    Returns
-    -------
-    (lower, upper, p_max)
-        ``lower`` (T, P, K): least oil fraction for each level; ``upper`` (T, P): most oil
-        fraction at the unload pressure; ``p_max`` (P,): unload pressure after the type's own
-        limits (the pressure ratio counts at the coldest temperature, where the precharge is
-        lowest), [Pa].  Combinations the type rules out have ``upper = -inf``.
-    """
-    grid = PrechargeGrid.of(problem, p0, temperatures or ())
-    upper, p_max = bank_upper(problem, acc_type, grid, p_allowed, p_levels, rules, temperatures)
-    lower = bank_lower(problem, acc_type, grid, p_levels, rules, temperatures, p_max)
-    return lower, upper, p_max
-
-
 def bank_lower(
     problem: Problem,
     acc_type: str,
@@ -487,9 +435,37 @@ def bank_lower(
     temperatures: tuple[float, ...] | None,
     p_max: np.ndarray,
 ) -> np.ndarray:
-    """The ``lower`` part of :func:`bank_bounds`, (T, P, K) [-], for the unload pressures
-    ``p_max`` (P,) [Pa] of the precharges ``p0`` (array or :class:`PrechargeGrid`); for
-    ``p_max`` of shape (A, P), one table per row: (T, A, P, K)."""
+    """Least oil fraction of a bank for each required pressure level, at each temperature.
+
+    At temperature ``T`` the precharge, stated at 20 °C, has become ``p0(T)`` (isochoric);
+    the store must hold at least the oil that gives each required pressure after a
+    discharge from the top of the window (:func:`stored_fraction`, :func:`top_pressure`)
+    and at least the oil the type's precharge rule asks for (the working pressure must stay
+    above the precharge by the type's margin).
+
+    Parameters
+    ----------
+    problem : Problem
+        The prepared cycle.
+    acc_type : str
+        Accumulator type.
+    p0 : numpy.ndarray or PrechargeGrid
+        Precharges at 20 °C, absolute, shape (P,), [Pa].
+    p_levels : numpy.ndarray
+        Distinct pressures the store must hold, absolute, shape (K,), [Pa].
+    rules : TypeRules
+        Rules of the accumulator type.
+    temperatures : tuple of float or None
+        Temperatures, [K]; None: the coldest and hottest operating temperature.
+    p_max : numpy.ndarray
+        Unload pressure of each precharge (:func:`bank_upper`), (P,) or, one row per unload
+        limit, (A, P), [Pa].
+
+    Returns
+    -------
+    numpy.ndarray
+        (T, P, K), or (T, A, P, K), [-].
+    """
     temps = temperatures or problem.temperatures
     grid = PrechargeGrid.of(problem, p0, temps)
     top = np.asarray(top_pressure(problem.settings, p_max), float)[..., None]
@@ -512,8 +488,24 @@ def bank_upper(
     rules,
     temperatures: tuple[float, ...] | None = None,
 ) -> tuple[np.ndarray, np.ndarray]:
-    """The ``upper`` (T, P) [-] and ``p_max`` (P,) [Pa] parts of :func:`bank_bounds`; for
-    ``p_allowed`` of shape (A,), one row each: (T, A, P) and (A, P)."""
+    """Most oil fraction of a bank at its unload pressure (gas at rest), at each temperature.
+
+    Parameters
+    ----------
+    problem, acc_type, p0, p_levels, rules, temperatures
+        As for :func:`bank_lower`.
+    p_allowed : float or numpy.ndarray
+        Highest unload pressure the pump, motor, relief and shell allow, absolute, [Pa];
+        shape (A,) for several at once.
+
+    Returns
+    -------
+    (upper, p_max)
+        ``upper`` (T, P) or (T, A, P) [-]; ``p_max`` (P,) or (A, P): unload pressure after
+        the type's own limits (the pressure ratio counts at the coldest temperature, where
+        the precharge is lowest), [Pa].  Combinations the type rules out have
+        ``upper = -inf``.
+    """
     s = problem.settings
     temps = temperatures or problem.temperatures
     grid = PrechargeGrid.of(problem, p0, temps)

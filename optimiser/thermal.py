@@ -207,7 +207,6 @@ def linear_volume_change(
     *,
     T_wall=None,
     method: str = "table",
-    rtol: float = 1e-10,
     steps: int | None = None,
 ) -> tuple:
     """Gas temperature and pressure after a volume change at constant rate from V1 to V2.
@@ -234,8 +233,6 @@ def linear_volume_change(
         Wall temperature, [K]; default ``T_start``.
     method : {"table", "direct"}
         Real-gas properties from the table or from CoolProp directly.
-    rtol : float
-        Relative tolerance of the real-gas integration, [-].
     steps : int, optional
         Real gas: integrate with this many classical Runge–Kutta steps (vectorised, without
         scipy) instead of Radau; 32 steps give the effective index within 1e-7 of Radau for
@@ -257,7 +254,7 @@ def linear_volume_change(
         T_end = theta * T_wall
     else:
         args = (duration, tau, V1, V2, mass, T_start, T_wall, method)
-        T_end = _real_linear_rk4(*args, steps) if steps else _real_linear(*args, rtol)
+        T_end = _real_linear_rk4(*args, steps) if steps else _real_linear(*args)
     p_end = gas_pressure(mass, V2, T_end, model, method=method)
     return (float(T_end) if np.ndim(T_end) == 0 else T_end), p_end
 
@@ -284,7 +281,7 @@ def _real_linear_rk4(duration, tau, V1, V2, mass, T_start, T_wall, method, steps
     return T
 
 
-def _real_linear(duration, tau, V1, V2, mass, T_start, T_wall, method, rtol=1e-10):
+def _real_linear(duration, tau, V1, V2, mass, T_start, T_wall, method):
     from scipy.integrate import solve_ivp
 
     b = np.broadcast_arrays(duration, tau, V1, V2, mass, T_start, T_wall)
@@ -296,7 +293,7 @@ def _real_linear(duration, tau, V1, V2, mass, T_start, T_wall, method, rtol=1e-1
         def rhs(t, y, v1=v1, rate=rate, tw=tw, ta=ta, m=m):
             return [temperature_rate(y[0], v1 + rate * t, rate, tw, ta, m, "real", method=method)]
 
-        sol = solve_ivp(rhs, (0.0, dur), [t0], method="Radau", rtol=rtol, atol=1e-9)
+        sol = solve_ivp(rhs, (0.0, dur), [t0], method="Radau", rtol=1e-10, atol=1e-9)
         if not sol.success:  # pragma: no cover - Radau does not fail on this smooth ODE
             raise SizingError(f"thermal integration failed: {sol.message}")
         out[idx] = sol.y[0, -1]
@@ -313,7 +310,6 @@ def effective_polytropic_index(
     T_start=T_REF,
     T_wall=None,
     method: str = "table",
-    rtol: float = 1e-10,
     steps: int | None = None,
 ):
     """Polytropic index that a linear stroke of given duration actually follows.
@@ -343,8 +339,6 @@ def effective_polytropic_index(
         Wall temperature, [K]; default ``T_start``.
     method : {"table", "direct"}
         Real-gas properties from the table or from CoolProp directly.
-    rtol : float
-        Relative tolerance of the real-gas integration, [-].
     steps : int, optional
         Real gas: fixed Runge–Kutta steps instead of Radau (see :func:`linear_volume_change`).
 
@@ -374,7 +368,6 @@ def effective_polytropic_index(
         model,
         T_wall=T_wall,
         method=method,
-        rtol=rtol,
         steps=steps,
     )
     if p1 is None:
