@@ -6,6 +6,7 @@
   they take any ``httpx.Client`` (Starlette's ``TestClient`` is one).
 * :func:`upload_burst`: many uploads at the same moment from threads; :func:`load_run`: a
   server, a burst, the accepted designs to their end, memory watched (test and benchmark).
+* :func:`slow_job`: a worker job that is slow on purpose, for the time-limit tests.
 * :class:`MemoryWatch`: the resident memory of a process and all its descendants (the fork
   server and the job processes), sampled from ``/proc`` (Linux).
 
@@ -37,6 +38,7 @@ __all__ = [
     "free_port",
     "load_run",
     "percentile",
+    "slow_job",
     "start_serve",
     "stop_serve",
     "upload",
@@ -57,8 +59,24 @@ TINY = (
     "3, 0, 120, hold\n"
     "5, 0, 20, return\n"
 )
+#: How long :func:`slow_job` waits before it gives up by itself, [s]: far past any time limit
+#: a test sets, and still bounded, so a server that failed to end it does not hang the suite.
+SLOW_JOB_S = 120.0
+
 #: Job states that still change (the rest are final, as in :mod:`optimiser.web.jobs`).
 _RUNNING = ("queued", "running")
+
+
+def slow_job(conn, study, out_dir: str) -> None:
+    """A worker job that is slow on purpose: one progress message, then it waits.
+
+    The server's time limit must end it.  A test of the limit that ran a real design instead
+    would depend on this machine's speed: a fast machine finishes the design inside the limit.
+    The fork server finds this function by name, so it lives in an importable module.
+    """
+    conn.send(("progress", 0.01, "waiting on purpose (test)"))
+    time.sleep(SLOW_JOB_S)
+    conn.send(("error", f"slow_job was not ended within {SLOW_JOB_S:g} s"))
 
 
 def free_port() -> int:

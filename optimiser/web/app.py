@@ -30,6 +30,7 @@ import datetime as _dt
 import ipaddress
 import os
 import re
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 from urllib.parse import urlsplit
@@ -134,6 +135,9 @@ class ServerConfig:
         Whether the fork server fills the real-gas property caches before the first job (a
         few seconds once; then every real-gas job starts warm).  Off only saves time when
         the jobs use the ideal-gas model, as the tests do.
+    job_target : callable or None
+        What a worker process runs (default: the pipeline and the report,
+        :func:`~optimiser.web._worker.run_job`); see :class:`~optimiser.web.jobs.JobManager`.
     """
 
     workers: int = field(default_factory=_default_workers)
@@ -145,6 +149,7 @@ class ServerConfig:
     allowed_hosts: tuple[str, ...] = LOOPBACK_HOSTS
     demo_cycle: Path | None = None
     warm_up: bool = True
+    job_target: Callable | None = None
 
     @property
     def limits(self) -> FormLimits:
@@ -208,6 +213,7 @@ def create_app(config: ServerConfig | None = None) -> Starlette:
         time_limit=cfg.time_limit,
         max_studies=cfg.max_studies,
         warm_up=cfg.warm_up,
+        target=cfg.job_target,
     )
     env = jinja2.Environment(
         loader=jinja2.FileSystemLoader(HERE / "templates"),

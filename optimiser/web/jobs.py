@@ -32,7 +32,9 @@ import tempfile
 import time
 import traceback
 from collections import OrderedDict, deque
+from collections.abc import Callable
 from dataclasses import dataclass, field
+from multiprocessing.connection import Connection
 from pathlib import Path
 
 import anyio
@@ -135,6 +137,11 @@ class JobManager:
     warm_up : bool
         Whether the fork server also fills the real-gas property caches (else it only imports
         the pipeline).  The fork server is one per process: the first manager's choice holds.
+    target : callable, optional
+        What a worker process runs, called as ``target(conn, study, out_dir)`` (default
+        :func:`~optimiser.web._worker.run_job`).  It must be importable by name, as the fork
+        server unpickles it; the tests pass one that is slow on purpose, so that the time
+        limit is tested without depending on how fast this machine designs.
     """
 
     def __init__(
@@ -145,8 +152,10 @@ class JobManager:
         time_limit: float,
         max_studies: int,
         warm_up: bool = True,
+        target: Callable[[Connection, Study | None, str], None] | None = None,
     ) -> None:
         self.workers, self.queue_size = workers, queue
+        self.target = target or run_job
         self.time_limit, self.max_studies = time_limit, max_studies
         self.jobs: OrderedDict[str, Job] = OrderedDict()
         self.pending: deque[str] = deque()
@@ -269,7 +278,7 @@ class JobManager:
         out = self.folder(job)
         out.mkdir()
         proc = self._ctx.Process(
-            target=run_job, args=(writer, job.study, str(out)), name=f"stowflow-job-{job.id}"
+            target=self.target, args=(writer, job.study, str(out)), name=f"stowflow-job-{job.id}"
         )
         job.state, job.label = "running", "starting a worker"
         job.process, job.conn, job.study = proc, reader, None
