@@ -1,7 +1,7 @@
-"""``python -m optimiser`` runs the stowflow command line."""
+"""``python -m stowflow`` runs the stowflow command line."""
 
 import sys
 
-from optimiser.cli import entry
+from stowflow.cli import entry
 
 sys.exit(entry())

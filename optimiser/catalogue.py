@@ -32,7 +32,7 @@ The catalogue is a TOML file with one table per purchasable item (see DESIGN.md)
 
 Everything is converted to SI on reading (m³, Pa **absolute**, m, m³/s, m³/rev, rev/s, W).
 Mistakes (unknown keys, missing keys, wrong types, values ≤ 0 or absurd, unknown type names,
-TOML syntax) raise one :class:`~optimiser.errors.CatalogueError` line naming the file, the
+TOML syntax) raise one :class:`~stowflow.errors.CatalogueError` line naming the file, the
 line, the table and its index.
 """
 
@@ -45,10 +45,10 @@ import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from optimiser._csvread import utf8_text
-from optimiser.errors import CatalogueError
-from optimiser.glossary import GLOSSARY
-from optimiser.units import P_AMBIENT, gauge_to_abs, si_factor
+from stowflow.cycle.csvtable import utf8_text
+from stowflow.errors import CatalogueError
+from stowflow.glossary import GLOSSARY
+from stowflow.units import P_AMBIENT, gauge_to_abs, si_factor
 
 __all__ = [
     "ACCUMULATOR_TYPES",
@@ -202,8 +202,9 @@ class Catalogue:
     notes : tuple of str
         Free notes from the file's top-level ``notes`` key.
     limits : dict of str to dict of str to float
-        Per accumulator type, overrides of the type rules (read by :mod:`optimiser.accumulator`;
-        units as that module documents them).  Treat as read-only.
+        Per accumulator type, overrides of the type rules (read by
+        :mod:`stowflow.physics.accumulator`; units as that module documents them).  Treat as
+        read-only.
     """
 
     accumulators: tuple[AccumulatorOption, ...]

@@ -28,7 +28,7 @@ class Term:
     si_unit : str
         Unit in which it is held internally.
     dimension : str
-        Dimension key understood by :mod:`optimiser.units`.
+        Dimension key understood by :mod:`stowflow.units`.
     meaning : str
         One-sentence meaning.
     plausible : tuple[float, float] | None

@@ -16,14 +16,13 @@ from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 import numpy as np
-
-from optimiser.catalogue import Catalogue, default_catalogue_path, load_catalogue
-from optimiser.costs import Comparison, CostSettings, compare
-from optimiser.cycle import DutyCycle, load_cycle
-from optimiser.designer import design
-from optimiser.settings import DesignSettings
-from optimiser.simulate import Verification, verify
-from optimiser.solution import Design
+from stowflow.catalogue import Catalogue, default_catalogue_path, load_catalogue
+from stowflow.costs.comparison import Comparison, CostSettings, compare
+from stowflow.cycle.duty import DutyCycle, load_cycle
+from stowflow.search.designer import design
+from stowflow.search.settings import DesignSettings
+from stowflow.search.solution import Design
+from stowflow.simulation.verify import Verification, verify
 
 __all__ = ["MAX_TIGHTENINGS", "Attempt", "Study", "StudyResult", "run"]
 

@@ -20,8 +20,7 @@ import re
 from typing import TYPE_CHECKING, Literal
 
 import numpy as np
-
-from optimiser.errors import UnitsError
+from stowflow.errors import UnitsError
 
 if TYPE_CHECKING:  # pragma: no cover - typing only
     import pint

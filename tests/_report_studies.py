@@ -77,7 +77,7 @@ name = "motor 30"
 @functools.cache
 def forming_press():
     """The demo forming press, demo catalogue, quasi-static only."""
-    from optimiser.pipeline import Study, run
+    from stowflow.pipeline import Study, run
 
     return run(Study(cycle=REPO / "duty_cycles" / "forming_press.csv", verify=False))
 
@@ -85,7 +85,7 @@ def forming_press():
 @functools.cache
 def forming_press_verified():
     """The demo forming press with the time-domain verification, or None if it cannot run."""
-    from optimiser.pipeline import Study, run
+    from stowflow.pipeline import Study, run
 
     try:
         return run(Study(cycle=REPO / "duty_cycles" / "forming_press.csv", verify=True))
@@ -96,9 +96,9 @@ def forming_press_verified():
 @functools.cache
 def hostile():
     """A small feasible study whose every user string carries a payload."""
-    from optimiser.catalogue import parse_catalogue_text
-    from optimiser.cycle import parse_cycle_text
-    from optimiser.pipeline import Study, run
+    from stowflow.catalogue import parse_catalogue_text
+    from stowflow.cycle.duty import parse_cycle_text
+    from stowflow.pipeline import Study, run
 
     cycle = parse_cycle_text(_HOSTILE_CYCLE, name=STUDY_NAME)
     cat = parse_catalogue_text(
@@ -110,9 +110,9 @@ def hostile():
 @functools.cache
 def infeasible():
     """The hostile cycle against a catalogue whose only pump is too small: infeasible."""
-    from optimiser.catalogue import parse_catalogue_text
-    from optimiser.cycle import parse_cycle_text
-    from optimiser.pipeline import Study, run
+    from stowflow.catalogue import parse_catalogue_text
+    from stowflow.cycle.duty import parse_cycle_text
+    from stowflow.pipeline import Study, run
 
     text = _HOSTILE_CATALOGUE.replace("displacement_cm3 = 16", "displacement_cm3 = 4").replace(
         "displacement_cm3 = 50", "displacement_cm3 = 5"

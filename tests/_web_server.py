@@ -1,6 +1,6 @@
 """Shared helpers of the web tests and the web benchmark: the real ``stowflow serve``, uploads.
 
-* :func:`start_serve` / :func:`stop_serve`: ``python -m optimiser serve`` on a free loopback
+* :func:`start_serve` / :func:`stop_serve`: ``python -m stowflow serve`` on a free loopback
   port in a subprocess, optionally with a private ``TMPDIR``; stopped with Ctrl+C (SIGINT).
 * :func:`upload` / :func:`wait_final`: post a cycle through the form and follow the study;
   they take any ``httpx.Client`` (Starlette's ``TestClient`` is one).
@@ -63,7 +63,7 @@ TINY = (
 #: a test sets, and still bounded, so a server that failed to end it does not hang the suite.
 SLOW_JOB_S = 120.0
 
-#: Job states that still change (the rest are final, as in :mod:`optimiser.web.jobs`).
+#: Job states that still change (the rest are final, as in :mod:`stowflow.web.jobs`).
 _RUNNING = ("queued", "running")
 
 
@@ -117,7 +117,7 @@ class Served:
 
 
 def start_serve(*options: str, tmpdir: Path | None = None, start_s: float = START_S) -> Served:
-    """Start ``python -m optimiser serve --port <free> OPTIONS`` and wait for it to listen.
+    """Start ``python -m stowflow serve --port <free> OPTIONS`` and wait for it to listen.
 
     Parameters
     ----------
@@ -138,7 +138,7 @@ def start_serve(*options: str, tmpdir: Path | None = None, start_s: float = STAR
     if tmpdir is not None:
         env["TMPDIR"] = str(tmpdir)
     log = tempfile.TemporaryFile()
-    cmd = [sys.executable, "-m", "optimiser", "serve", "--port", str(port), *options]
+    cmd = [sys.executable, "-m", "stowflow", "serve", "--port", str(port), *options]
     proc = subprocess.Popen(cmd, stdout=log, stderr=subprocess.STDOUT, env=env)
     served = Served(proc, port, f"http://127.0.0.1:{port}", tmpdir, log)
     deadline = time.monotonic() + start_s

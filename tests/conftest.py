@@ -19,7 +19,7 @@ def repo_root() -> Path:
 @pytest.fixture
 def run_cli(capsys):
     """Run ``stowflow ARGS...`` in-process; return ``(exit code, stdout, stderr)``."""
-    from optimiser.cli import main
+    from stowflow.cli import main
 
     def run(*args: str) -> tuple[int, str, str]:
         code = main([str(a) for a in args])

@@ -5,16 +5,15 @@ from __future__ import annotations
 import math
 
 import pytest
-
-import optimiser.catalogue as catalogue_module
-from optimiser.catalogue import (
+import stowflow.catalogue as catalogue_module
+from stowflow.catalogue import (
     ACCUMULATOR_TYPES,
     default_catalogue_path,
     load_catalogue,
     parse_catalogue_text,
 )
-from optimiser.errors import CatalogueError
-from optimiser.units import P_AMBIENT
+from stowflow.errors import CatalogueError
+from stowflow.units import P_AMBIENT
 
 MINIMAL = """
 [[pump]]

@@ -1,9 +1,9 @@
-"""Command-line shell: ``stowflow <command> ...`` and ``python -m optimiser <command> ...``.
+"""Command-line shell: ``stowflow <command> ...`` and ``python -m stowflow <command> ...``.
 
 The shell only parses options, calls the library and prints.  Each command lives in its own
 module in this package with two functions: ``register(subparsers, common)`` that adds its
 parser, and ``run(args) -> int`` that does the work.  Errors the user can cause
-(:class:`optimiser.errors.StowflowError`) become one line on stderr and exit code 2.
+(:class:`stowflow.errors.StowflowError`) become one line on stderr and exit code 2.
 """
 
 from __future__ import annotations
@@ -14,8 +14,8 @@ import importlib
 import re
 import sys
 
-from optimiser import __version__
-from optimiser.errors import StowflowError
+from stowflow.errors import StowflowError
+from stowflow.version import __version__
 
 __all__ = ["COMMANDS", "build_parser", "join_dash_values", "main"]
 
@@ -48,7 +48,7 @@ def build_parser() -> argparse.ArgumentParser:
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     sub.required = True
     for name in COMMANDS:
-        module = importlib.import_module(f"optimiser.cli.{name.replace('-', '_')}")
+        module = importlib.import_module(f"stowflow.cli.{name.replace('-', '_')}")
         module.register(sub, common)
     return parser
 

@@ -1,25 +1,25 @@
 """Cost options shared by the commands that price a design (``design``, ``demo``).
 
 :func:`add_cost_options` adds one argument group built from
-:data:`optimiser.options.COST_OPTIONS`; :func:`cost_settings_from_args` hands the parsed
-strings to :func:`optimiser.options.cost_settings`, the parser the web page uses too.  Values
+:data:`stowflow.io.options.COST_OPTIONS`; :func:`cost_settings_from_args` hands the parsed
+strings to :func:`stowflow.io.options.cost_settings`, the parser the web page uses too.  Values
 carry their units: ``--energy-price 0.25/kWh`` (or ``0.25EUR/kWh``, ``250/MWh``),
 ``--hours-per-year 4000``, ``--cycle-time 40s``.  Bad values raise a one-line
-:class:`~optimiser.errors.UnitsError` or :class:`~optimiser.errors.SettingsError`.
+:class:`~stowflow.errors.UnitsError` or :class:`~stowflow.errors.SettingsError`.
 """
 
 from __future__ import annotations
 
 import argparse
 
-from optimiser.costs import CostSettings
-from optimiser.options import (
+from stowflow.costs.comparison import CostSettings
+from stowflow.io.options import (
     COST_OPTIONS,
     EXCLUSIVE_COST_OPTIONS,
     cost_settings,
     parse_energy_price,
 )
-from optimiser.options import _signed_fraction as parse_fraction
+from stowflow.io.options import _signed_fraction as parse_fraction
 
 __all__ = [
     "add_cost_options",

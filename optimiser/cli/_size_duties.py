@@ -2,8 +2,8 @@
 
 :func:`add_duty_options` adds one option group per duty; :func:`check_duty_options` refuses an
 option that belongs to another duty (nothing is silently ignored) and a missing required one;
-:func:`run_duty` converts the options to SI, calls :mod:`optimiser.duties` and prints a table
-or JSON.  The energy-storage duty stays in :mod:`optimiser.cli.size`.
+:func:`run_duty` converts the options to SI, calls :mod:`stowflow.duties` and prints a table
+or JSON.  The energy-storage duty stays in :mod:`stowflow.cli.size`.
 """
 
 from __future__ import annotations
@@ -12,10 +12,10 @@ import argparse
 import math
 import re
 
-from optimiser.cli._output import print_json, print_table
-from optimiser.cli.precharge import allow_negative_ranges
-from optimiser.errors import SettingsError, UnitsError
-from optimiser.units import gauge_to_abs, parse_quantity, registry
+from stowflow.cli._common import allow_negative_ranges
+from stowflow.cli._output import print_json, print_table
+from stowflow.errors import SettingsError, UnitsError
+from stowflow.units import gauge_to_abs, parse_quantity, registry
 
 __all__ = ["DUTIES", "add_duty_options", "check_duty_options", "run_duty"]
 
@@ -182,7 +182,7 @@ def _quantity(text: str, dimension: str, option: str) -> float:
 
 
 def _other(text: str, si_unit: str, option: str, example: str) -> float:
-    """A quantity whose dimension optimiser.units does not list (m/s, kg/m³, 1/K), [SI]."""
+    """A quantity whose dimension stowflow.units does not list (m/s, kg/m³, 1/K), [SI]."""
     m = _NUMBER.match(str(text))
     if not m or not m.group(2):
         raise UnitsError(f"{option}: '{text}' is not a number with a unit (example: {example})")
@@ -208,7 +208,7 @@ def _pressure(args, text: str, option: str) -> float:
 
 
 def _common(args) -> dict:
-    from optimiser.cli.size import parse_temperature_range
+    from stowflow.cli._common import parse_temperature_range
 
     t_min, t_max = parse_temperature_range(args.temperature)
     out = {"model": args.gas, "acc_type": args.type or "bladder"}
@@ -220,7 +220,7 @@ def _common(args) -> dict:
 
 
 def _reserve(args):
-    from optimiser.duties import parse_motion, read_motions, size_reserve
+    from stowflow.duties import parse_motion, read_motions, size_reserve
 
     motions = list(read_motions(args.motions)) if args.motions else []
     motions += [parse_motion(m, absolute=args.absolute) for m in args.motion or []]
@@ -236,7 +236,7 @@ def _reserve(args):
 
 
 def _shock(args):
-    from optimiser.duties import size_shock
+    from stowflow.duties import size_shock
 
     kw = _common(args)
     diameter = _quantity(args.pipe_diameter, "length", "--pipe-diameter")
@@ -268,7 +268,7 @@ def _shock(args):
 
 
 def _thermal(args):
-    from optimiser.duties import size_thermal
+    from stowflow.duties import size_thermal
 
     kw = _common(args)
     extra = {}
@@ -281,7 +281,7 @@ def _thermal(args):
     if args.bulk_modulus is not None:
         extra["bulk_modulus"] = _quantity(args.bulk_modulus, "pressure", "--bulk-modulus")
     kw.pop("T_min"), kw.pop("T_max")
-    from optimiser.cli.size import parse_temperature_range
+    from stowflow.cli._common import parse_temperature_range
 
     t1, t2 = parse_temperature_range(args.temperature)
     return size_thermal(

@@ -10,10 +10,10 @@ from __future__ import annotations
 import argparse
 import textwrap
 
-from optimiser.cli._output import print_json, print_table
-from optimiser.cycle import DEFAULT_MAX_STEPS, load_cycle, summarize
-from optimiser.errors import UnitsError
-from optimiser.units import parse_quantity
+from stowflow.cli._output import print_json, print_table
+from stowflow.cycle.duty import DEFAULT_MAX_STEPS, load_cycle, summarize
+from stowflow.errors import UnitsError
+from stowflow.units import parse_quantity
 
 __all__ = ["register", "run"]
 

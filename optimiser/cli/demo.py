@@ -5,9 +5,9 @@ from __future__ import annotations
 import argparse
 from pathlib import Path
 
-from optimiser.catalogue import default_catalogue_path
-from optimiser.cli.design import add_design_options, print_summary, run_study
-from optimiser.errors import CycleError
+from stowflow.catalogue import default_catalogue_path
+from stowflow.cli.design import add_design_options, print_summary, run_study
+from stowflow.errors import CycleError
 
 __all__ = ["DEMO_CYCLES", "register", "run"]
 

@@ -1,4 +1,4 @@
-"""``stowflow design CYCLE.csv``: the main job, a thin shell over :func:`optimiser.pipeline.run`."""
+"""``stowflow design CYCLE.csv``: the main job, a thin shell over :func:`stowflow.pipeline.run`."""
 
 from __future__ import annotations
 
@@ -6,10 +6,10 @@ import argparse
 import sys
 from pathlib import Path
 
-from optimiser.cli._costopts import add_cost_options, cost_settings_from_args
-from optimiser.cli._output import print_json, print_table, progress
-from optimiser.options import DESIGN_OPTIONS, design_settings
-from optimiser.units import abs_to_gauge, parse_quantity
+from stowflow.cli._costopts import add_cost_options, cost_settings_from_args
+from stowflow.cli._output import print_json, print_table, progress
+from stowflow.io.options import DESIGN_OPTIONS, design_settings
+from stowflow.units import abs_to_gauge, parse_quantity
 
 __all__ = ["add_design_options", "register", "run", "run_study", "settings_from_args"]
 
@@ -102,9 +102,9 @@ def register(subparsers, common) -> None:
 
 def run_study(args: argparse.Namespace, cycle, *, out_default: Path, name: str | None = None):
     """Run the pipeline for parsed options and write the outputs; return (result, paths)."""
-    from optimiser.pipeline import Study
-    from optimiser.pipeline import run as run_pipeline
-    from optimiser.report import write_study
+    from stowflow.pipeline import Study
+    from stowflow.pipeline import run as run_pipeline
+    from stowflow.report import write_study
 
     settings = settings_from_args(args)
     costs = cost_settings_from_args(args)

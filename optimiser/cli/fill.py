@@ -1,16 +1,16 @@
 """``stowflow fill``: a step-by-step plan to fill a nitrogen precharge from bottles on site.
 
-Thin shell over :func:`optimiser.fill.plan_fill`: options to SI, the plan, a table or JSON.
+Thin shell over :func:`stowflow.fill.plan_fill`: options to SI, the plan, a table or JSON.
 """
 
 from __future__ import annotations
 
 import argparse
 
-from optimiser.cli._output import print_json, print_table
-from optimiser.cli.precharge import allow_negative_ranges
-from optimiser.errors import SettingsError, SizingError, UnitsError
-from optimiser.units import gauge_to_abs, parse_quantity
+from stowflow.cli._common import allow_negative_ranges
+from stowflow.cli._output import print_json, print_table
+from stowflow.errors import SettingsError, SizingError, UnitsError
+from stowflow.units import gauge_to_abs, parse_quantity
 
 __all__ = ["register", "run"]
 
@@ -131,9 +131,8 @@ def _q(text: str, dimension: str, option: str) -> float:
 
 
 def _plan(args: argparse.Namespace):
-    from optimiser.cli.precharge import temperatures
-    from optimiser.cli.size import parse_temperature_range
-    from optimiser.fill import plan_fill
+    from stowflow.cli._common import parse_temperature_range, temperatures
+    from stowflow.fill import plan_fill
 
     def pressure(text: str, option: str) -> float:
         p = _q(text, "pressure", option)

@@ -1,32 +1,20 @@
 """``stowflow precharge``: the precharge a gauge should read at each measured temperature.
 
 The precharge is stated at 20 °C; filled or checked at another temperature, the gauge reads
-the pressure on the gas's isochore (:func:`optimiser.fill.precharge_table`).  The table is for
+the pressure on the gas's isochore (:func:`stowflow.fill.precharge_table`).  The table is for
 checks on site: read the temperature of the accumulator shell, then compare.
 """
 
 from __future__ import annotations
 
 import argparse
-import re
 
-import numpy as np
+from stowflow.cli._common import allow_negative_ranges, temperatures
+from stowflow.cli._output import print_json, print_table
+from stowflow.errors import SettingsError, UnitsError
+from stowflow.units import celsius_to_kelvin, gauge_to_abs, parse_quantity
 
-from optimiser.cli._output import print_json, print_table
-from optimiser.errors import SettingsError, UnitsError
-from optimiser.units import celsius_to_kelvin, gauge_to_abs, parse_quantity
-
-__all__ = [
-    "MAX_ROWS",
-    "PRECHARGE_NOTES",
-    "allow_negative_ranges",
-    "register",
-    "run",
-    "temperatures",
-]
-
-#: Largest table the command prints, [-].
-MAX_ROWS = 1000
+__all__ = ["PRECHARGE_NOTES", "register", "run"]
 
 #: What every precharge table says with it.
 PRECHARGE_NOTES: tuple[str, ...] = (
@@ -45,19 +33,6 @@ example:
 
 The precharge is gauge unless --absolute is given, stated at 20 °C.
 """
-
-
-def allow_negative_ranges(parser: argparse.ArgumentParser) -> None:
-    """Let option values such as ``-10..50`` or ``-5`` through (a cold range in °C).
-
-    argparse reads a value that starts with '-' as an option unless it looks like a negative
-    number; this widens its (private) negative-number pattern to temperature ranges.  No
-    option of ours looks like a negative number, so nothing else changes.
-    """
-    if hasattr(parser, "_negative_number_matcher"):
-        parser._negative_number_matcher = re.compile(
-            r"^-\d+(?:\.\d*)?(?:\s*°?[cC])?(?:\.\.-?\d+(?:\.\d*)?(?:\s*°?[cC])?)?$"
-        )
 
 
 def register(subparsers, common: argparse.ArgumentParser) -> argparse.ArgumentParser:
@@ -92,39 +67,9 @@ def register(subparsers, common: argparse.ArgumentParser) -> argparse.ArgumentPa
     return parser
 
 
-def temperatures(text: str, step_text: str) -> np.ndarray:
-    """``"-10..50"`` and ``"5"`` → the temperatures of the table, [K].
-
-    Parameters
-    ----------
-    text : str
-        Range in °C, ``LO..HI`` (or one value).
-    step_text : str
-        Step in kelvin, > 0.
-
-    Returns
-    -------
-    numpy.ndarray
-        From LO to HI (HI included when the step lands on it), [K].
-    """
-    from optimiser.cli.size import parse_temperature_range
-
-    lo, hi = parse_temperature_range(text)
-    try:
-        step = float(str(step_text).strip().removesuffix("K").removesuffix("°C").strip())
-    except ValueError:
-        raise SettingsError(f"--step '{step_text}' is not a number of kelvin") from None
-    if not (np.isfinite(step) and step > 0):
-        raise SettingsError(f"--step must be > 0 K; got {step_text}")
-    n = int(np.floor((hi - lo) / step + 1e-9)) + 1
-    if n > MAX_ROWS:
-        raise SettingsError(f"--step {step:g} K gives {n} rows; at most {MAX_ROWS}")
-    return lo + step * np.arange(n)
-
-
 def run(args: argparse.Namespace) -> int:
     """Print the table (or JSON); return the exit code."""
-    from optimiser.fill import precharge_table
+    from stowflow.fill import precharge_table
 
     try:
         p = parse_quantity(args.precharge, "pressure")

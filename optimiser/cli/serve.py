@@ -9,8 +9,8 @@ from __future__ import annotations
 import argparse
 import sys
 
-from optimiser.errors import SettingsError
-from optimiser.units import parse_quantity
+from stowflow.errors import SettingsError
+from stowflow.units import parse_quantity
 
 __all__ = ["register", "run"]
 
@@ -83,7 +83,7 @@ def _whole(text, what: str, least: int, most: int | None = None) -> int:
 
 def config_from_args(args: argparse.Namespace):
     """Server configuration from parsed options (checked, one-line errors)."""
-    from optimiser.web.app import ServerConfig, is_loopback
+    from stowflow.web.app import ServerConfig, is_loopback
 
     time_limit = parse_quantity(args.time_limit, "time")
     if not time_limit > 0:
@@ -105,8 +105,7 @@ def config_from_args(args: argparse.Namespace):
 def run(args: argparse.Namespace) -> int:
     """Run ``stowflow serve`` until Ctrl+C."""
     import uvicorn
-
-    from optimiser.web.app import create_app, is_loopback
+    from stowflow.web.app import create_app, is_loopback
 
     config = config_from_args(args)
     port = _whole(args.port, "port", 1, 65535)

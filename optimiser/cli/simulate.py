@@ -3,7 +3,7 @@
 Reads the contract keys of ``design.json`` (schema ``stowflow.design/1``; pressures bar
 gauge, volumes L, flows L/min, power kW), rebuilds the components - from the catalogue when a
 row matches the numbers, otherwise from the JSON with stated defaults - and runs the
-time-domain verification (:func:`optimiser.simulate.verify`) at the coldest and the hottest
+time-domain verification (:func:`stowflow.simulation.verify.verify`) at the coldest and the hottest
 temperature.  Prints the verdict (table or ``--json``) and, with ``--out DIR``, writes
 ``simulation.csv``: one long table, one block of rows per controller × temperature (columns
 ``controller`` and ``temperature [°C]``), and ``verification.json``.
@@ -21,19 +21,18 @@ from pathlib import Path
 
 import numpy as np
 import pandas as pd
-
-from optimiser.catalogue import (
+from stowflow.catalogue import (
     default_catalogue_path,
     load_catalogue,
 )
-from optimiser.cli._designfile import load_design, read_setpoints
-from optimiser.cli._output import print_json, print_table
-from optimiser.cycle import load_cycle
-from optimiser.errors import DesignFileError, SettingsError, UnitsError
-from optimiser.options import parse_temperature_range
-from optimiser.settings import DesignSettings
-from optimiser.simulate import CONTROLLERS, verify
-from optimiser.units import kelvin_to_celsius, parse_quantity, to_unit
+from stowflow.cli._output import print_json, print_table
+from stowflow.cycle.duty import load_cycle
+from stowflow.errors import DesignFileError, SettingsError, UnitsError
+from stowflow.io.designfile import load_design, read_setpoints
+from stowflow.io.options import parse_temperature_range
+from stowflow.search.settings import DesignSettings
+from stowflow.simulation.verify import CONTROLLERS, verify
+from stowflow.units import kelvin_to_celsius, parse_quantity, to_unit
 
 __all__ = ["SCHEMA", "register", "run"]
 

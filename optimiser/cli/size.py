@@ -4,22 +4,20 @@ The parser is built from option groups so that further duties can add their own 
 (:func:`add_storage_options` holds the energy-storage inputs; :func:`add_condition_options`
 the gas, process and temperature; :func:`add_output_options` PS and JSON).  :func:`run` turns
 the arguments into SI values (:func:`storage_inputs`), sizes (:func:`size_storage`) and prints.
-``--duty reserve|shock|thermal`` switches to the duties of :mod:`optimiser.duties`; their option
-groups and output live in :mod:`optimiser.cli._size_duties`.
+``--duty reserve|shock|thermal`` switches to the duties of :mod:`stowflow.duties`; their option
+groups and output live in :mod:`stowflow.cli._size_duties`.
 """
 
 from __future__ import annotations
 
 import argparse
-import re
 
-from optimiser.cli._output import print_json, print_table
-from optimiser.cli._size_duties import add_duty_options, check_duty_options, run_duty
-from optimiser.errors import SettingsError, UnitsError
-from optimiser.glossary import term
-from optimiser.units import (
+from stowflow.cli._common import parse_temperature_range
+from stowflow.cli._output import print_json, print_table
+from stowflow.cli._size_duties import add_duty_options, check_duty_options, run_duty
+from stowflow.errors import UnitsError
+from stowflow.units import (
     abs_to_gauge,
-    celsius_to_kelvin,
     gauge_to_abs,
     parse_quantity,
     to_unit,
@@ -148,31 +146,6 @@ def add_output_options(parser: argparse.ArgumentParser) -> None:
     g.add_argument("--json", action="store_true", help="print the result as JSON")
 
 
-_NUM = r"(-?(?:\d+(?:\.\d*)?|\.\d+))\s*(?:°?c)?"
-_RANGE_RE = re.compile(rf"^\s*{_NUM}\s*(?:\.\.\s*{_NUM})?\s*$", re.IGNORECASE)
-
-
-def parse_temperature_range(text: str) -> tuple[float, float]:
-    """``"10..50"`` or ``"20"`` (°C) → (T_min, T_max) [K]."""
-    m = _RANGE_RE.match(text)
-    try:
-        lo = float(m.group(1))
-        hi = float(m.group(2)) if m.group(2) is not None else lo
-    except (AttributeError, ValueError):
-        raise SettingsError(
-            f"--temperature '{text}' is not a range in °C; write e.g. 10..50 or 20"
-        ) from None
-    lo_ok, hi_ok = term("temperature").plausible
-    for v in (lo, hi):
-        if not lo_ok <= v <= hi_ok:
-            raise SettingsError(
-                f"--temperature {v:g} °C is outside the plausible {lo_ok:g}…{hi_ok:g} °C"
-            )
-    if hi < lo:
-        raise SettingsError(f"--temperature '{text}': the first value must be the lower one")
-    return celsius_to_kelvin(lo), celsius_to_kelvin(hi)
-
-
 def _quantity(text: str, dimension: str, option: str) -> float:
     try:
         return parse_quantity(text, dimension)
@@ -181,7 +154,7 @@ def _quantity(text: str, dimension: str, option: str) -> float:
 
 
 def storage_inputs(args: argparse.Namespace) -> dict:
-    """SI keyword arguments for :func:`optimiser.sizing.size_accumulator` from the options."""
+    """SI keyword arguments for :func:`stowflow.duties.sizing.size_accumulator` from the options."""
 
     def pressure(text: str, option: str) -> float:
         p = _quantity(text, "pressure", option)
@@ -205,7 +178,7 @@ def storage_inputs(args: argparse.Namespace) -> dict:
 
 def size_storage(args: argparse.Namespace):
     """Energy-storage sizing for the parsed options (a :class:`SizingResult`)."""
-    from optimiser.sizing import size_accumulator
+    from stowflow.duties.sizing import size_accumulator
 
     return size_accumulator(**storage_inputs(args))
 

@@ -3,20 +3,20 @@
 Each duty is a pure function of SI inputs that returns a frozen result with an ``as_dict()``
 in trade units; ``stowflow size --duty reserve|shock|thermal`` is the shell over them.
 
-* :mod:`~optimiser.duties.reserve`: the safe-state motions after a pump failure
-  (:func:`size_reserve`), with the motions format of :mod:`~optimiser.duties.motions`;
-* :mod:`~optimiser.duties.shock`: Joukowsky surge with Korteweg's wave speed, and the
+* :mod:`~stowflow.duties.reserve`: the safe-state motions after a pump failure
+  (:func:`size_reserve`), with the motions format of :mod:`~stowflow.duties.motions`;
+* :mod:`~stowflow.duties.shock`: Joukowsky surge with Korteweg's wave speed, and the
   accumulator that keeps the peak at a limit (:func:`size_shock`);
-* :mod:`~optimiser.duties.thermal_expansion`: a blocked-in oil volume that heats up
+* :mod:`~stowflow.duties.thermal_expansion`: a blocked-in oil volume that heats up
   (:func:`size_thermal`);
-* :mod:`~optimiser.duties.properties`: oil and pipe defaults with their sources.
+* :mod:`~stowflow.duties.properties`: oil and pipe defaults with their sources.
 """
 
 from __future__ import annotations
 
-from optimiser.duties.motions import Motion, parse_motion, read_motions
-from optimiser.duties.reserve import ReserveResult, reserve_pressures, size_reserve
-from optimiser.duties.shock import (
+from stowflow.duties.motions import Motion, parse_motion, read_motions
+from stowflow.duties.reserve import ReserveResult, reserve_pressures, size_reserve
+from stowflow.duties.shock import (
     ShockResult,
     column_energy,
     gas_absorption,
@@ -24,7 +24,7 @@ from optimiser.duties.shock import (
     surge_pressure,
     wave_speed,
 )
-from optimiser.duties.thermal_expansion import (
+from stowflow.duties.thermal_expansion import (
     ThermalResult,
     blocked_pressure_rise,
     expansion_volume,

@@ -1,6 +1,6 @@
 """What the three duties share: the precharge by the type's rule, the limits, trade units.
 
-The precharge rule and the type limits are those of :mod:`optimiser.accumulator` (common
+The precharge rule and the type limits are those of :mod:`stowflow.physics.accumulator` (common
 practice, no published source), so a reserve, shock or thermal accumulator is judged by the
 same rules as an energy-storage one.
 """
@@ -10,8 +10,8 @@ from __future__ import annotations
 import math
 
 import numpy as np
-
-from optimiser.accumulator import (
+from stowflow.errors import SizingError
+from stowflow.physics.accumulator import (
     AccumulatorType,
     Violation,
     check_limits,
@@ -21,9 +21,8 @@ from optimiser.accumulator import (
     rules_for,
     shell_volume,
 )
-from optimiser.errors import SizingError
-from optimiser.gas import reference_precharge
-from optimiser.units import P_AMBIENT, abs_to_gauge, kelvin_to_celsius, to_unit
+from stowflow.physics.gas import reference_precharge
+from stowflow.units import P_AMBIENT, abs_to_gauge, kelvin_to_celsius, to_unit
 
 __all__ = [
     "SAFETY",

@@ -1,7 +1,7 @@
 """The safe-state motions of an emergency reserve: a small CSV format and a command-line form.
 
 A motions CSV lists what the machine must still do from the accumulator alone when the pump
-fails, one motion a row, units in brackets in the header (parsed with :mod:`optimiser.units`,
+fails, one motion a row, units in brackets in the header (parsed with :mod:`stowflow.units`,
 any compatible unit), pressures **gauge**::
 
     # comment lines start with '#'
@@ -25,10 +25,10 @@ import math
 from dataclasses import dataclass
 from pathlib import Path
 
-from optimiser._csvread import utf8_text
-from optimiser.duties._common import bar_g, check_positive, litre
-from optimiser.errors import SettingsError, SizingError, StowflowError
-from optimiser.units import gauge_to_abs, parse_quantity, parse_unit
+from stowflow.cycle.csvtable import utf8_text
+from stowflow.duties._common import bar_g, check_positive, litre
+from stowflow.errors import SettingsError, SizingError, StowflowError
+from stowflow.units import gauge_to_abs, parse_quantity, parse_unit
 
 __all__ = ["MOTION_COLUMNS", "Motion", "parse_motion", "read_motions"]
 

@@ -27,7 +27,7 @@ left).  Every pressure rises with m, so the least gas volume is found by a brack
 Which process governs: the adiabatic one.  An expanding gas that has no time to take up heat
 cools, and its pressure falls faster than Boyle's law says, so it needs the larger gas volume.
 It applies while a motion is short against the gas's thermal time constant (about 1–10 s for
-litre-size units, from memory; :data:`optimiser.thermal.DEFAULT_TIME_CONSTANT`).  Isothermal
+litre-size units, from memory; :data:`stowflow.physics.thermal.DEFAULT_TIME_CONSTANT`).  Isothermal
 expansion is the limit for slow motions, and what the long stand-by does; both volumes are
 reported.
 
@@ -48,9 +48,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
-
-from optimiser._n2table import fields_rhoT, isentrope_T_at_rho
-from optimiser.duties._common import (
+from stowflow.duties._common import (
     SAFETY,
     bar_g,
     celsius,
@@ -59,9 +57,10 @@ from optimiser.duties._common import (
     resolve_precharge,
     type_report,
 )
-from optimiser.duties.motions import Motion
-from optimiser.errors import SizingError
-from optimiser.gas import (
+from stowflow.duties.motions import Motion
+from stowflow.duties.sizing import _temperature_grid
+from stowflow.errors import SizingError
+from stowflow.physics.gas import (
     KAPPA,
     density,
     parse_process,
@@ -69,9 +68,9 @@ from optimiser.gas import (
     pressure_from_density,
     temperature_from_density,
 )
-from optimiser.sizing import _temperature_grid
-from optimiser.thermal import DEFAULT_TIME_CONSTANT
-from optimiser.units import P_AMBIENT, T_REF, gauge_to_abs, to_unit
+from stowflow.physics.nitrogen import fields_rhoT, isentrope_T_at_rho
+from stowflow.physics.thermal import DEFAULT_TIME_CONSTANT
+from stowflow.units import P_AMBIENT, T_REF, gauge_to_abs, to_unit
 
 __all__ = ["ReserveResult", "reserve_pressures", "size_reserve"]
 

@@ -65,9 +65,7 @@ from dataclasses import dataclass, field, replace
 
 import numpy as np
 import pandas as pd
-
-from optimiser._n2table import fields_rhoT, isentrope_T_at_p
-from optimiser.duties._common import (
+from stowflow.duties._common import (
     SAFETY,
     bar_g,
     celsius,
@@ -76,11 +74,12 @@ from optimiser.duties._common import (
     resolve_precharge,
     type_report,
 )
-from optimiser.duties.properties import OIL_BULK_MODULUS, OIL_DENSITY, SOURCES, STEEL_MODULUS
-from optimiser.errors import SizingError
-from optimiser.gas import KAPPA, R_SPECIFIC, density, precharge_at
-from optimiser.sizing import _temperature_grid
-from optimiser.units import P_AMBIENT, T_REF
+from stowflow.duties.properties import OIL_BULK_MODULUS, OIL_DENSITY, SOURCES, STEEL_MODULUS
+from stowflow.duties.sizing import _temperature_grid
+from stowflow.errors import SizingError
+from stowflow.physics.gas import KAPPA, R_SPECIFIC, density, precharge_at
+from stowflow.physics.nitrogen import fields_rhoT, isentrope_T_at_p
+from stowflow.units import P_AMBIENT, T_REF
 
 __all__ = [
     "ShockResult",

@@ -20,11 +20,11 @@ precharge):
     V_0 = \\frac{\\Delta V}{f(p_{max}, T_2) - f(p_{start}, T_1)}, \\qquad
     f(p, T) = 1 - \\frac{\\rho(p_{0,ref}, 293.15\\,K)}{\\rho(p, T)}\\ (p > p_0(T))
 
-where f is the stored-oil fraction of :func:`optimiser.gas.oil_fraction`.  The oil's own
+where f is the stored-oil fraction of :func:`stowflow.physics.gas.oil_fraction`.  The oil's own
 compression and the pipe's stretch under pressure are neglected in the sizing (they would add
 room, so the volume errs on the safe side).
 
-Coefficients (defaults in :mod:`optimiser.duties.properties`): mineral oil
+Coefficients (defaults in :mod:`stowflow.duties.properties`): mineral oil
 :math:`\\beta_{oil}` = 7.0e-4 1/K, steel :math:`\\alpha` = 12e-6 1/K, K = 1.7 GPa, all from
 memory.
 
@@ -45,8 +45,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
-
-from optimiser.duties._common import (
+from stowflow.duties._common import (
     SAFETY,
     bar_g,
     celsius,
@@ -55,15 +54,15 @@ from optimiser.duties._common import (
     resolve_precharge,
     type_report,
 )
-from optimiser.duties.properties import (
+from stowflow.duties.properties import (
     OIL_BULK_MODULUS,
     OIL_EXPANSION,
     SOURCES,
     STEEL_EXPANSION,
 )
-from optimiser.errors import SizingError
-from optimiser.gas import ISOTHERMAL, oil_fraction, precharge_at, pressure_at_oil_fraction
-from optimiser.units import P_AMBIENT
+from stowflow.errors import SizingError
+from stowflow.physics.gas import ISOTHERMAL, oil_fraction, precharge_at, pressure_at_oil_fraction
+from stowflow.units import P_AMBIENT
 
 __all__ = [
     "ThermalResult",

@@ -5,13 +5,13 @@ bottles) to a precharge from delivered high-pressure bottles:
 
 1. a direct **cascade**: each fresh bottle alone in turn, equalised and settled at the ambient
    temperature, with the pressure reached, what is left in each bottle, the warm reading right
-   after the flow stops, and how many bottles a cascade needs (:mod:`~optimiser.fill.equalise`);
+   after the flow stops, and how many bottles a cascade needs (:mod:`~stowflow.fill.equalise`);
 2. when the bottles cannot reach the target, the **options** with numbers: a gas booster of a
    given pressure ratio, or a piston accumulator used as a transfer pump
-   (:mod:`~optimiser.fill.strokes`);
+   (:mod:`~stowflow.fill.strokes`);
 3. the **temperature correction**: filling warms the gas, so the plan says to re-check once it
    has cooled, gives the settled value at the filling temperature, and a table of the
-   precharge to read at any measured temperature (:mod:`~optimiser.fill.precharge`).
+   precharge to read at any measured temperature (:mod:`~stowflow.fill.precharge`).
 
 Precharge is a mass of nitrogen: the target at 20 °C fixes :math:`m_t = \\rho(p_{0,ref},
 293.15\\,K)\\, V`, and every step conserves the mass of nitrogen (real gas throughout, the
@@ -31,9 +31,8 @@ import math
 from dataclasses import dataclass, field
 
 import pandas as pd
-
-from optimiser.errors import SizingError
-from optimiser.fill.equalise import (
+from stowflow.errors import SizingError
+from stowflow.fill.equalise import (
     MAX_BOTTLES,
     adiabatic_transfer,
     bar_g,
@@ -41,10 +40,10 @@ from optimiser.fill.equalise import (
     cascade,
     pressure,
 )
-from optimiser.fill.precharge import precharge_table
-from optimiser.fill.strokes import MAX_STROKES, MIN_YIELD, StrokePlan, stroke_transfer
-from optimiser.gas import density, precharge_at
-from optimiser.units import P_AMBIENT, T_REF, kelvin_to_celsius, to_unit
+from stowflow.fill.precharge import precharge_table
+from stowflow.fill.strokes import MAX_STROKES, MIN_YIELD, StrokePlan, stroke_transfer
+from stowflow.physics.gas import density, precharge_at
+from stowflow.units import P_AMBIENT, T_REF, kelvin_to_celsius, to_unit
 
 __all__ = [
     "FILL_SAFETY",

@@ -29,10 +29,9 @@ from __future__ import annotations
 
 import numpy as np
 import pandas as pd
-
-from optimiser._n2table import fields_rhoT, isentrope_T_at_rho
-from optimiser.gas import KAPPA, density, pressure_from_density, state_from_density
-from optimiser.units import abs_to_gauge, kelvin_to_celsius, to_unit
+from stowflow.physics.gas import KAPPA, density, pressure_from_density, state_from_density
+from stowflow.physics.nitrogen import fields_rhoT, isentrope_T_at_rho
+from stowflow.units import abs_to_gauge, kelvin_to_celsius, to_unit
 
 __all__ = ["MAX_BOTTLES", "adiabatic_transfer", "bar_g", "bottles_needed", "cascade", "pressure"]
 

@@ -14,9 +14,8 @@ from __future__ import annotations
 
 import numpy as np
 import pandas as pd
-
-from optimiser.gas import precharge_at
-from optimiser.units import abs_to_gauge, kelvin_to_celsius, to_unit
+from stowflow.physics.gas import precharge_at
+from stowflow.units import abs_to_gauge, kelvin_to_celsius, to_unit
 
 __all__ = ["precharge_table"]
 

@@ -2,22 +2,22 @@
 
 ``write_study(result, out_dir)`` writes, into ``out_dir`` (created when missing):
 
-* ``report.html``: the interactive report (:func:`optimiser.report.html.render_html`);
-* ``design.json``: the machine-readable result (:func:`optimiser.report.exports.design_record`);
-* ``schedule.csv``: one row per time step (:func:`optimiser.report.exports.schedule_frame`);
-* ``spec.csv``: the procurement line items (:func:`optimiser.report.exports.spec_rows`).
+* ``report.html``: the interactive report (:func:`stowflow.report.html.render_html`);
+* ``design.json``: the machine-readable result (:func:`stowflow.report.exports.design_record`);
+* ``schedule.csv``: one row per time step (:func:`stowflow.report.exports.schedule_frame`);
+* ``spec.csv``: the procurement line items (:func:`stowflow.report.exports.spec_rows`).
 
-The package renders only: every number comes from the :class:`~optimiser.pipeline.StudyResult`
+The package renders only: every number comes from the :class:`~stowflow.pipeline.StudyResult`
 (its design, verification, comparison and settings), put into trade units by
-:mod:`optimiser.report.content`.
+:mod:`stowflow.report.content`.
 """
 
 from __future__ import annotations
 
 from pathlib import Path
 
-from optimiser.report.exports import design_json, design_record, schedule_frame, spec_csv, spec_rows
-from optimiser.report.html import render_html
+from stowflow.report.exports import design_json, design_record, schedule_frame, spec_csv, spec_rows
+from stowflow.report.html import render_html
 
 __all__ = [
     "OUTPUTS",

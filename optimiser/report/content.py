@@ -3,8 +3,8 @@
 Nothing here computes physics.  Every number comes from the :class:`StudyResult` (design,
 verification, comparison, settings); this module picks, converts (absolute SI → gauge bar, L,
 L/min, kW, °C) and words it.  The commissioning table of precharge against temperature is
-read from :func:`optimiser.gas.precharge_at` and the category hint from
-:func:`optimiser.accumulator.pressure_equipment_category`.
+read from :func:`stowflow.physics.gas.precharge_at` and the category hint from
+:func:`stowflow.physics.accumulator.pressure_equipment_category`.
 
 Strings returned here are plain text; the HTML writer escapes them.
 """
@@ -16,8 +16,7 @@ from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
-
-from optimiser.units import (
+from stowflow.units import (
     abs_to_gauge,
     kelvin_to_celsius,
     to_unit,

@@ -15,14 +15,13 @@ import math
 
 import numpy as np
 import pandas as pd
-
-from optimiser import __version__
-from optimiser.cli._output import to_jsonable
-from optimiser.cycle import summarize
-from optimiser.errors import StowflowError
-from optimiser.gas import parse_process
-from optimiser.report import content, spec
-from optimiser.units import kelvin_to_celsius, to_unit
+from stowflow.cycle.duty import summarize
+from stowflow.errors import StowflowError
+from stowflow.io.jsonable import to_jsonable
+from stowflow.physics.gas import parse_process
+from stowflow.report import content, spec
+from stowflow.units import kelvin_to_celsius, to_unit
+from stowflow.version import __version__
 
 __all__ = [
     "SCHEDULE_COLUMNS",

@@ -1,8 +1,8 @@
 """Plotly figures of the report: the cycle, the design at work, the comparison.
 
-Each function takes a :class:`~optimiser.pipeline.StudyResult` and returns a
+Each function takes a :class:`~stowflow.pipeline.StudyResult` and returns a
 ``plotly.graph_objects.Figure`` (or None when there is nothing to draw).  They only draw what
-:mod:`optimiser.report.content` hands them.  Text the user wrote (cycle labels, names) is
+:mod:`stowflow.report.content` hands them.  Text the user wrote (cycle labels, names) is
 HTML-escaped before it reaches Plotly, which renders a subset of HTML in its labels.
 """
 
@@ -12,9 +12,8 @@ import html
 
 import numpy as np
 import plotly.graph_objects as go
-
-from optimiser.report import content
-from optimiser.units import to_unit
+from stowflow.report import content
+from stowflow.units import to_unit
 
 __all__ = [
     "COLOURS",

@@ -18,13 +18,12 @@ from pathlib import PurePath
 
 import plotly.graph_objects as go
 import plotly.offline
-
-from optimiser import __version__
-from optimiser.cycle import summarize
-from optimiser.report import content, figures, spec
-from optimiser.report.content import fmt, money
-from optimiser.report.exports import spec_rows
-from optimiser.units import kelvin_to_celsius, to_unit
+from stowflow.cycle.duty import summarize
+from stowflow.report import content, figures, spec
+from stowflow.report.content import fmt, money
+from stowflow.report.exports import spec_rows
+from stowflow.units import kelvin_to_celsius, to_unit
+from stowflow.version import __version__
 
 __all__ = ["SECTIONS", "figure_html", "render_html"]
 
@@ -168,7 +167,7 @@ def _section_cycle(result) -> str:
 
 
 def content_summary(result) -> dict:
-    """The cycle summary in trade units (from :func:`optimiser.cycle.summarize`)."""
+    """The cycle summary in trade units (from :func:`stowflow.cycle.duty.summarize`)."""
     return summarize(result.cycle).as_dict()
 
 
@@ -521,7 +520,7 @@ _PRINT_JS = """
 
 
 def _css() -> str:
-    return resources.files("optimiser.report").joinpath("style.css").read_text(encoding="utf-8")
+    return resources.files("stowflow.report").joinpath("style.css").read_text(encoding="utf-8")
 
 
 def render_html(result, *, generated: _dt.date | None = None) -> str:

@@ -1,9 +1,9 @@
 """What to buy: the procurement items of a design, and the commissioning precharge table.
 
-Rendering only, like :mod:`optimiser.report.content` whose helpers it uses: every number comes
+Rendering only, like :mod:`stowflow.report.content` whose helpers it uses: every number comes
 from the :class:`StudyResult`; the precharge at other temperatures comes from
-:func:`optimiser.fill.precharge.precharge_table` and the category hint from
-:func:`optimiser.accumulator.pressure_equipment_category`.
+:func:`stowflow.fill.precharge.precharge_table` and the category hint from
+:func:`stowflow.physics.accumulator.pressure_equipment_category`.
 """
 
 from __future__ import annotations
@@ -13,10 +13,9 @@ from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
-
-from optimiser.accumulator import pressure_equipment_category, rules_for, shell_volume
-from optimiser.fill.precharge import precharge_table as isochore_table
-from optimiser.report.content import (
+from stowflow.fill.precharge import precharge_table as isochore_table
+from stowflow.physics.accumulator import pressure_equipment_category, rules_for, shell_volume
+from stowflow.report.content import (
     bar_delta,
     bar_g,
     fmt,
@@ -25,7 +24,7 @@ from optimiser.report.content import (
     lpm,
     setpoints_bar,
 )
-from optimiser.units import T_REF, celsius_to_kelvin, kelvin_to_celsius, si_factor, to_unit
+from stowflow.units import T_REF, celsius_to_kelvin, kelvin_to_celsius, si_factor, to_unit
 
 __all__ = ["SpecItem", "category_hint", "precharge_table", "spec_items"]
 
@@ -274,8 +273,8 @@ def precharge_table(result, step_c: float = 5.0, beyond_c: float = 10.0) -> pd.D
     """Precharge to set at each temperature so that it is the design value at 20 °C.
 
     Real-gas (or ideal-gas, as the study) isochoric scaling by
-    :func:`optimiser.fill.precharge.precharge_table` (built on
-    :func:`optimiser.gas.precharge_at`), every ``step_c`` from ``beyond_c`` below the coldest
+    :func:`stowflow.fill.precharge.precharge_table` (built on
+    :func:`stowflow.physics.gas.precharge_at`), every ``step_c`` from ``beyond_c`` below the coldest
     to ``beyond_c`` above the hottest operating temperature, 20 °C always included.
 
     Returns

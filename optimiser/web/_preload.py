@@ -5,7 +5,7 @@ Never imported by the server process itself (it would spend the warm-up there fo
 
 from __future__ import annotations
 
-from optimiser.web._worker import warm_up
+from stowflow.web._worker import warm_up
 
 __all__: list[str] = []
 

@@ -1,14 +1,14 @@
 """What runs inside a job's worker process: the pipeline, the report files, progress messages.
 
-The server's fork server imports :mod:`optimiser.web._preload` once before it forks any job
-(see :mod:`optimiser.web.jobs`): that loads this module with the pipeline and the report and
+The server's fork server imports :mod:`stowflow.web._preload` once before it forks any job
+(see :mod:`stowflow.web.jobs`): that loads this module with the pipeline and the report and
 calls :func:`warm_up` to fill the nitrogen property caches, so each job starts warm in a
 fraction of a second.  A job talks to the server through one pipe with small tuples:
 
 * ``("progress", fraction [-], label)`` while the pipeline runs (at most every 0.2 s, and at
   every change of stage);
 * then one of ``("done", summary)``, ``("error", message)`` for a
-  :class:`~optimiser.errors.StowflowError` (one line, as the CLI prints it) or
+  :class:`~stowflow.errors.StowflowError` (one line, as the CLI prints it) or
   ``("crash", message)`` for a bug (the traceback goes to the server's stderr).
 """
 
@@ -20,10 +20,10 @@ import time
 import traceback
 from multiprocessing.connection import Connection
 
-from optimiser.errors import StowflowError
-from optimiser.gas import density
-from optimiser.pipeline import Study, run
-from optimiser.report import write_study
+from stowflow.errors import StowflowError
+from stowflow.physics.gas import density
+from stowflow.pipeline import Study, run
+from stowflow.report import write_study
 
 __all__ = ["PROGRESS_INTERVAL", "run_job", "warm_up"]
 

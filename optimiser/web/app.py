@@ -1,8 +1,8 @@
 """The local web page: upload a duty cycle, watch the design run, read and download the report.
 
-A thin shell over :func:`optimiser.pipeline.run` and :func:`optimiser.report.write_study`:
-the form's text goes to the library's parsers (:mod:`optimiser.web.forms`), the design runs in
-a worker process (:mod:`optimiser.web.jobs`), and the report and exports are the files the
+A thin shell over :func:`stowflow.pipeline.run` and :func:`stowflow.report.write_study`:
+the form's text goes to the library's parsers (:mod:`stowflow.web.forms`), the design runs in
+a worker process (:mod:`stowflow.web.jobs`), and the report and exports are the files the
 command line writes.
 
 Framework: Starlette (routing, templates, static files, test client), served by uvicorn,
@@ -46,13 +46,12 @@ from starlette.responses import FileResponse, JSONResponse, RedirectResponse, Re
 from starlette.routing import Mount, Route
 from starlette.staticfiles import StaticFiles
 from starlette.templating import Jinja2Templates
-
-from optimiser import __version__
-from optimiser.catalogue import default_catalogue_path
-from optimiser.errors import StowflowError
-from optimiser.report import OUTPUTS
-from optimiser.report.content import DISCLAIMER, SAFETY_CAUTIONS
-from optimiser.web.forms import (
+from stowflow.catalogue import default_catalogue_path
+from stowflow.errors import StowflowError
+from stowflow.report import OUTPUTS
+from stowflow.report.content import DISCLAIMER, SAFETY_CAUTIONS
+from stowflow.version import __version__
+from stowflow.web.forms import (
     CATALOGUE_FIELD,
     CYCLE_FIELD,
     DEMO_FIELD,
@@ -62,8 +61,8 @@ from optimiser.web.forms import (
     build_study,
     form_sections,
 )
-from optimiser.web.jobs import Job, JobManager, QueueFull
-from optimiser.web.upload import UploadError, megabytes, read_form
+from stowflow.web.jobs import Job, JobManager, QueueFull
+from stowflow.web.upload import UploadError, megabytes, read_form
 
 __all__ = ["LOOPBACK_HOSTS", "ServerConfig", "create_app", "is_loopback"]
 
@@ -137,7 +136,7 @@ class ServerConfig:
         the jobs use the ideal-gas model, as the tests do.
     job_target : callable or None
         What a worker process runs (default: the pipeline and the report,
-        :func:`~optimiser.web._worker.run_job`); see :class:`~optimiser.web.jobs.JobManager`.
+        :func:`~stowflow.web._worker.run_job`); see :class:`~stowflow.web.jobs.JobManager`.
     """
 
     workers: int = field(default_factory=_default_workers)

@@ -1,12 +1,12 @@
 """The upload form: its fields, built from the option tables, and the form → :class:`Study` step.
 
-Every settings field comes from :data:`optimiser.options.DESIGN_OPTIONS` (form name
-``d_<key>``) or :data:`optimiser.options.COST_OPTIONS` (``c_<key>``), with the table's help
+Every settings field comes from :data:`stowflow.io.options.DESIGN_OPTIONS` (form name
+``d_<key>``) or :data:`stowflow.io.options.COST_OPTIONS` (``c_<key>``), with the table's help
 text; a new option in a table appears on the page by itself.  This module only gives the
 fields their labels (the trade's terms) and order.  The text typed in goes, unchanged, to the
-same parsers the command line uses: :func:`~optimiser.options.design_settings`,
-:func:`~optimiser.options.cost_settings`, :func:`~optimiser.units.parse_quantity`,
-:func:`~optimiser.cycle.parse_cycle_bytes` and :func:`~optimiser.catalogue.parse_catalogue_text`.
+same parsers the command line uses: :func:`~stowflow.io.options.design_settings`,
+:func:`~stowflow.io.options.cost_settings`, :func:`~stowflow.units.parse_quantity`,
+:func:`~stowflow.cycle.duty.parse_cycle_bytes` and :func:`~stowflow.catalogue.parse_catalogue_text`.
 """
 
 from __future__ import annotations
@@ -16,16 +16,16 @@ import typing
 from dataclasses import dataclass
 from pathlib import Path
 
-from optimiser._csvread import utf8_text
-from optimiser.catalogue import ACCUMULATOR_TYPES, Catalogue, parse_catalogue_text
-from optimiser.cycle import DutyCycle, parse_cycle_bytes
-from optimiser.errors import CatalogueError, SettingsError
-from optimiser.gas import GasModel
-from optimiser.options import COST_OPTIONS, DESIGN_OPTIONS, cost_settings, design_settings
-from optimiser.pipeline import MAX_TIGHTENINGS, Study
-from optimiser.settings import DesignSettings
-from optimiser.units import parse_quantity
-from optimiser.web.upload import UploadedForm
+from stowflow.catalogue import ACCUMULATOR_TYPES, Catalogue, parse_catalogue_text
+from stowflow.cycle.csvtable import utf8_text
+from stowflow.cycle.duty import DutyCycle, parse_cycle_bytes
+from stowflow.errors import CatalogueError, SettingsError
+from stowflow.io.options import COST_OPTIONS, DESIGN_OPTIONS, cost_settings, design_settings
+from stowflow.physics.gas import GasModel
+from stowflow.pipeline import MAX_TIGHTENINGS, Study
+from stowflow.search.settings import DesignSettings
+from stowflow.units import parse_quantity
+from stowflow.web.upload import UploadedForm
 
 __all__ = [
     "CATALOGUE_FIELD",

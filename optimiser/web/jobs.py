@@ -2,7 +2,7 @@
 
 Each design job runs in its **own process**, forked from a fork server that has already
 imported and warmed the pipeline (``multiprocessing`` start method ``forkserver``, preload
-:mod:`optimiser.web._preload`).  A process per job is what makes the hard time limit real: a
+:mod:`stowflow.web._preload`).  A process per job is what makes the hard time limit real: a
 job still running after ``time_limit`` seconds is killed (SIGKILL), its folder removed, and
 the study says so.  It also gives every job's memory back to the system when it ends.
 
@@ -38,9 +38,8 @@ from multiprocessing.connection import Connection
 from pathlib import Path
 
 import anyio
-
-from optimiser.pipeline import Study
-from optimiser.web._worker import run_job
+from stowflow.pipeline import Study
+from stowflow.web._worker import run_job
 
 __all__ = ["POLL_INTERVAL", "Job", "JobManager", "QueueFull"]
 
@@ -139,7 +138,7 @@ class JobManager:
         the pipeline).  The fork server is one per process: the first manager's choice holds.
     target : callable, optional
         What a worker process runs, called as ``target(conn, study, out_dir)`` (default
-        :func:`~optimiser.web._worker.run_job`).  It must be importable by name, as the fork
+        :func:`~stowflow.web._worker.run_job`).  It must be importable by name, as the fork
         server unpickles it; the tests pass one that is slow on purpose, so that the time
         limit is tested without depending on how fast this machine designs.
     """
@@ -162,7 +161,7 @@ class JobManager:
         self.root: Path | None = None
         self._ctx = multiprocessing.get_context("forkserver")
         self._ctx.set_forkserver_preload(
-            ["optimiser.web._preload" if warm_up else "optimiser.web._worker"]
+            ["stowflow.web._preload" if warm_up else "stowflow.web._worker"]
         )
         self._durations: deque[float] = deque(maxlen=20)
         self._task: asyncio.Task | None = None

@@ -8,7 +8,7 @@ content type); the rest of the body is never read and nothing is written to disk
 field names are accepted.  A file's name is kept as text for messages; it never becomes a path.
 
 The content of the files is checked by the library afterwards
-(:func:`optimiser.cycle.parse_cycle_bytes` refuses binary, non-UTF-8, empty and malformed
+(:func:`stowflow.cycle.duty.parse_cycle_bytes` refuses binary, non-UTF-8, empty and malformed
 tables and counts the data rows exactly); the line count here is the early, streaming bound.
 """
 
@@ -19,8 +19,7 @@ from dataclasses import dataclass, field
 
 from python_multipart.exceptions import FormParserError
 from python_multipart.multipart import MultipartParser, parse_options_header
-
-from optimiser.errors import StowflowError
+from stowflow.errors import StowflowError
 
 __all__ = ["FilePart", "UploadError", "UploadedForm", "megabytes", "read_form"]
 

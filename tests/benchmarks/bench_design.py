@@ -6,7 +6,7 @@
 
 1. Whole-process wall time of ``stowflow check``, ``stowflow design`` and ``stowflow demo`` on the
    bundled demo (median of 5 runs each, fresh processes, imports included).
-2. The optimiser's exact screen against a numpy-vectorised exhaustive sweep of the same design
+2. The stowflow's exact screen against a numpy-vectorised exhaustive sweep of the same design
    space (every pump × motor × accumulator row × count × precharge, each judged by a plain
    step-by-step simulation of the always-loaded store at both temperature ends): both must give
    the same least installed power and capex; the ratio of their times is reported, measured in
@@ -33,19 +33,19 @@ import numpy as np
 ROOT = Path(__file__).resolve().parents[2]
 sys.path.insert(0, str(ROOT))
 
-from optimiser import accumulator as acc  # noqa: E402
-from optimiser import gas  # noqa: E402
-from optimiser.catalogue import load_catalogue  # noqa: E402
-from optimiser.cycle import load_cycle  # noqa: E402
-from optimiser.designer import design  # noqa: E402
-from optimiser.search import (  # noqa: E402
+from stowflow import gas  # noqa: E402
+from stowflow.catalogue import load_catalogue  # noqa: E402
+from stowflow.cycle.duty import load_cycle  # noqa: E402
+from stowflow.physics import accumulator as acc  # noqa: E402
+from stowflow.search.designer import design  # noqa: E402
+from stowflow.search.screen import (  # noqa: E402
     charge_heating,
     make_problem,
     screen,
     stored_fraction,
     top_pressure,
 )
-from optimiser.settings import DesignSettings  # noqa: E402
+from stowflow.search.settings import DesignSettings  # noqa: E402
 
 CYCLE = ROOT / "duty_cycles" / "forming_press.csv"
 CATALOGUE = ROOT / "duty_cycles" / "catalogue.toml"
@@ -161,7 +161,7 @@ def scaling_run(repeats: int) -> None:
     """One scaling point, in this process: print one line of figures."""
     import resource
 
-    from optimiser.cycle import cycle_from_arrays
+    from stowflow.cycle.duty import cycle_from_arrays
 
     base = load_cycle(CYCLE)
     flow = np.tile(base.flow, repeats)
@@ -203,7 +203,7 @@ def main() -> None:
     if args.scaling:
         scaling()
         return
-    exe = [sys.executable, "-m", "optimiser"]
+    exe = [sys.executable, "-m", "stowflow"]
     with tempfile.TemporaryDirectory() as tmp:
         for name, argv in (
             ("check", ["check", str(CYCLE)]),

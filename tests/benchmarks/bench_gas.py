@@ -11,8 +11,7 @@ from __future__ import annotations
 import time
 
 import numpy as np
-
-from optimiser.gas import (
+from stowflow.physics.gas import (
     density,
     gas_volume_ratio,
     pressure_at_oil_fraction,

@@ -2,10 +2,10 @@
 
 Run: ``python tests/benchmarks/bench_simulate.py [--repeats 5] [--pipeline]`` (not part of the
 default test run).  For each demo cycle in ``duty_cycles/``: designs it once, then times
-:func:`optimiser.simulate.verify` (every controller at the coldest and hottest temperature)
+:func:`stowflow.simulation.verify.verify` (every controller at the coldest and hottest temperature)
 and prints the median wall-clock time over the repeats, the cycles each run needed to reach
 its periodic steady state, the least margin and which controllers pass.  With ``--pipeline``
-it also times the whole closed loop (``optimiser.pipeline.run``: design → verify → tighten).
+it also times the whole closed loop (``stowflow.pipeline.run``: design → verify → tighten).
 """
 
 from __future__ import annotations
@@ -15,11 +15,11 @@ import statistics
 import time
 from pathlib import Path
 
-from optimiser.catalogue import default_catalogue_path, load_catalogue
-from optimiser.cycle import load_cycle
-from optimiser.designer import design
-from optimiser.errors import StowflowError
-from optimiser.simulate import verify
+from stowflow.catalogue import default_catalogue_path, load_catalogue
+from stowflow.cycle.duty import load_cycle
+from stowflow.errors import StowflowError
+from stowflow.search.designer import design
+from stowflow.simulation.verify import verify
 
 REPO = Path(__file__).resolve().parents[2]
 BAR = 1e5
@@ -69,7 +69,7 @@ def main() -> None:
                 f"  {'pass' if r.passed else 'FAIL: ' + (r.reason or '')}"
             )
         if args.pipeline:
-            from optimiser.pipeline import Study, run
+            from stowflow.pipeline import Study, run
 
             tp, res = _median(lambda path=path: run(Study(cycle=path)), max(1, args.repeats // 2))
             vv = res.verification

@@ -1,0 +1,476 @@
+"""Single-point sizing: the gas volume that exchanges a given oil volume across the temperatures.
+
+For a precharge :math:`p_{0,ref}` at 20 °C, the oil fraction stored at pressure p and operating
+temperature T is :math:`f(p, T) = 1 - V/V_0` (:func:`stowflow.physics.gas.oil_fraction`).  The gas
+volume that exchanges the oil volume ΔV between the minimum and maximum working pressures is
+
+.. math::
+    V_0 = \\max_{T \\in [T_{min}, T_{max}]}
+          \\frac{\\Delta V}{f(p_{max}, T) - f(p_{min}, T)}
+
+which for the ideal gas and the polytropic process is the textbook law
+:math:`\\Delta V = V_0 [(p_0/p_1)^{1/n} - (p_0/p_2)^{1/n}]` with :math:`p_0 = p_0(T)`.  The cold
+end lowers the precharge (and so the stored oil); the hot end raises it towards the minimum
+working pressure (the precharge rule).  Every type's limits are checked
+(:func:`stowflow.physics.accumulator.check_limits`).  Without a given precharge each type gets the
+highest precharge its rule allows at the hottest temperature.
+
+References
+----------
+.. [1] A. Esposito, *Fluid Power with Applications*, 7th ed., Pearson (2009),
+   ISBN 978-0-13-513690-4, accumulator chapter (Boyle's-law sizing).
+.. [2] Y. A. Çengel, M. A. Boles, *Thermodynamics: An Engineering Approach*, 8th ed.,
+   McGraw-Hill (2015), ISBN 978-0-07-339817-4 (polytropic processes).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+from stowflow.errors import SizingError
+from stowflow.physics.accumulator import (
+    AccumulatorType,
+    TypeRules,
+    Violation,
+    check_limits,
+    max_precharge_for_min_pressure,
+    parse_type,
+    pressure_equipment_category,
+    rules_for,
+    shell_volume,
+)
+from stowflow.physics.gas import (
+    Process,
+    end_temperature,
+    oil_fraction,
+    parse_process,
+    precharge_at,
+    reference_precharge,
+)
+from stowflow.units import P_AMBIENT, T_REF, abs_to_gauge, kelvin_to_celsius, to_unit
+
+__all__ = ["SizingResult", "TypeSizing", "size_accumulator"]
+
+#: Temperatures evaluated across the range (plus 20 °C when inside it), [-].
+N_TEMPERATURES = 21
+_GOLDEN = (math.sqrt(5.0) - 1.0) / 2.0
+
+
+def _bar_g(p_abs):
+    return to_unit(abs_to_gauge(p_abs), "bar", "pressure")
+
+
+def _litre(v):
+    return to_unit(v, "L", "volume")
+
+
+@dataclass(frozen=True)
+class TypeSizing:
+    """Sizing of one accumulator type.
+
+    Attributes
+    ----------
+    type : AccumulatorType
+        The type.
+    precharge_ref : float
+        Precharge at 20 °C, absolute, [Pa].
+    precharge_by_rule : bool
+        True when the precharge came from the type's rule (none was given).
+    required_gas_volume : float
+        Gas volume V0 at the worst temperature, [m³] (nan when no precharge is possible).
+    worst_temperature : float
+        Temperature that needs the largest V0, [K].
+    shell_volume : float
+        Shell volume (gas-over-oil adds its residual oil), [m³].
+    temperatures : numpy.ndarray
+        Temperatures evaluated, [K].
+    precharge_at_T : numpy.ndarray
+        Precharge at each temperature, absolute, [Pa].
+    fraction_at_min, fraction_at_max : numpy.ndarray
+        Oil fraction stored at p_min and p_max at each temperature, [-].
+    gas_temperature_at_max : numpy.ndarray
+        Gas temperature at p_max after the process from each temperature, [K].
+    required_at_T : numpy.ndarray
+        Gas volume that each temperature alone would need, [m³].
+    violations : tuple of Violation
+        Broken limits; empty when the type is admissible.
+    notes : tuple of str
+        Remarks that are not violations (e.g. the swept volume a piston unit needs).
+    """
+
+    type: AccumulatorType
+    precharge_ref: float
+    precharge_by_rule: bool
+    required_gas_volume: float
+    worst_temperature: float
+    shell_volume: float
+    temperatures: np.ndarray = field(repr=False)
+    precharge_at_T: np.ndarray = field(repr=False)
+    fraction_at_min: np.ndarray = field(repr=False)
+    fraction_at_max: np.ndarray = field(repr=False)
+    gas_temperature_at_max: np.ndarray = field(repr=False)
+    required_at_T: np.ndarray = field(repr=False)
+    violations: tuple[Violation, ...] = ()
+    notes: tuple[str, ...] = ()
+
+    @property
+    def admissible(self) -> bool:
+        """True when no limit is broken."""
+        return not self.violations
+
+    def rows(self) -> list[dict]:
+        """Per-temperature table in trade units (°C, bar gauge, L) for the worst-case V0."""
+        v0 = self.required_gas_volume
+        return [
+            {
+                "temperature_c": kelvin_to_celsius(float(t)),
+                "precharge_bar": _bar_g(float(p0)),
+                "oil_at_min_pressure_l": _litre(v0 * float(fmin)),
+                "oil_at_max_pressure_l": _litre(v0 * float(fmax)),
+                "oil_exchange_l": _litre(v0 * float(fmax - fmin)),
+                "required_gas_volume_l": _litre(float(need)),
+                "gas_temperature_at_max_pressure_c": kelvin_to_celsius(float(tg)),
+            }
+            for t, p0, fmin, fmax, tg, need in zip(
+                self.temperatures,
+                self.precharge_at_T,
+                self.fraction_at_min,
+                self.fraction_at_max,
+                self.gas_temperature_at_max,
+                self.required_at_T,
+                strict=True,
+            )
+        ]
+
+    def as_dict(self) -> dict:
+        """JSON-ready summary in trade units."""
+        return {
+            "precharge_bar_at_20c": _bar_g(self.precharge_ref),
+            "precharge_by_rule": self.precharge_by_rule,
+            "required_gas_volume_l": _litre(self.required_gas_volume),
+            "shell_volume_l": _litre(self.shell_volume),
+            "worst_temperature_c": kelvin_to_celsius(self.worst_temperature),
+            "admissible": self.admissible,
+            "reasons": [v.message for v in self.violations],
+            "notes": list(self.notes),
+        }
+
+
+@dataclass(frozen=True)
+class SizingResult:
+    """Result of :func:`size_accumulator`.
+
+    Attributes
+    ----------
+    oil_volume : float
+        Oil volume to exchange, [m³].
+    p_min, p_max : float
+        Working pressure window, absolute, [Pa].
+    T_min, T_max : float
+        Operating temperature range, [K].
+    process : Process
+        Gas process.
+    model : str
+        Gas model, ``"real"`` or ``"ideal"``.
+    precharge : float or None
+        Given precharge at 20 °C, absolute, [Pa]; None when set by each type's rule.
+    max_allowable_pressure : float or None
+        PS for the category hint, absolute, [Pa].
+    cases : tuple of TypeSizing
+        One sizing per type considered.
+    governing : TypeSizing
+        The admissible type with the smallest required gas volume.
+    """
+
+    oil_volume: float
+    p_min: float
+    p_max: float
+    T_min: float
+    T_max: float
+    process: Process
+    model: str
+    precharge: float | None
+    max_allowable_pressure: float | None
+    cases: tuple[TypeSizing, ...]
+    governing: TypeSizing
+
+    @property
+    def required_gas_volume(self) -> float:
+        """Worst-case gas volume V0 of the governing type, [m³]."""
+        return self.governing.required_gas_volume
+
+    @property
+    def admissible_types(self) -> list[str]:
+        """Types that meet every limit."""
+        return [c.type.value for c in self.cases if c.admissible]
+
+    @property
+    def rejected_types(self) -> dict[str, str]:
+        """Types that break a limit → the reasons, one string."""
+        return {
+            c.type.value: "; ".join(v.message for v in c.violations)
+            for c in self.cases
+            if not c.admissible
+        }
+
+    def pressure_equipment(self) -> dict | None:
+        """Category hint for one vessel of the governing shell volume at PS, or None."""
+        if self.max_allowable_pressure is None:
+            return None
+        ps = _bar_g(self.max_allowable_pressure)
+        vol = _litre(self.governing.shell_volume)
+        category, note = pressure_equipment_category(ps, vol)
+        return {"ps_bar": ps, "volume_l": vol, "category": category, "note": note}
+
+    def as_dict(self) -> dict:
+        """JSON-ready result in trade units (bar gauge, L, °C)."""
+        g = self.governing
+        real_isentrope = self.model == "real" and self.process.kind == "adiabatic"
+        return {
+            "schema": "stowflow.size/1",
+            "gas_model": self.model,
+            "process": self.process.kind,
+            "polytropic_index": None if real_isentrope else self.process.n,
+            "temperature_c": {
+                "min": kelvin_to_celsius(self.T_min),
+                "max": kelvin_to_celsius(self.T_max),
+                "precharge_reference": kelvin_to_celsius(T_REF),
+            },
+            "oil_volume_l": _litre(self.oil_volume),
+            "min_pressure_bar": _bar_g(self.p_min),
+            "max_pressure_bar": _bar_g(self.p_max),
+            "precharge_bar_at_20c": _bar_g(g.precharge_ref),
+            "precharge_by_rule": self.precharge is None,
+            "required_gas_volume_l": _litre(g.required_gas_volume),
+            "governing_type": g.type.value,
+            "worst_temperature_c": kelvin_to_celsius(g.worst_temperature),
+            "admissible_types": self.admissible_types,
+            "rejected_types": self.rejected_types,
+            "temperatures": g.rows(),
+            "types": {c.type.value: c.as_dict() for c in self.cases},
+            "pressure_equipment": self.pressure_equipment(),
+        }
+
+
+def _validate(oil_volume, p_min, p_max, precharge, T_min, T_max) -> None:
+    if not (np.isfinite(oil_volume) and oil_volume > 0):
+        raise SizingError(f"oil volume to exchange must be > 0 L; got {_litre(oil_volume):g} L")
+    for name, p in (("minimum working pressure", p_min), ("maximum working pressure", p_max)):
+        if not (np.isfinite(p) and p > P_AMBIENT):
+            raise SizingError(
+                f"{name} must be above ambient (> 0 bar gauge); got {_bar_g(p):g} bar"
+            )
+    if not p_max > p_min:
+        raise SizingError(
+            f"maximum working pressure {_bar_g(p_max):g} bar must exceed the minimum "
+            f"{_bar_g(p_min):g} bar (gauge)"
+        )
+    if precharge is not None:
+        if not (np.isfinite(precharge) and precharge > P_AMBIENT):
+            raise SizingError(f"precharge must be above ambient; got {_bar_g(precharge):g} bar")
+        if not precharge < p_min:
+            raise SizingError(
+                f"precharge {_bar_g(precharge):g} bar at 20 °C must be below the minimum working "
+                f"pressure {_bar_g(p_min):g} bar (gauge), or no oil is stored at p_min"
+            )
+    if not (T_min > 0 and T_max >= T_min and np.isfinite(T_max)):
+        raise SizingError(
+            f"temperature range {kelvin_to_celsius(T_min):g} … {kelvin_to_celsius(T_max):g} °C "
+            "is not a range above absolute zero"
+        )
+
+
+def _temperature_grid(T_min: float, T_max: float) -> np.ndarray:
+    ts = np.linspace(T_min, T_max, N_TEMPERATURES if T_max > T_min else 1)
+    if T_min < T_REF < T_max:
+        ts = np.unique(np.append(ts, T_REF))
+    return ts
+
+
+def _worst(df_of_T, ts: np.ndarray, df: np.ndarray) -> tuple[float, float]:
+    """Temperature [K] with the smallest stored-oil fraction difference, and that value."""
+    k = int(np.argmin(df))
+    if k in (0, len(ts) - 1):
+        return float(ts[k]), float(df[k])
+    a, b = float(ts[k - 1]), float(ts[k + 1])  # golden-section refinement, interior minimum
+    c, d = b - _GOLDEN * (b - a), a + _GOLDEN * (b - a)
+    fc, fd = df_of_T(c), df_of_T(d)
+    while b - a > 1e-4:
+        if fc < fd:
+            b, d, fd = d, c, fc
+            c = b - _GOLDEN * (b - a)
+            fc = df_of_T(c)
+        else:
+            a, c, fc = c, d, fd
+            d = a + _GOLDEN * (b - a)
+            fd = df_of_T(d)
+    t_best, f_best = (c, fc) if fc < fd else (d, fd)
+    return (t_best, f_best) if f_best < df[k] else (float(ts[k]), float(df[k]))
+
+
+def _physics(p0_ref: float, ctx: tuple) -> dict:
+    """Fractions, worst temperature and V0 for one precharge (shared by the types)."""
+    oil_volume, p_min, p_max, T_min, T_max, proc, model, _ = ctx
+    ts = _temperature_grid(T_min, T_max)
+    f = oil_fraction(np.array([[p_min], [p_max]]), p0_ref, ts[None, :], proc, model)
+    fmin, fmax = np.atleast_1d(f[0]), np.atleast_1d(f[1])
+
+    def df_of_T(t):
+        pair = oil_fraction(np.array([p_min, p_max]), p0_ref, t, proc, model)
+        return float(pair[1] - pair[0])
+
+    t_worst, df_worst = _worst(df_of_T, ts, fmax - fmin)
+    if not df_worst > 0:
+        p0_w = _bar_g(float(precharge_at(p0_ref, t_worst, model)))
+        raise SizingError(
+            f"at {kelvin_to_celsius(t_worst):.4g} °C the precharge {p0_w:.4g} bar reaches the "
+            "maximum working pressure, so no oil is exchanged; lower the precharge or the top "
+            "temperature"
+        )
+    with np.errstate(divide="ignore"):
+        need = np.where(fmax > fmin, oil_volume / (fmax - fmin), np.inf)
+    return {
+        "temperatures": ts,
+        "fraction_at_min": fmin,
+        "fraction_at_max": fmax,
+        "worst_temperature": float(t_worst),
+        "required_gas_volume": float(oil_volume / df_worst),
+        "required_at_T": need,
+        "precharge_at_T": np.atleast_1d(precharge_at(p0_ref, ts, model)),
+        "gas_temperature_at_max": np.atleast_1d(end_temperature(p_max, p0_ref, ts, proc, model)),
+    }
+
+
+def _size_one(acc_type, p0_ref, by_rule, rules, phys, ctx) -> TypeSizing:
+    _, p_min, p_max, T_min, T_max, _, model, ps = ctx
+    violations = tuple(
+        check_limits(
+            acc_type,
+            p0_ref,
+            p_min,
+            p_max,
+            T_min,
+            T_max,
+            rules=rules,
+            model=model,
+            max_allowable_pressure=ps,
+        )
+    )
+    v0 = phys["required_gas_volume"]
+    notes = []
+    if acc_type is AccumulatorType.PISTON_BOTTLES:
+        exchange = v0 * float(np.max(phys["fraction_at_max"] - phys["fraction_at_min"]))
+        notes.append(f"the piston unit's swept volume must be at least {_litre(exchange):.4g} L")
+    if rules.residual_oil_fraction > 0:
+        notes.append(
+            f"shell volume includes {rules.residual_oil_fraction:.0%} residual oil that "
+            "never leaves (common practice, no published source)"
+        )
+    return TypeSizing(
+        type=acc_type,
+        precharge_ref=float(p0_ref),
+        precharge_by_rule=by_rule,
+        shell_volume=float(shell_volume(acc_type, v0, rules)),
+        violations=violations,
+        notes=tuple(notes),
+        **phys,
+    )
+
+
+def size_accumulator(
+    oil_volume: float,
+    p_min: float,
+    p_max: float,
+    *,
+    precharge: float | None = None,
+    process: Process | str = "adiabatic",
+    model: str = "real",
+    T_min: float = T_REF,
+    T_max: float | None = None,
+    types: list[str] | None = None,
+    overrides: dict[str, dict] | None = None,
+    max_allowable_pressure: float | None = None,
+) -> SizingResult:
+    """Gas volume, precharge and admissible types for one energy-storage duty.
+
+    .. math::
+        V_0 = \\max_T \\frac{\\Delta V}{f(p_{max}, T) - f(p_{min}, T)}
+
+    Parameters
+    ----------
+    oil_volume : float
+        Oil volume ΔV to exchange between p_min and p_max, [m³].
+    p_min, p_max : float
+        Minimum and maximum working pressure, absolute, [Pa].
+    precharge : float, optional
+        Precharge at 20 °C, absolute, [Pa]; by default each type's rule sets it at the
+        hottest temperature.
+    process : Process or str
+        Gas process (``"isothermal"``, ``"adiabatic"``, ``"polytropic:1.3"``).
+    model : {"real", "ideal"}
+        Gas model.
+    T_min : float
+        Lowest operating temperature, [K].
+    T_max : float, optional
+        Highest operating temperature, [K]; default ``T_min``.
+    types : list of str, optional
+        Types to consider; default all.
+    overrides : dict, optional
+        Per type, catalogue ``[limits.<type>]`` overrides (see
+        :func:`stowflow.physics.accumulator.rules_for`).
+    max_allowable_pressure : float, optional
+        Vessel PS, absolute, [Pa]: checked, and used for the category hint.
+
+    Returns
+    -------
+    SizingResult
+        Per-type sizing; the governing type is the admissible one with the smallest gas
+        volume.
+
+    Raises
+    ------
+    SizingError
+        Impossible input (precharge ≥ p_min, p_max ≤ p_min, ΔV ≤ 0, pressures not above
+        ambient) or no type admissible (the message gives every type's reason).
+    """
+    T_max = T_min if T_max is None else T_max
+    _validate(oil_volume, p_min, p_max, precharge, T_min, T_max)
+    proc = parse_process(process)
+    chosen = [parse_type(t) for t in types] if types else list(AccumulatorType)
+    overrides = overrides or {}
+    ctx = (oil_volume, p_min, p_max, T_min, T_max, proc, model, max_allowable_pressure)
+    cases, cache = [], {}
+    for t in chosen:
+        rules: TypeRules = rules_for(t, overrides.get(t.value))
+        p0_ref = precharge
+        if p0_ref is None:
+            p0_hot = float(max_precharge_for_min_pressure(t, p_min, rules))
+            if not p0_hot > P_AMBIENT:
+                raise SizingError(
+                    f"{t.value}: the precharge rule leaves no precharge above ambient for a "
+                    f"minimum working pressure of {_bar_g(p_min):g} bar; give a precharge"
+                )
+            p0_ref = float(reference_precharge(p0_hot, T_max, model))
+        if p0_ref not in cache:
+            cache[p0_ref] = _physics(p0_ref, ctx)
+        cases.append(_size_one(t, p0_ref, precharge is None, rules, cache[p0_ref], ctx))
+    admissible = [c for c in cases if c.admissible]
+    if not admissible:
+        reasons = "; ".join(v.message for c in cases for v in c.violations)
+        raise SizingError(f"no accumulator type admits this duty: {reasons}")
+    governing = min(admissible, key=lambda c: c.required_gas_volume)
+    return SizingResult(
+        oil_volume=float(oil_volume),
+        p_min=float(p_min),
+        p_max=float(p_max),
+        T_min=float(T_min),
+        T_max=float(T_max),
+        process=proc,
+        model=model,
+        precharge=None if precharge is None else float(precharge),
+        max_allowable_pressure=max_allowable_pressure,
+        cases=tuple(cases),
+        governing=governing,
+    )

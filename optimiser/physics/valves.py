@@ -1,0 +1,60 @@
+"""Valve and switch characteristics shared by the design search and the verification.
+
+The search and the simulator must agree on how the supply's valves behave; keeping these
+constants here, below both, lets the search use them without importing the simulator.
+
+* :data:`RELIEF_OVERRIDE`: the relief valve's pressure override at full pump flow;
+* :data:`MIN_BAND_FRACTION`, :data:`MIN_BAND_PRESSURE`: the narrowest pressure-switch band
+  tried, and :func:`narrowest_band`;
+* :data:`MIN_BAND_STROKE`: the narrowest position-switch band tried (piston types).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+__all__ = [
+    "MIN_BAND_FRACTION",
+    "MIN_BAND_PRESSURE",
+    "MIN_BAND_STROKE",
+    "RELIEF_OVERRIDE",
+    "narrowest_band",
+]
+
+#: Relief valve characteristic: it passes the full pump flow at this fraction of its cracking
+#: gauge pressure above cracking (linear in between), [-].  Common practice for direct-acting
+#: relief valves ("pressure override" of some 5-15 %), no published source.
+RELIEF_OVERRIDE = 0.10
+
+#: Narrowest pressure-switch band tried, as a fraction of the unload gauge pressure, [-], and
+#: at least :data:`MIN_BAND_PRESSURE`.  About the repeatability of an industrial pressure
+#: switch; common practice, no published source.
+MIN_BAND_FRACTION = 0.01
+#: Narrowest pressure-switch band tried, [Pa] (1 bar; common practice, no published source).
+MIN_BAND_PRESSURE = 1e5
+#: Narrowest position-switch band tried, fraction of the stroke, [-] (common practice, no
+#: published source).
+MIN_BAND_STROKE = 0.01
+
+
+def narrowest_band(off_gauge):
+    """Narrowest pressure band tried for an unload gauge pressure.
+
+    Parameters
+    ----------
+    off_gauge : float or array_like
+        Unload (cut-out) gauge pressure, [Pa].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        ``max(MIN_BAND_PRESSURE, MIN_BAND_FRACTION · off_gauge)``, [Pa].
+
+    Examples
+    --------
+    >>> float(narrowest_band(200e5))  # 1 % of 200 bar
+    200000.0
+    >>> float(narrowest_band(50e5))  # at least 1 bar
+    100000.0
+    """
+    return np.maximum(MIN_BAND_PRESSURE, MIN_BAND_FRACTION * np.asarray(off_gauge, float))

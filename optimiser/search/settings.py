@@ -1,0 +1,223 @@
+"""Design settings: every knob of the search, with units, defaults and their sources.
+
+Defaults marked *common practice* are the usual values of the trade with no published source;
+they are editable and the report lists them.  Internally SI: Pa, s, K.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import asdict, dataclass, field, replace
+
+from stowflow.catalogue import ACCUMULATOR_TYPES
+from stowflow.errors import SettingsError
+from stowflow.units import P_AMBIENT, celsius_to_kelvin
+
+__all__ = ["ACCUMULATOR_TYPES", "DEFAULT_SETTINGS", "DesignSettings"]
+
+
+@dataclass(frozen=True)
+class DesignSettings:
+    """Settings of one design study.
+
+    Attributes
+    ----------
+    t_min : float
+        Coldest operating temperature of gas and oil, [K].  Default 10 °C (example).
+    t_max : float
+        Hottest operating temperature, [K].  Default 50 °C (example).
+    gas_model : str
+        ``"real"`` (nitrogen, Span et al. 2000 EOS via CoolProp tables) or ``"ideal"``.
+    process : str
+        ``"auto"`` (effective polytropic index from the cycle's time scale and the thermal time
+        constant), ``"isothermal"``, ``"adiabatic"`` or ``"polytropic:<n>"``.
+    time_constant : float
+        Thermal time constant of the gas charge, [s].  Default 5 s: REFERENCES.md gives about
+        1–10 s for litre-size gas volumes (from memory).
+    line_loss : float
+        Pressure allowance between accumulator and consumer added to every required pressure,
+        [Pa].  Default 5 bar (common practice, no published source).
+    relief_margin : float
+        Relief valve setting above the unload pressure, as a fraction of the unload gauge
+        pressure, [-].  Default 0.10 (common practice, no published source).
+    relief_margin_min : float
+        Least relief margin in absolute terms, [Pa].  Default 5 bar (common practice).
+    standby_pressure : float
+        Gauge pressure at which an unloaded pump circulates oil to tank, [Pa].  Default 5 bar
+        (common practice, no published source).
+    min_loaded_dwell, min_unloaded_dwell : float
+        Least time the pump stays loaded / unloaded once switched, [s].  Default 1 s each
+        (common practice for unloading valves, no published source).  0 disables.
+    max_load_events_per_hour : float | None
+        Most load events (unloaded → loaded) in any hour, [1/h].  Default 360 (common
+        practice, no published source).  None disables.
+    flow_margin : float
+        Share of the pump's catalogue flow the design must do without, [-]: the cycle must
+        still be met when wear has cut the delivery by this much (the pump-only baselines
+        get the same margin).  Default 0.10 (common practice, no published source).
+    max_count : int
+        Most accumulators of one size in a bank, [-].  Default 8.
+    precharge_step : float
+        Resolution of the precharge grid the search scans, gauge at 20 °C, [Pa].  Default 1 bar.
+    types : tuple[str, ...]
+        Accumulator types the search may use.
+    allow_pump_only : bool
+        Whether a pump without accumulator is itself a candidate.
+    mip_gap : float
+        Relative MIP gap for the schedule model, [-].  Default 1e-3 (0.1 %).
+    time_limit : float
+        Wall-clock limit of one schedule solve, [s].  Default 60 s.
+    max_model_steps : int
+        Largest number of time steps the schedule model is built with before it aggregates
+        steps into blocks (certified block aggregation), [-].
+    p_ambient : float
+        Ambient pressure, [Pa].  Default 101 325 Pa (standard atmosphere).
+    """
+
+    t_min: float = celsius_to_kelvin(10.0)
+    t_max: float = celsius_to_kelvin(50.0)
+    gas_model: str = "real"
+    process: str = "auto"
+    time_constant: float = 5.0
+    line_loss: float = 5e5
+    relief_margin: float = 0.10
+    relief_margin_min: float = 5e5
+    standby_pressure: float = 5e5
+    min_loaded_dwell: float = 1.0
+    min_unloaded_dwell: float = 1.0
+    max_load_events_per_hour: float | None = 360.0
+    flow_margin: float = 0.10
+    max_count: int = 8
+    precharge_step: float = 1e5
+    types: tuple[str, ...] = ACCUMULATOR_TYPES
+    allow_pump_only: bool = True
+    mip_gap: float = 1e-3
+    time_limit: float = 60.0
+    max_model_steps: int = 3000
+    p_ambient: float = P_AMBIENT
+    extra: dict = field(default_factory=dict, compare=False, hash=False)
+
+    def __post_init__(self) -> None:
+        def bad(msg: str) -> SettingsError:
+            return SettingsError(f"design settings: {msg}")
+
+        for name in ("t_min", "t_max", "time_constant", "precharge_step", "time_limit"):
+            v = getattr(self, name)
+            if not (isinstance(v, int | float) and math.isfinite(v) and v > 0):
+                raise bad(f"{name} must be a positive finite number, got {v!r}")
+        if self.t_min > self.t_max:
+            raise bad(
+                f"coldest temperature {self.t_min - 273.15:.1f} °C is above the hottest "
+                f"{self.t_max - 273.15:.1f} °C"
+            )
+        if self.t_min < 200.0 or self.t_max > 450.0:
+            raise bad("operating temperatures must lie between −73 °C and 177 °C")
+        if self.gas_model not in ("real", "ideal"):
+            raise bad(f"gas model '{self.gas_model}' is not 'real' or 'ideal'")
+        if self.process != "auto":
+            from stowflow.physics.gas import parse_process
+
+            try:
+                parse_process(self.process)
+            except Exception as exc:
+                raise bad(
+                    f"process '{self.process}' is not auto, isothermal, adiabatic or "
+                    f"polytropic:N ({exc})"
+                ) from None
+        for name in (
+            "line_loss",
+            "relief_margin",
+            "relief_margin_min",
+            "standby_pressure",
+            "min_loaded_dwell",
+            "min_unloaded_dwell",
+        ):
+            v = getattr(self, name)
+            if not (math.isfinite(v) and v >= 0):
+                raise bad(f"{name} must be ≥ 0, got {v!r}")
+        if self.max_load_events_per_hour is not None and not (self.max_load_events_per_hour >= 1):
+            raise bad("max load events per hour must be ≥ 1 (or None for no limit)")
+        if not (0 <= self.flow_margin < 0.5):
+            raise bad(f"flow margin must be 0 … 50 %, got {self.flow_margin:.0%}")
+        if not (1 <= int(self.max_count) <= 64):
+            raise bad(f"max count per bank must be 1…64, got {self.max_count}")
+        unknown = set(self.types) - set(ACCUMULATOR_TYPES)
+        if unknown:
+            raise bad(
+                f"unknown accumulator type(s) {sorted(unknown)}; known: {list(ACCUMULATOR_TYPES)}"
+            )
+        if not (0 < self.mip_gap < 0.5):
+            raise bad(f"MIP gap must be in (0, 0.5), got {self.mip_gap}")
+        if self.max_model_steps < 50:
+            raise bad("max_model_steps must be ≥ 50")
+
+    def with_(self, **changes) -> DesignSettings:
+        """Return a copy with some settings changed (validated again)."""
+        return replace(self, **changes)
+
+    def as_dict(self) -> dict:
+        """Settings in trade units for reports (°C, bar, s)."""
+        d = asdict(self)
+        d.pop("extra", None)
+        out = {
+            "temperature_min_c": round(self.t_min - 273.15, 3),
+            "temperature_max_c": round(self.t_max - 273.15, 3),
+            "gas_model": self.gas_model,
+            "process": self.process,
+            "time_constant_s": self.time_constant,
+            "line_loss_bar": self.line_loss / 1e5,
+            "relief_margin": self.relief_margin,
+            "relief_margin_min_bar": self.relief_margin_min / 1e5,
+            "standby_pressure_bar": self.standby_pressure / 1e5,
+            "min_loaded_dwell_s": self.min_loaded_dwell,
+            "min_unloaded_dwell_s": self.min_unloaded_dwell,
+            "max_load_events_per_hour": self.max_load_events_per_hour,
+            "flow_margin": self.flow_margin,
+            "max_count": self.max_count,
+            "precharge_step_bar": self.precharge_step / 1e5,
+            "types": list(self.types),
+            "allow_pump_only": self.allow_pump_only,
+            "mip_gap": self.mip_gap,
+            "time_limit_s": self.time_limit,
+            "ambient_pressure_bar": self.p_ambient / 1e5,
+        }
+        return out
+
+    def relief_setting(self, p_unload: float) -> float:
+        """Relief cracking pressure for an unload pressure.
+
+        Parameters
+        ----------
+        p_unload : float
+            Unload (maximum working) pressure, absolute, [Pa].
+
+        Returns
+        -------
+        float
+            Relief setting, absolute, [Pa]: the unload gauge pressure raised by
+            ``relief_margin`` but at least ``relief_margin_min``.
+        """
+        g = p_unload - self.p_ambient
+        return self.p_ambient + g + max(self.relief_margin * g, self.relief_margin_min)
+
+    def max_unload_for_relief(self, p_limit: float) -> float:
+        """Highest unload pressure whose relief setting stays at or below ``p_limit``.
+
+        Parameters
+        ----------
+        p_limit : float
+            Maximum allowable pressure the relief must protect, absolute, [Pa].
+
+        Returns
+        -------
+        float
+            Unload pressure, absolute, [Pa] (inverse of :meth:`relief_setting`).
+        """
+        g_lim = p_limit - self.p_ambient
+        g1 = g_lim / (1.0 + self.relief_margin)
+        g2 = g_lim - self.relief_margin_min
+        # relief = g + max(m·g, m_min): the binding branch gives the smaller unload pressure.
+        return self.p_ambient + min(g1, g2)
+
+
+DEFAULT_SETTINGS = DesignSettings()

@@ -1,0 +1,241 @@
+"""Result dataclasses of the design search: what was chosen, how it runs, how sure we are.
+
+Everything here is SI (Pa absolute, m³, m³/s, W, J, s).  The report and the exports convert to
+trade units; nothing here computes physics.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import pandas as pd
+from stowflow.catalogue import AccumulatorOption, MotorOption, PumpOption
+
+__all__ = ["Alternative", "Bank", "Baseline", "Design", "SearchStats"]
+
+
+@dataclass(frozen=True)
+class Alternative:
+    """A point of the power–capex trade-off: the cheapest supply at one motor rating.
+
+    Attributes
+    ----------
+    pump, motor : PumpOption, MotorOption
+        Catalogue rows.
+    option : AccumulatorOption | None
+        Accumulator row (None: pump only).
+    count : int
+        Accumulators in the bank, [-].
+    capex : float
+        Bank + pump + motor price, [currency].
+    """
+
+    pump: PumpOption
+    motor: MotorOption
+    option: AccumulatorOption | None
+    count: int
+    capex: float
+
+    @property
+    def installed_power(self) -> float:
+        """Rated motor power, [W]."""
+        return self.motor.rated_power
+
+
+@dataclass(frozen=True)
+class Bank:
+    """An accumulator bank: ``count`` units of one catalogue size with one precharge.
+
+    Attributes
+    ----------
+    option : AccumulatorOption
+        The catalogue row.
+    count : int
+        Units in the bank, [-].
+    precharge : float
+        Nitrogen precharge at 20 °C, absolute, [Pa].
+    """
+
+    option: AccumulatorOption
+    count: int
+    precharge: float
+
+    @property
+    def type(self) -> str:
+        """Accumulator type (catalogue ``type``)."""
+        return self.option.type
+
+    @property
+    def gas_volume(self) -> float:
+        """Total gas volume at precharge of the bank, [m³]."""
+        return self.count * self.option.nominal_volume
+
+    @property
+    def price(self) -> float:
+        """Price of the bank, [currency]."""
+        return self.count * self.option.price
+
+
+@dataclass(frozen=True)
+class Baseline:
+    """A pump-only supply sized from the same catalogue.
+
+    Attributes
+    ----------
+    kind : str
+        ``"fixed"`` (fixed-displacement pump, excess over the relief valve) or
+        ``"compensated"`` (pressure-compensated variable pump).
+    pump, motor : PumpOption, MotorOption
+        Chosen rows (None with ``reason`` when no row fits).
+    pressure : float
+        Pressure the pump works against (relief or compensator setting), absolute, [Pa].
+    energy_per_cycle : float
+        Electrical energy over one cycle, [J].
+    reason : str | None
+        Why no baseline could be built, else None.
+    """
+
+    kind: str
+    pump: PumpOption | None
+    motor: MotorOption | None
+    pressure: float
+    energy_per_cycle: float
+    shaft_power_peak: float = 0.0
+    reason: str | None = None
+
+    @property
+    def installed_power(self) -> float:
+        """Rated motor power, [W] (nan when infeasible)."""
+        return self.motor.rated_power if self.motor is not None else float("nan")
+
+    @property
+    def capex(self) -> float:
+        """Pump plus motor price, [currency]."""
+        if self.pump is None or self.motor is None:
+            return float("nan")
+        return self.pump.price + self.motor.price
+
+
+@dataclass(frozen=True)
+class SearchStats:
+    """How the search went.
+
+    Attributes
+    ----------
+    candidates : int
+        Component combinations screened, [-].
+    screen_time, build_time, solve_time, total_time : float
+        Wall-clock times, [s].
+    families_solved : int
+        Schedule models solved (one per tied component family), [-].
+    block : int
+        Time steps per block of the schedule model (1 = full resolution), [-].
+    notes : tuple[str, ...]
+        What the search did that a reader should know.
+    """
+
+    candidates: int = 0
+    screen_time: float = 0.0
+    build_time: float = 0.0
+    solve_time: float = 0.0
+    total_time: float = 0.0
+    families_solved: int = 0
+    block: int = 1
+    notes: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class Design:
+    """The least-installed-power supply for one cycle, or why there is none.
+
+    Attributes
+    ----------
+    status : str
+        ``"optimal"`` (levels proven on the search grid, schedule within ``mip_gap``),
+        ``"feasible"`` (best found within the time limit; gap in ``mip_gap``) or
+        ``"infeasible"`` (``reason`` names the binding limit).
+    reason : str | None
+        Why infeasible; None otherwise.
+    bank : Bank | None
+        The accumulator bank, or None for a pump-only supply.
+    pump, motor : PumpOption | None, MotorOption | None
+        Chosen catalogue rows.
+    p_min, p_max : float
+        Working window, absolute, [Pa]: the lowest and the highest accumulator pressure in
+        operation.  The pipeline takes them from the verification's recommended controller at
+        both temperature ends; before that they are the quasi-static values of the schedule
+        (lowest at the coldest, highest at the hottest temperature).
+    relief : float
+        Relief valve cracking pressure, absolute, [Pa].
+    process : str
+        Gas process of the quasi-static model, e.g. ``"polytropic:1.21"``.
+    schedule : pandas.DataFrame
+        Indexed by ``time [s]`` (step start): ``demand [m³/s]``, ``required_pressure [Pa]``
+        (absolute, line loss included), ``pump_loaded [-]`` (loaded for at least part of the
+        step), ``pump_flow [m³/s]`` (mean flow the pump puts into the pressure line over the
+        step: less than its full flow when the unloading valve opens part-way through it),
+        ``spill [m³/s]`` (flow over the relief valve: a pump-only supply, or a loaded pump
+        with a full store when the switching limits forbid unloading),
+        ``accumulator_oil [m³]`` (at the step end), ``pressure_cold [Pa]`` and
+        ``pressure_hot [Pa]`` (quasi-static, at the step end).  Balance per step:
+        oil change = (pump_flow − spill − demand)·Δt.
+    energy_per_cycle : float
+        Electrical energy over one cycle from the schedule model, [J].
+    mip_gap : float
+        Relative gap of the schedule model at the end of the solve, [-].
+    best_bound : float
+        Best lower bound on the energy per cycle, [J].
+    levels : dict
+        Lexicographic objective values: ``installed_power [W]``, ``capex``,
+        ``energy_per_cycle [J]``.
+    alternatives : tuple[Alternative, ...]
+        The power–capex trade-off behind the lexicographic choice: the chosen level first,
+        then each larger motor rating that buys a cheaper supply.
+    robust_schedule : bool
+        True when the one open-loop schedule holds at every temperature of the range; False
+        when it is planned at the middle temperature (the pressure switch then adapts at the
+        extremes, as the verification shows).
+    lower_bound_power : float
+        Mean hydraulic power of the cycle (line loss included) over the best pump overall
+        efficiency in the catalogue, [W]: a motor's rating is its shaft output, so no supply
+        can install less.
+    """
+
+    status: str
+    reason: str | None
+    bank: Bank | None
+    pump: PumpOption | None
+    motor: MotorOption | None
+    p_min: float
+    p_max: float
+    relief: float
+    process: str
+    schedule: pd.DataFrame
+    energy_per_cycle: float
+    mip_gap: float
+    best_bound: float
+    levels: dict
+    lower_bound_power: float
+    baselines: tuple[Baseline, ...] = ()
+    stats: SearchStats = field(default_factory=SearchStats)
+    notes: tuple[str, ...] = ()
+    alternatives: tuple[Alternative, ...] = ()
+    robust_schedule: bool = True
+
+    @property
+    def feasible(self) -> bool:
+        """True when a design was found."""
+        return self.status in ("optimal", "feasible")
+
+    @property
+    def installed_power(self) -> float:
+        """Rated motor power, [W] (nan when infeasible)."""
+        return self.motor.rated_power if self.motor is not None else float("nan")
+
+    @property
+    def capex(self) -> float:
+        """Components' catalogue price: bank + pump + motor, [currency]."""
+        if not self.feasible:
+            return float("nan")
+        bank = self.bank.price if self.bank is not None else 0.0
+        return bank + self.pump.price + self.motor.price

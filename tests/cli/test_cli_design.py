@@ -1,0 +1,139 @@
+"""``stowflow design`` and the shell around every command: help, option values, argv."""
+
+from __future__ import annotations
+
+import argparse
+import subprocess
+import sys
+
+import pytest
+import stowflow.cli as cli
+from stowflow.cli import build_parser, join_dash_values
+from stowflow.cli.design import settings_from_args
+from stowflow.errors import StowflowError
+
+#: 0 °C on the kelvin scale (ITS-90 offset), [K].
+ZERO_C = 273.15
+
+
+@pytest.mark.parametrize("command", cli.COMMANDS)
+def test_every_command_has_help(command, capsys):
+    # Regression: design/demo help crashed with "ValueError: incomplete format" on "10%".
+    with pytest.raises(SystemExit) as exc:
+        cli.main([command, "--help"])
+    assert exc.value.code == 0
+    out = capsys.readouterr().out
+    assert out.startswith("usage: stowflow " + command)
+    assert "%%" not in out
+
+
+def test_design_help_shows_percent_examples(capsys):
+    with pytest.raises(SystemExit):
+        cli.main(["design", "--help"])
+    out = capsys.readouterr().out
+    assert "e.g. 10%" in out and "0 disables" in out
+
+
+def _design_args(*options: str) -> argparse.Namespace:
+    argv = join_dash_values(["design", "cycle.csv", *options], build_parser())
+    return build_parser().parse_args(argv)
+
+
+@pytest.mark.parametrize("zero", ["0", "0.0", "-0"])
+def test_min_dwell_zero_needs_no_unit(zero):
+    # Regression: "--min-dwell 0" was refused ("'0' has no unit") though the help says
+    # "0 disables".
+    s = settings_from_args(_design_args("--min-dwell", zero, "--line-loss", "0"))
+    assert s.min_loaded_dwell == 0.0 and s.min_unloaded_dwell == 0.0
+    assert s.line_loss == 0.0
+
+
+def test_other_bare_numbers_still_need_a_unit():
+    with pytest.raises(StowflowError, match=r"'1' has no unit"):
+        settings_from_args(_design_args("--min-dwell", "1"))
+
+
+def test_zero_where_zero_means_nothing_is_refused_by_the_settings(run_cli):
+    code, stdout, stderr = run_cli("design", "cycle.csv", "--time-constant", "0")
+    assert code == 2 and stdout == ""
+    assert stderr.count("\n") == 1 and "time_constant must be a positive" in stderr
+
+
+@pytest.mark.parametrize(
+    ("given", "joined"),
+    [
+        (["--temperature", "-20..60"], ["--temperature=-20..60"]),
+        (["--temperature", "-20°C..60°C"], ["--temperature=-20°C..60°C"]),
+        (["--line-loss", "-.5bar"], ["--line-loss=-.5bar"]),
+        (["--temperature", "10..50"], ["--temperature", "10..50"]),
+        (["--json", "-5"], ["--json", "-5"]),  # a flag takes no value
+        (["--", "--temperature", "-20..60"], ["--", "--temperature", "-20..60"]),
+        (["--temperature", "--json"], ["--temperature", "--json"]),
+    ],
+)
+def test_join_dash_values(given, joined):
+    assert join_dash_values(["design", "c.csv", *given], build_parser()) == [
+        "design",
+        "c.csv",
+        *joined,
+    ]
+
+
+def test_cold_temperature_range_in_design():
+    # Regression: "--temperature -20..60" gave argparse's "expected one argument".
+    s = settings_from_args(_design_args("--temperature", "-20..60"))
+    assert (s.t_min, s.t_max) == pytest.approx((ZERO_C - 20, ZERO_C + 60))
+
+
+_FILL = (
+    "--volume 10L --precharge 90bar --bottles 1 --bottle-volume 50L --bottle-pressure 200bar"
+).split()
+
+
+@pytest.mark.parametrize(
+    ("argv", "dest"),
+    [
+        (["design", "c.csv", "--temperature"], "opt_temperature"),
+        (["demo", "--temperature"], "opt_temperature"),
+        (["simulate", "d.json", "c.csv", "--temperature"], "temperature"),
+        (["size", "--temperature"], "temperature"),
+        (["precharge", "90bar", "--temperature"], "temperature"),
+        (["fill", *_FILL, "--ambient", "15", "--table"], "table"),
+        (["fill", *_FILL, "--table", "0..40", "--ambient"], "ambient"),
+    ],
+    ids=lambda v: v[0] if isinstance(v, list) else v,
+)
+def test_cold_values_parse_after_an_option_in_every_command(argv, dest):
+    value = "-5" if dest == "ambient" else "-20..60"
+    args = build_parser().parse_args(join_dash_values([*argv, value], build_parser()))
+    assert getattr(args, dest) == value
+
+
+def test_design_keeps_pyomo_from_importing_scipy_stats(tmp_path):
+    # stowflow._deps: Pyomo's scipy hook imports scipy.sparse only (about 0.5 s of start-up);
+    # the design, its Pyomo model and its verification still run.
+    code = (
+        "import sys, numpy as np\n"
+        "import stowflow\n"
+        "from stowflow.cycle.duty import cycle_from_arrays\n"
+        "from stowflow.pipeline import Study, run\n"
+        "flow = np.array([60.0, 0, 10, 0]) / 6e4\n"
+        "cyc = cycle_from_arrays(2.0, flow, np.full(4, 120e5 + 101325))\n"
+        "r = run(Study(cycle=cyc))\n"
+        "assert r.design.feasible and r.verification is not None\n"
+        "print('scipy.stats' in sys.modules, 'scipy.sparse' in sys.modules)\n"
+    )
+    out = subprocess.run(
+        [sys.executable, "-c", code], capture_output=True, text=True, check=True, cwd=tmp_path
+    )
+    assert out.stdout.split() == ["False", "True"]
+
+
+def test_installed_program_returns_the_command_exit_code(tmp_path):
+    # stowflow.cli.entry (the `stowflow` program and `python -m stowflow`) keeps main's code.
+    bad = tmp_path / "bad.csv"
+    bad.write_text("time [s], flow\n0, 1\n", encoding="utf-8")
+    out = subprocess.run(
+        [sys.executable, "-m", "stowflow", "check", str(bad)], capture_output=True, text=True
+    )
+    assert out.returncode == 2 and out.stderr.startswith("stowflow: error:")

@@ -1,0 +1,102 @@
+"""``stowflow size`` through the real command-line entry point."""
+
+from __future__ import annotations
+
+import json
+
+import pytest
+import stowflow.cli as cli
+from stowflow.cli._common import parse_temperature_range
+from stowflow.errors import SettingsError
+from stowflow.units import parse_quantity
+
+GALLON_L = parse_quantity("1gal", "volume") * 1e3  # US liquid gallon in L
+ESPOSITO = [
+    "size", "--volume", "2827in3", "--precharge", "1200psi", "--min-pressure", "1800psi",
+    "--max-pressure", "3000psi", "--absolute", "--process", "isothermal", "--gas", "ideal",
+    "--temperature", "20",
+]  # fmt: skip
+
+
+@pytest.fixture(autouse=True)
+def _size_command(monkeypatch):
+    # Register only this command, whatever else the shell lists.
+    monkeypatch.setattr(cli, "COMMANDS", ("size",))
+
+
+def run(argv, capsys):
+    code = cli.main(argv)
+    out = capsys.readouterr()
+    return code, out.out, out.err
+
+
+def test_esposito_via_the_cli(capsys):
+    # Esposito, Fluid Power with Applications (Pearson), car-crusher accumulator (from
+    # memory): 45.9 gal, printed to three digits.
+    code, out, err = run([*ESPOSITO, "--json"], capsys)
+    assert code == 0 and err == ""
+    data = json.loads(out)
+    assert data["required_gas_volume_l"] / GALLON_L == pytest.approx(45.9, abs=0.05)
+    assert data["gas_model"] == "ideal" and data["process"] == "isothermal"
+    assert data["polytropic_index"] == 1.0
+    assert data["rejected_types"].keys() == {"gas-over-oil"}
+
+
+def test_human_output_has_units_and_the_memory_caveat(capsys):
+    argv = ["size", "--volume", "5L", "--min-pressure", "100bar", "--max-pressure", "200bar",
+            "--temperature", "10..50", "--ps", "330bar"]  # fmt: skip
+    code, out, _ = run(argv, capsys)
+    assert code == 0
+    assert "required gas volume V0 (worst case)" in out and "bar gauge" in out
+    assert "oil at p1 [L]" in out and "T [°C]" in out
+    assert "from memory" in out and "pressure-equipment category" in out
+    assert "nitrogen only" in out
+
+
+def test_gauge_is_the_default(capsys):
+    gauge = ["size", "--volume", "5L", "--min-pressure", "100bar", "--max-pressure", "200bar",
+             "--precharge", "80bar", "--json"]  # fmt: skip
+    _, out, _ = run(gauge, capsys)
+    absolute = [*gauge, "--absolute"]
+    _, out_abs, _ = run(absolute, capsys)
+    d, d_abs = json.loads(out), json.loads(out_abs)
+    assert d["min_pressure_bar"] == pytest.approx(100.0)
+    assert d_abs["min_pressure_bar"] == pytest.approx(100.0 - 1.01325)
+
+
+@pytest.mark.parametrize(
+    ("extra", "match"),
+    [
+        (["--precharge", "150bar"], "must be below the minimum working pressure"),
+        (["--process", "polytropic"], "needs its index"),
+        (["--temperature", "50..10"], "lower one"),
+    ],
+)
+def test_errors_are_one_line_exit_2(capsys, extra, match):
+    argv = ["size", "--volume", "5L", "--min-pressure", "100bar", "--max-pressure", "200bar"]
+    code, out, err = run([*argv, *extra], capsys)
+    assert code == 2 and out == ""
+    assert err.startswith("stowflow: error: ") and match in err and err.count("\n") == 1
+
+
+def test_bad_unit_names_the_option(capsys):
+    argv = ["size", "--volume", "5bar", "--min-pressure", "100bar", "--max-pressure", "200bar"]
+    code, _, err = run(argv, capsys)
+    assert code == 2 and "--volume" in err and "volume unit" in err
+
+
+def test_help_has_an_example(capsys):
+    with pytest.raises(SystemExit) as exc:
+        cli.main(["size", "--help"])
+    assert exc.value.code == 0
+    assert "stowflow size --volume 5L" in capsys.readouterr().out
+
+
+def test_temperature_range_parsing():
+    assert parse_temperature_range("10..50") == pytest.approx((283.15, 323.15))
+    assert parse_temperature_range("-20 °C..60°C") == pytest.approx((253.15, 333.15))
+    assert parse_temperature_range("20") == pytest.approx((293.15, 293.15))
+    with pytest.raises(SettingsError, match="not a range"):
+        parse_temperature_range("warm")
+    with pytest.raises(SettingsError, match="plausible"):
+        parse_temperature_range("10..300")
