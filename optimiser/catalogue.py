@@ -257,7 +257,10 @@ _TOP_KEYS = (*_SECTIONS, "currency", "notes", "limits")
 
 
 def default_catalogue_path() -> Path:
-    """The bundled demo catalogue, ``<repository>/duty_cycles/catalogue.toml``.
+    """The bundled demo catalogue, ``duty_cycles/catalogue.toml``.
+
+    A wheel carries the demo data inside the package (``stowflow/duty_cycles/``); a checkout
+    or an editable install finds it at the repository's top level.
 
     Returns
     -------
@@ -267,15 +270,17 @@ def default_catalogue_path() -> Path:
     Raises
     ------
     CatalogueError
-        The file is not there (e.g. an installed package without the repository).
+        The file is in neither place.
     """
-    path = Path(__file__).resolve().parent.parent / "duty_cycles" / "catalogue.toml"
-    if not path.is_file():
-        raise CatalogueError(
-            f"{path}: default catalogue not found; expected the repository's "
-            "duty_cycles/catalogue.toml, or pass your own catalogue file"
-        )
-    return path
+    here = Path(__file__).resolve().parent
+    candidates = (here / "duty_cycles", here.parent / "duty_cycles")
+    for folder in candidates:
+        if (folder / "catalogue.toml").is_file():
+            return folder / "catalogue.toml"
+    raise CatalogueError(
+        f"{candidates[-1] / 'catalogue.toml'}: default catalogue not found; expected the "
+        "repository's duty_cycles/catalogue.toml, or pass your own catalogue file"
+    )
 
 
 def load_catalogue(path: str | Path) -> Catalogue:

@@ -166,12 +166,12 @@ def test_physics_imports_nothing_above_it(graph):
 def test_every_subpackage_is_installed_under_the_distributions_name():
     cfg = tomllib.loads((REPO / "pyproject.toml").read_text(encoding="utf-8"))
     tool = cfg["tool"]["setuptools"]
-    assert tool["package-dir"] == {PKG: "optimiser"}
+    assert tool["package-dir"] == {PKG: "optimiser", f"{PKG}.duty_cycles": "duty_cycles"}
     folders = {
         module_name(p.parent / "__init__.py") if p.parent != PKG_DIR else PKG
         for p in PKG_DIR.rglob("__init__.py")
     }
-    assert set(tool["packages"]) == folders
+    assert set(tool["packages"]) == folders | {f"{PKG}.duty_cycles"}
     assert cfg["project"]["scripts"]["stowflow"] == "stowflow.cli:entry"
 
 
@@ -199,3 +199,33 @@ def test_layer_table_covers_every_module(graph):
         if not any(name == k or name.startswith(k + ".") for k in LAYERS):
             missing[name.rsplit(".", 1)[0]].append(name)
     assert not missing
+
+
+@pytest.mark.slow
+def test_a_wheel_installs_stowflow_with_its_data_and_no_optimiser(tmp_path):
+    # A regular (non-editable) build: the import name is stowflow, the folder name is not
+    # installed, and the nitrogen table, report assets and demo data travel with it.
+    import subprocess
+    import sys
+    import zipfile
+
+    out = subprocess.run(
+        [sys.executable, "-m", "pip", "wheel", "-q", "--no-deps", "-w", str(tmp_path), str(REPO)],
+        capture_output=True,
+        text=True,
+        timeout=600,
+    )
+    assert out.returncode == 0, out.stderr[-2000:]
+    (wheel,) = tmp_path.glob("stowflow-*.whl")
+    names = zipfile.ZipFile(wheel).namelist()
+    tops = {n.split("/")[0] for n in names if not n.split("/")[0].endswith(".dist-info")}
+    assert tops == {"stowflow"}
+    for needed in (
+        "stowflow/physics/data/nitrogen_span2000.npz",
+        "stowflow/report/style.css",
+        "stowflow/web/templates/base.html",
+        "stowflow/duty_cycles/catalogue.toml",
+        "stowflow/duty_cycles/forming_press.csv",
+        "stowflow/duty_cycles/motions/motions_demo.csv",
+    ):
+        assert needed in names, needed
