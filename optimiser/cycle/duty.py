@@ -175,14 +175,24 @@ class DutyCycle:
         """Oil volume drawn per cycle, Σ flow·dt, [m³]."""
         return float(np.sum(self.flow) * self.dt)
 
-    def frame(self) -> pd.DataFrame:
+    def to_frame(self) -> pd.DataFrame:
         """The steps as a table in the trade's units.
 
         Returns
         -------
         pandas.DataFrame
-            Indexed by ``time [s]`` (step start); columns ``demand [L/min]``,
-            ``required_pressure [bar]`` (gauge; NaN without pressure) and ``label``.
+            Indexed by ``time [s]`` (step start); columns ``flow [L/min]`` (the demand, the
+            mean over the step), ``required_pressure [bar]`` (gauge, the maximum within the
+            step, ``min_pressure`` applied; NaN without pressure) and ``label``.
+
+        Examples
+        --------
+        >>> text = "duration [s], flow [L/min], pressure [bar]\\n2, 120, 200\\n8, 0, 50"
+        >>> f = parse_cycle_text(text).to_frame()
+        >>> f.index.name, list(f.columns)
+        ('time [s]', ['flow [L/min]', 'required_pressure [bar]', 'label'])
+        >>> f.iloc[:2].to_dict("list")
+        {'flow [L/min]': [120.0, 0.0], 'required_pressure [bar]': [200.0, 50.0], 'label': ['', '']}
         """
         if self.pressure is None:
             required = np.full(self.n_steps, np.nan)
@@ -190,7 +200,7 @@ class DutyCycle:
             required = to_unit(abs_to_gauge(self.pressure, self.p_ambient), "bar", "pressure")
         return pd.DataFrame(
             {
-                "demand [L/min]": to_unit(self.flow, "L/min", "flow"),
+                "flow [L/min]": to_unit(self.flow, "L/min", "flow"),
                 "required_pressure [bar]": required,
                 "label": list(self.labels),
             },

@@ -32,6 +32,7 @@ __all__ = [
     "schedule_frame",
     "spec_csv",
     "spec_rows",
+    "traces_frame",
 ]
 
 #: Schema tag of design.json.
@@ -89,9 +90,9 @@ def design_record(result) -> dict:
         JSON-ready (no NaN: missing numbers are None).  Pressures bar gauge, volumes L, flows
         L/min, power kW, energy kWh, time s, prices in ``costs.currency``.
     """
-    d, s, v, _c = result.design, result.settings, result.verification, result.comparison
-    bar = content.bar_g
+    d, s = result.design, result.settings
     kind, n = _process(d.process)
+    # The key order is the file's: sections filled in later keep their place.
     rec: dict = {
         "schema": SCHEMA,
         "status": d.status,
@@ -105,95 +106,21 @@ def design_record(result) -> dict:
             "max": _num(kelvin_to_celsius(s.t_max), 3),
             "precharge_reference": 20.0,
         },
-        "accumulator": None,
+        "accumulator": _accumulator_record(result),
         "pump": None,
         "motor": None,
-        "setpoints": {"load_below_bar": None, "unload_above_bar": None},
+        "setpoints": _setpoints_record(result),
         "baseline": _baseline_record(result, "fixed"),
-        "verification": {"passed": None if v is None else bool(v.passed), "min_margin_bar": None},
-        "costs": {},
+        "verification": _verification_record(result),
+        "costs": _costs_record(result),
     }
-    if d.feasible and d.bank is not None:
-        b = d.bank
-        rec["accumulator"] = {
-            "type": b.type,
-            "nominal_volume_l": _num(to_unit(b.option.nominal_volume, "L", "volume"), 6),
-            "count": int(b.count),
-            "total_gas_volume_l": _num(to_unit(b.gas_volume, "L", "volume"), 6),
-            "precharge_bar_at_20c": _num(bar(b.precharge, result), 3),
-            "min_pressure_bar": _num(bar(d.p_min, result), 3),
-            "max_pressure_bar": _num(bar(d.p_max, result), 3),
-            "max_allowable_pressure_bar": _num(bar(b.option.max_pressure, result), 3),
-            "name": b.option.name,
-            "unit_price": _num(b.option.price),
-        }
-        hint = spec.category_hint(result)
-        if hint is not None:
-            rec["accumulator"]["pressure_equipment_category"] = {
-                "category": hint[0],
-                "shell_volume_l": _num(hint[3], 6),
-                "note": hint[1],
-            }
-        table = spec.precharge_table(result)
-        rec["accumulator"]["precharge_table"] = [
-            {"temperature_c": _num(t, 3), "precharge_bar": _num(p, 3)}
-            for t, p in zip(table["temperature [°C]"], table["precharge [bar]"], strict=True)
-        ]
     if d.feasible:
         rec["pump"] = _pump_record(d.pump, result)
         rec["motor"] = _motor_record(d.motor)
-        rec["relief_bar"] = _num(bar(d.relief, result), 3)
+        rec["relief_bar"] = _num(content.bar_g(d.relief, result), 3)
         rec["installed_power_kw"] = _num(to_unit(d.installed_power, "kW", "power"), 6)
-    sp = content.setpoints_bar(result)
-    rec["setpoints"] = {
-        "load_below_bar": _num(sp.get("load_below"), 3),
-        "unload_above_bar": _num(sp.get("unload_above"), 3),
-        "source": "time-domain verification" if sp else "not derived (no verification)",
-    }
-    for key in ("load_below_stroke", "unload_above_stroke"):
-        if key in sp:
-            rec["setpoints"][key] = _num(sp[key], 4)
-    if v is not None:
-        rec["verification"] = {
-            "passed": bool(v.passed),
-            "min_margin_bar": _num(to_unit(v.min_margin, "bar", "pressure"), 3),
-            "controller": v.controller,
-            "reason": v.reason,
-            "time_constant_s": _num(v.time_constant),
-            "gas_model": v.gas_model,
-            "elapsed_s": _num(v.elapsed, 3),
-            "runs": [
-                {k: _jsonnum(x) for k, x in r.items()} for r in content.verification_rows(result)
-            ],
-            "notes": list(v.notes),
-        }
-    rec["costs"] = _costs_record(result)
-    lb = d.lower_bound_power
-    rec["lower_bound_power_kw"] = _num(to_unit(lb, "kW", "power"), 4)
-    rec["installed_to_lower_bound_ratio"] = (
-        _num(d.installed_power / lb, 4) if d.feasible and lb > 0 else None
-    )
-    rec["levels"] = {
-        "installed_power_kw": _num(
-            to_unit(d.levels.get("installed_power [W]", math.nan), "kW", "power"), 6
-        ),
-        "capex": _num(d.levels.get("capex")),
-        "energy_per_cycle_kj": _num(
-            to_unit(d.levels.get("energy_per_cycle [J]", math.nan), "kJ", "energy"), 4
-        ),
-    }
-    rec["baselines"] = [_baseline_record(result, k) for k in ("fixed", "compensated")]
-    st = d.stats
-    rec["search"] = {
-        "candidates": st.candidates,
-        "families_solved": st.families_solved,
-        "block": st.block,
-        "screen_time_s": _num(st.screen_time, 4),
-        "build_time_s": _num(st.build_time, 4),
-        "solve_time_s": _num(st.solve_time, 4),
-        "total_time_s": _num(st.total_time, 4),
-        "best_bound_kj": _num(to_unit(d.best_bound, "kJ", "energy"), 4),
-    }
+    rec |= _power_records(result)
+    rec["search"] = _search_record(d)
     rec["attempts"] = [
         {
             "extra_pressure_max_bar": _num(to_unit(a.extra_pressure_max, "bar", "pressure"), 3),
@@ -210,6 +137,109 @@ def design_record(result) -> dict:
     rec["safety"] = [*list(content.SAFETY_CAUTIONS), content.DISCLAIMER]
     rec["generator"] = f"stowflow {__version__}"
     return to_jsonable(rec)
+
+
+def _accumulator_record(result) -> dict | None:
+    """The bank in trade units with its category hint and precharge table (None without)."""
+    d = result.design
+    if not d.feasible or d.bank is None:
+        return None
+    b = d.bank
+    bar = content.bar_g
+    rec = {
+        "type": b.type,
+        "nominal_volume_l": _num(to_unit(b.option.nominal_volume, "L", "volume"), 6),
+        "count": int(b.count),
+        "total_gas_volume_l": _num(to_unit(b.gas_volume, "L", "volume"), 6),
+        "precharge_bar_at_20c": _num(bar(b.precharge, result), 3),
+        "min_pressure_bar": _num(bar(d.p_min, result), 3),
+        "max_pressure_bar": _num(bar(d.p_max, result), 3),
+        "max_allowable_pressure_bar": _num(bar(b.option.max_pressure, result), 3),
+        "name": b.option.name,
+        "unit_price": _num(b.option.price),
+    }
+    hint = spec.category_hint(result)
+    if hint is not None:
+        rec["pressure_equipment_category"] = {
+            "category": hint[0],
+            "shell_volume_l": _num(hint[3], 6),
+            "note": hint[1],
+        }
+    table = spec.precharge_table(result)
+    rec["precharge_table"] = [
+        {"temperature_c": _num(t, 3), "precharge_bar": _num(p, 3)}
+        for t, p in zip(table["temperature [°C]"], table["precharge [bar]"], strict=True)
+    ]
+    return rec
+
+
+def _setpoints_record(result) -> dict:
+    """The switch settings the verification derived, bar gauge / stroke fraction."""
+    sp = content.setpoints_bar(result)
+    rec = {
+        "load_below_bar": _num(sp.get("load_below"), 3),
+        "unload_above_bar": _num(sp.get("unload_above"), 3),
+        "source": "time-domain verification" if sp else "not derived (no verification)",
+    }
+    for key in ("load_below_stroke", "unload_above_stroke"):
+        if key in sp:
+            rec[key] = _num(sp[key], 4)
+    return rec
+
+
+def _verification_record(result) -> dict:
+    """The time-domain verdict with one row per controller run."""
+    v = result.verification
+    if v is None:
+        return {"passed": None, "min_margin_bar": None}
+    return {
+        "passed": bool(v.passed),
+        "min_margin_bar": _num(to_unit(v.min_margin, "bar", "pressure"), 3),
+        "controller": v.controller,
+        "reason": v.reason,
+        "time_constant_s": _num(v.time_constant),
+        "gas_model": v.gas_model,
+        "elapsed_s": _num(v.elapsed, 3),
+        "runs": [{k: _jsonnum(x) for k, x in r.items()} for r in content.verification_rows(result)],
+        "notes": list(v.notes),
+    }
+
+
+def _power_records(result) -> dict:
+    """Lower bound of the installed power, the objective's levels and both baselines."""
+    d = result.design
+    lb = d.lower_bound_power
+    return {
+        "lower_bound_power_kw": _num(to_unit(lb, "kW", "power"), 4),
+        "installed_to_lower_bound_ratio": (
+            _num(d.installed_power / lb, 4) if d.feasible and lb > 0 else None
+        ),
+        "levels": {
+            "installed_power_kw": _num(
+                to_unit(d.levels.get("installed_power [W]", math.nan), "kW", "power"), 6
+            ),
+            "capex": _num(d.levels.get("capex")),
+            "energy_per_cycle_kj": _num(
+                to_unit(d.levels.get("energy_per_cycle [J]", math.nan), "kJ", "energy"), 4
+            ),
+        },
+        "baselines": [_baseline_record(result, k) for k in ("fixed", "compensated")],
+    }
+
+
+def _search_record(d) -> dict:
+    """What the search did and how long it took, [s]."""
+    st = d.stats
+    return {
+        "candidates": st.candidates,
+        "families_solved": st.families_solved,
+        "block": st.block,
+        "screen_time_s": _num(st.screen_time, 4),
+        "build_time_s": _num(st.build_time, 4),
+        "solve_time_s": _num(st.solve_time, 4),
+        "total_time_s": _num(st.total_time, 4),
+        "best_bound_kj": _num(to_unit(d.best_bound, "kJ", "energy"), 4),
+    }
 
 
 def _jsonnum(x):
@@ -337,11 +367,11 @@ def schedule_frame(result) -> pd.DataFrame:
         (the cycle's requirement without the line-loss allowance) and ``label``.  Without a
         design the design columns are empty.
     """
-    cyc = result.cycle.frame()
+    cyc = result.cycle.to_frame()
     sch = result.design.schedule
     n = result.cycle.n_steps
     out = pd.DataFrame({"time [s]": cyc.index.to_numpy(dtype=float)})
-    out["demand [L/min]"] = cyc["demand [L/min]"].to_numpy()
+    out["demand [L/min]"] = cyc["flow [L/min]"].to_numpy()
     if sch is not None and not sch.empty and len(sch) == n:
         bar = content.bar_g
         out["pump_loaded"] = sch["pump_loaded [-]"].to_numpy().astype(int)
@@ -363,6 +393,62 @@ def schedule_frame(result) -> pd.DataFrame:
             out[col] = out[col].round(9 if col == "time [s]" else 6)
     out["label"] = [neutralise(x) for x in cyc["label"]]
     return out
+
+
+def traces_frame(verification, p_ambient: float) -> pd.DataFrame:
+    """Every simulated run's steady-state cycle in trade units, one block of rows per run.
+
+    Parameters
+    ----------
+    verification : Verification
+        A time-domain verification (:func:`stowflow.simulation.verify.verify`).
+    p_ambient : float
+        Ambient pressure for absolute → gauge, [Pa].
+
+    Returns
+    -------
+    pandas.DataFrame
+        The columns of ``simulation.csv`` (``stowflow simulate --out``): ``controller``,
+        ``temperature [°C]`` (the run's), ``time [s]`` (step start), ``pressure [bar]``,
+        ``pressure_min [bar]``, ``required_pressure [bar]`` (gauge, line loss included),
+        ``gas_temperature [°C]``, ``accumulator_oil [L]``, ``pump_loaded`` (loaded fraction of
+        the step, [-]), ``pump_flow [L/min]``, ``relief_flow [L/min]``, ``demand [L/min]``,
+        ``bank_flow [L/min]`` (positive out of the bank).
+    """
+    blocks = []
+    for r in verification.runs:
+        tr = r.trace
+
+        def bar(col: str, tr=tr) -> np.ndarray:
+            return to_unit(tr[col].to_numpy() - p_ambient, "bar", "pressure")
+
+        def lpm(col: str, tr=tr) -> np.ndarray:
+            return to_unit(tr[col].to_numpy(), "L/min", "flow")
+
+        blocks.append(
+            pd.DataFrame(
+                {
+                    "controller": r.controller,
+                    "temperature [°C]": round(kelvin_to_celsius(r.temperature), 3),
+                    "time [s]": tr.index.to_numpy(float),
+                    "pressure [bar]": bar("pressure [Pa]"),
+                    "pressure_min [bar]": bar("pressure_min [Pa]"),
+                    "required_pressure [bar]": bar("required_pressure [Pa]"),
+                    "gas_temperature [°C]": kelvin_to_celsius(tr["gas_temperature [K]"].to_numpy()),
+                    "accumulator_oil [L]": to_unit(
+                        tr["accumulator_oil [m³]"].to_numpy(), "L", "volume"
+                    ),
+                    "pump_loaded": tr["pump_loaded [-]"].to_numpy(),
+                    "pump_flow [L/min]": lpm("pump_flow [m³/s]"),
+                    "relief_flow [L/min]": lpm("relief_flow [m³/s]"),
+                    "demand [L/min]": lpm("demand [m³/s]"),
+                    "bank_flow [L/min]": lpm("bank_flow [m³/s]"),
+                }
+            )
+        )
+    if not blocks:
+        return pd.DataFrame()
+    return pd.concat(blocks, ignore_index=True)
 
 
 def neutralise(cell):

@@ -185,7 +185,7 @@ def _closed(t: np.ndarray, y: np.ndarray, end: float) -> tuple[np.ndarray, np.nd
 
 def cycle_figure(result) -> go.Figure:
     """Demand flow [L/min] and required pressure [bar] over one cycle."""
-    frame = result.cycle.frame()
+    frame = result.cycle.to_frame()
     t = frame.index.to_numpy(dtype=float)
     end = result.cycle.duration
     labels = np.array([html.escape(x) for x in frame["label"]] + [""], dtype=object)
@@ -195,7 +195,7 @@ def cycle_figure(result) -> go.Figure:
         vspace=0.1,
         shared_x=True,
     )
-    x, q = _closed(t, frame["demand [L/min]"].to_numpy(), end)
+    x, q = _closed(t, frame["flow [L/min]"].to_numpy(), end)
     data = [
         {
             "type": "scatter",

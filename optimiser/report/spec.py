@@ -79,138 +79,155 @@ def category_hint(result) -> tuple[str, str, float, float] | None:
 
 def spec_items(result) -> list[SpecItem]:
     """The procurement line items of a feasible design (empty when infeasible)."""
-    d, s = result.design, result.settings
+    d = result.design
     if not d.feasible:
         return []
     items: list[SpecItem] = []
-    t_lo, t_hi = kelvin_to_celsius(s.t_min), kelvin_to_celsius(s.t_max)
     if d.bank is not None:
-        bank, opt = d.bank, d.bank.option
-        cat, _, ps, shell_l = category_hint(result)
-        p0 = bar_g(bank.precharge, result)
-        details = [
-            ("type", opt.type),
-            ("nominal volume (gas volume at precharge)", fmt(litres(opt.nominal_volume), "g", "L")),
-            ("count", f"{bank.count}"),
-            ("total gas volume", fmt(litres(bank.gas_volume), "g", "L")),
-            ("maximum allowable pressure PS", fmt(ps, ".0f", "bar")),
-            ("precharge at 20 °C", fmt(p0, ".1f", "bar")),
-            ("precharge gas", "nitrogen only (never air or oxygen)"),
-            (
-                "working pressure window",
-                f"{bar_g(d.p_min, result):.1f} … {bar_g(d.p_max, result):.1f} bar",
-            ),
-            ("fluid", "the machine's hydraulic oil; state type and grade on the order"),
-            ("operating temperature", f"{t_lo:.0f} … {t_hi:.0f} °C"),
-            (
-                "pressure-equipment category hint",
-                f"{cat} (PS·V = {ps * shell_l:,.0f} bar·L per vessel, shell {shell_l:.3g} L)",
-            ),
-        ]
-        if opt.bore > 0:
-            details.insert(2, ("piston bore", fmt(to_unit(opt.bore, "mm", "length"), "g", "mm")))
-        if opt.swept_volume:
-            details.insert(3, ("swept volume", fmt(litres(opt.swept_volume), "g", "L")))
-        items.append(
-            SpecItem(
-                "accumulator",
-                f"{opt.type} accumulator {litres(opt.nominal_volume):g} L, PS {ps:.0f} bar, "
-                f"precharge {p0:.1f} bar nitrogen at 20 °C",
-                bank.count,
-                opt.price,
-                f"catalogue: {opt.name}; category hint {cat} (from memory: check Directive "
-                "2014/68/EU and local codes)",
-                tuple(details),
-            )
-        )
-    pump = d.pump
+        items.append(_accumulator_item(result))
+    items += [_pump_item(result), _motor_item(result), _relief_item(result)]
+    if d.bank is not None:
+        items += [_switch_item(result), _unloading_item(result), _SAFETY_BLOCK]
+    return items
+
+
+def _accumulator_item(result) -> SpecItem:
+    """The bank: type, size, count, PS, precharge and the pressure-equipment hint."""
+    d, s = result.design, result.settings
+    bank, opt = d.bank, d.bank.option
+    t_lo, t_hi = kelvin_to_celsius(s.t_min), kelvin_to_celsius(s.t_max)
+    cat, _, ps, shell_l = category_hint(result)
+    p0 = bar_g(bank.precharge, result)
+    details = [
+        ("type", opt.type),
+        ("nominal volume (gas volume at precharge)", fmt(litres(opt.nominal_volume), "g", "L")),
+        ("count", f"{bank.count}"),
+        ("total gas volume", fmt(litres(bank.gas_volume), "g", "L")),
+        ("maximum allowable pressure PS", fmt(ps, ".0f", "bar")),
+        ("precharge at 20 °C", fmt(p0, ".1f", "bar")),
+        ("precharge gas", "nitrogen only (never air or oxygen)"),
+        (
+            "working pressure window",
+            f"{bar_g(d.p_min, result):.1f} … {bar_g(d.p_max, result):.1f} bar",
+        ),
+        ("fluid", "the machine's hydraulic oil; state type and grade on the order"),
+        ("operating temperature", f"{t_lo:.0f} … {t_hi:.0f} °C"),
+        (
+            "pressure-equipment category hint",
+            f"{cat} (PS·V = {ps * shell_l:,.0f} bar·L per vessel, shell {shell_l:.3g} L)",
+        ),
+    ]
+    if opt.bore > 0:
+        details.insert(2, ("piston bore", fmt(to_unit(opt.bore, "mm", "length"), "g", "mm")))
+    if opt.swept_volume:
+        details.insert(3, ("swept volume", fmt(litres(opt.swept_volume), "g", "L")))
+    return SpecItem(
+        "accumulator",
+        f"{opt.type} accumulator {litres(opt.nominal_volume):g} L, PS {ps:.0f} bar, "
+        f"precharge {p0:.1f} bar nitrogen at 20 °C",
+        bank.count,
+        opt.price,
+        f"catalogue: {opt.name}; category hint {cat} (from memory: check Directive "
+        "2014/68/EU and local codes)",
+        tuple(details),
+    )
+
+
+def _pump_item(result) -> SpecItem:
+    """The catalogue pump: control, displacement, speed, flow, pressure, efficiencies."""
+    pump = result.design.pump
     disp = to_unit(pump.displacement, "cm3", "displacement")
     rpm = to_unit(pump.speed, "rpm", "speed")
-    items.append(
-        SpecItem(
-            "pump",
-            f"{_PUMP_WORDS.get(pump.control, pump.control)} pump {disp:g} cm³/rev at {rpm:g} "
-            f"rpm, {lpm(pump.flow):.1f} L/min, "
-            f"max {bar_g(pump.max_pressure, result):.0f} bar",
-            1,
-            pump.price,
-            f"catalogue: {pump.name}",
-            (
-                ("control", pump.control),
-                ("displacement", fmt(disp, "g", "cm³/rev")),
-                ("speed", fmt(rpm, "g", "rpm")),
-                ("effective flow", fmt(lpm(pump.flow), ".1f", "L/min")),
-                ("maximum pressure", fmt(bar_g(pump.max_pressure, result), ".0f", "bar")),
-                ("volumetric efficiency", fmt(100 * pump.volumetric_efficiency, ".1f", "%")),
-                ("overall efficiency", fmt(100 * pump.overall_efficiency, ".1f", "%")),
-            ),
-        )
+    return SpecItem(
+        "pump",
+        f"{_PUMP_WORDS.get(pump.control, pump.control)} pump {disp:g} cm³/rev at {rpm:g} "
+        f"rpm, {lpm(pump.flow):.1f} L/min, "
+        f"max {bar_g(pump.max_pressure, result):.0f} bar",
+        1,
+        pump.price,
+        f"catalogue: {pump.name}",
+        (
+            ("control", pump.control),
+            ("displacement", fmt(disp, "g", "cm³/rev")),
+            ("speed", fmt(rpm, "g", "rpm")),
+            ("effective flow", fmt(lpm(pump.flow), ".1f", "L/min")),
+            ("maximum pressure", fmt(bar_g(pump.max_pressure, result), ".0f", "bar")),
+            ("volumetric efficiency", fmt(100 * pump.volumetric_efficiency, ".1f", "%")),
+            ("overall efficiency", fmt(100 * pump.overall_efficiency, ".1f", "%")),
+        ),
     )
-    motor = d.motor
+
+
+def _motor_item(result) -> SpecItem:
+    """The catalogue motor: rated power, efficiency and its class."""
+    motor = result.design.motor
     cls = motor.efficiency_class or "not stated"
-    items.append(
-        SpecItem(
-            "motor",
-            f"electric motor {kilowatts(motor.rated_power):g} kW, "
-            + (f"{motor.efficiency_class}, " if motor.efficiency_class else "")
-            + f"efficiency {100 * motor.efficiency:.1f} %",
-            1,
-            motor.price,
-            f"catalogue: {motor.name}",
-            (
-                ("rated power", fmt(kilowatts(motor.rated_power), "g", "kW")),
-                ("efficiency at rated load", fmt(100 * motor.efficiency, ".1f", "%")),
-                ("efficiency class", cls),
-            ),
-        )
+    return SpecItem(
+        "motor",
+        f"electric motor {kilowatts(motor.rated_power):g} kW, "
+        + (f"{motor.efficiency_class}, " if motor.efficiency_class else "")
+        + f"efficiency {100 * motor.efficiency:.1f} %",
+        1,
+        motor.price,
+        f"catalogue: {motor.name}",
+        (
+            ("rated power", fmt(kilowatts(motor.rated_power), "g", "kW")),
+            ("efficiency at rated load", fmt(100 * motor.efficiency, ".1f", "%")),
+            ("efficiency class", cls),
+        ),
     )
+
+
+def _relief_item(result) -> SpecItem:
+    """The relief valve at the design's setting, for the full pump flow."""
+    d = result.design
+    flow = lpm(d.pump.flow)
     relief = bar_g(d.relief, result)
     guard = ""
     if d.bank is not None:
         ps = bar_g(d.bank.option.max_pressure, result)
         guard = f" (at or below the accumulator's PS {ps:.0f} bar)"
-    items.append(
-        SpecItem(
-            "relief valve",
-            f"pressure relief valve set to {relief:.0f} bar{guard}, for {lpm(pump.flow):.1f} L/min",
-            1,
-            None,
-            "not in the catalogue: to be quoted",
-            (
-                ("cracking pressure setting", fmt(relief, ".0f", "bar")),
-                ("flow capacity at least", fmt(lpm(pump.flow), ".1f", "L/min")),
-                ("protects", "pump line and accumulator bank" if d.bank else "pump line"),
-            ),
-        )
+    return SpecItem(
+        "relief valve",
+        f"pressure relief valve set to {relief:.0f} bar{guard}, for {flow:.1f} L/min",
+        1,
+        None,
+        "not in the catalogue: to be quoted",
+        (
+            ("cracking pressure setting", fmt(relief, ".0f", "bar")),
+            ("flow capacity at least", fmt(flow, ".1f", "L/min")),
+            ("protects", "pump line and accumulator bank" if d.bank else "pump line"),
+        ),
     )
-    if d.bank is not None:
-        items.append(_switch_item(result))
-        items.append(
-            SpecItem(
-                "unloading valve",
-                f"solenoid unloading valve for {lpm(pump.flow):.1f} L/min, standby at most "
-                f"{bar_delta(s.standby_pressure):.0f} bar",
-                1,
-                None,
-                "not in the catalogue: to be quoted",
-                (("flow", fmt(lpm(pump.flow), ".1f", "L/min")),),
-            )
-        )
-        items.append(
-            SpecItem(
-                "accumulator safety block",
-                "shut-off and safety block with automatic discharge valve at shutdown and a "
-                "pressure gauge port",
-                1,
-                None,
-                "one per bank (common practice, no published source); not in the catalogue",
-                (
-                    ("function", "isolate the bank, discharge it automatically at shutdown"),
-                    ("gauge port", "to check 'discharged' before any work"),
-                ),
-            )
-        )
-    return items
+
+
+def _unloading_item(result) -> SpecItem:
+    """The solenoid unloading valve for the pump flow at the standby pressure."""
+    flow = lpm(result.design.pump.flow)
+    return SpecItem(
+        "unloading valve",
+        f"solenoid unloading valve for {flow:.1f} L/min, standby at most "
+        f"{bar_delta(result.settings.standby_pressure):.0f} bar",
+        1,
+        None,
+        "not in the catalogue: to be quoted",
+        (("flow", fmt(flow, ".1f", "L/min")),),
+    )
+
+
+#: One shut-off and safety block per bank (common practice, no published source).
+_SAFETY_BLOCK = SpecItem(
+    "accumulator safety block",
+    "shut-off and safety block with automatic discharge valve at shutdown and a "
+    "pressure gauge port",
+    1,
+    None,
+    "one per bank (common practice, no published source); not in the catalogue",
+    (
+        ("function", "isolate the bank, discharge it automatically at shutdown"),
+        ("gauge port", "to check 'discharged' before any work"),
+    ),
+)
 
 
 def _switch_item(result) -> SpecItem:

@@ -61,10 +61,10 @@ def test_table_keeps_the_input_rows_in_si():
 
 
 def test_frame_is_in_trade_units_indexed_by_time():
-    f = parse_cycle_text(PHASES).frame()
+    f = parse_cycle_text(PHASES).to_frame()
     assert f.index.name == "time [s]"
-    assert list(f.columns) == ["demand [L/min]", "required_pressure [bar]", "label"]
-    assert f["demand [L/min]"].iloc[0] == pytest.approx(120.0, rel=1e-12)
+    assert list(f.columns) == ["flow [L/min]", "required_pressure [bar]", "label"]
+    assert f["flow [L/min]"].iloc[0] == pytest.approx(120.0, rel=1e-12)
     assert f["required_pressure [bar]"].tolist() == pytest.approx([200, 50, 50, 50, 50])
 
 
