@@ -562,6 +562,22 @@ def check_limits(
             f"{_bar(max_allowable_pressure)}"
         )
         out.append(Violation("ps", msg))
+    unit = (peak_unit_flow, nominal_volume, bore, max_flow, oil_exchange, swept_volume)
+    return out + _unit_violations(t, rules, *unit)
+
+
+def _unit_violations(
+    t: AccumulatorType,
+    rules: TypeRules,
+    peak_unit_flow: float | None,
+    nominal_volume: float | None,
+    bore: float | None,
+    max_flow: float | None,
+    oil_exchange: float | None,
+    swept_volume: float | None,
+) -> list[Violation]:
+    """The limits of one unit's flow and swept volume that :func:`check_limits` checks."""
+    out: list[Violation] = []
     if peak_unit_flow is not None:
         limit = unit_flow_limit(t, nominal_volume or 0.0, bore, max_flow, rules)
         if peak_unit_flow > limit:
