@@ -26,9 +26,14 @@ if TYPE_CHECKING:  # pragma: no cover - typing only
     import pint
 
 __all__ = [
+    "BAR",
     "DIMENSIONS",
+    "KW",
+    "LITRE",
+    "LPM",
     "P_AMBIENT",
     "T_REF",
+    "ZERO_CELSIUS",
     "Dimension",
     "abs_to_gauge",
     "celsius_to_kelvin",
@@ -46,6 +51,20 @@ P_AMBIENT: float = 101_325.0
 
 #: Reference temperature at which precharge is stated: 20 °C, [K].
 T_REF: float = 293.15
+
+# Trade units as SI factors, for constants and examples written in the trade's units
+# (``60 * BAR``); converting input and output goes through pint (:func:`parse_quantity`,
+# :func:`to_unit`).
+#: One bar, [Pa].
+BAR: float = 1e5
+#: One litre, [m³].
+LITRE: float = 1e-3
+#: One litre per minute, [m³/s].
+LPM: float = 1e-3 / 60
+#: One kilowatt, [W].
+KW: float = 1e3
+#: 0 °C on the kelvin scale, [K] (ITS-90).
+ZERO_CELSIUS: float = 273.15
 
 Dimension = Literal[
     "time", "flow", "pressure", "volume", "power", "displacement", "speed", "length", "energy"

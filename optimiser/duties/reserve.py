@@ -346,6 +346,43 @@ def _sized(motions, p_c, leakage, standby_time, p0_ref, proc, model, ts):
     return np.array(v0)
 
 
+def _sized_by_process(args: tuple, proc, model: str, ts) -> tuple[np.ndarray, ...]:
+    """V0 per temperature [m³] for ``proc``, and for the adiabatic and isothermal processes.
+
+    ``args`` is ``(motions, charge pressure, leakage, stand-by time, precharge)`` as for
+    :func:`_sized`; a process already asked for is not sized twice.
+    """
+    need = _sized(*args, proc, model, ts)
+    adiabatic = (
+        need if proc.kind == "adiabatic" else _sized(*args, parse_process("adiabatic"), model, ts)
+    )
+    isothermal = (
+        need if proc.kind == "isothermal" else _sized(*args, parse_process("isothermal"), model, ts)
+    )
+    return need, adiabatic, isothermal
+
+
+def _lowest_pressure(v0, motions, p_c, leakage, standby_time, p0_ref, proc, model, ts) -> float:
+    """Lowest pressure [Pa] the accumulator of gas volume ``v0`` [m³] reaches at any T in ts."""
+    rho0 = float(density(p0_ref, T_REF, model))
+    cum = _draws(motions, leakage)
+    return min(
+        float(_states(rho0 * v0, rho0, t, p_c, leakage * standby_time, cum, proc, model)[0][-1])
+        for t in ts
+    )
+
+
+def _per_temperature(ts, p0_ref: float, model: str, need) -> pd.DataFrame:
+    """Precharge and V0 at each temperature (trade units), :class:`ReserveResult`'s table."""
+    return pd.DataFrame(
+        {
+            "temperature [°C]": [celsius(t) for t in ts],
+            "precharge [bar]": [bar_g(float(precharge_at(p0_ref, t, model))) for t in ts],
+            "gas_volume [L]": [litre(x) for x in need],
+        }
+    )
+
+
 def size_reserve(
     motions,
     charge_pressure: float,
@@ -414,14 +451,8 @@ def size_reserve(
     p0_ref, by_rule = resolve_precharge(precharge, acc_type, p_low, T_max, model)
     ts = _temperature_grid(T_min, T_max)
     args = (motions, charge_pressure, leakage, standby_time, p0_ref)
-    need = _sized(*args, proc, model, ts)
+    need, adiabatic, isothermal = _sized_by_process(args, proc, model, ts)
     k = int(np.argmax(need))
-    adiabatic = (
-        need if proc.kind == "adiabatic" else _sized(*args, parse_process("adiabatic"), model, ts)
-    )
-    isothermal = (
-        need if proc.kind == "isothermal" else _sized(*args, parse_process("isothermal"), model, ts)
-    )
     v0, t_worst = float(need[k]), float(ts[k])
     states = reserve_pressures(
         v0,
@@ -434,24 +465,9 @@ def size_reserve(
         process=proc,
         model=model,
     )
-    per_t = pd.DataFrame(
-        {
-            "temperature [°C]": [celsius(t) for t in ts],
-            "precharge [bar]": [bar_g(float(precharge_at(p0_ref, t, model))) for t in ts],
-            "gas_volume [L]": [litre(x) for x in need],
-        }
-    )
+    per_t = _per_temperature(ts, p0_ref, model, need)
     # The separator rule is judged at the lowest pressure the sized accumulator reaches.
-    rho0 = float(density(p0_ref, T_REF, model))
-    cum = _draws(motions, leakage)
-    p_reached = min(
-        float(
-            _states(rho0 * v0, rho0, t, charge_pressure, leakage * standby_time, cum, proc, model)[
-                0
-            ][-1]
-        )
-        for t in ts
-    )
+    p_reached = _lowest_pressure(v0, *args, proc, model, ts)
     limits = type_report(
         acc_type,
         p0_ref,

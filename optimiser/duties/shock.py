@@ -456,17 +456,7 @@ def size_shock(
         dimensions or velocity, precharge at or above the operating pressure.
     """
     T_max = T_min if T_max is None else T_max
-    check_positive("pipe length", length, length, "m")
-    check_positive("flow velocity", velocity, velocity, "m/s")
-    if not (math.isfinite(p_operating) and p_operating > P_AMBIENT):
-        raise SizingError(
-            f"operating pressure must be above ambient; got {bar_g(p_operating):g} bar"
-        )
-    if not (math.isfinite(p_limit) and p_limit > p_operating):
-        raise SizingError(
-            f"allowed peak {bar_g(p_limit):g} bar must exceed the operating pressure "
-            f"{bar_g(p_operating):g} bar (gauge)"
-        )
+    _check_duty(length, velocity, p_operating, p_limit)
     a = wave_speed(bulk_modulus, oil_density, diameter, wall, pipe_modulus, constraint)
     a_rigid = wave_speed(bulk_modulus, oil_density)
     surge = surge_pressure(oil_density, a, velocity, length, closure_time)
@@ -474,42 +464,16 @@ def size_shock(
     e_k = column_energy(oil_density, area, length, velocity)
     p0_ref, by_rule = resolve_precharge(precharge, acc_type, p_operating, T_max, model)
     ts = _temperature_grid(T_min, T_max)
-    p0_T = np.atleast_1d(precharge_at(p0_ref, ts, model))
-    if not np.all(p0_T < p_operating):
-        t_bad = float(ts[np.argmax(p0_T >= p_operating)])
-        raise SizingError(
-            f"at {celsius(t_bad):.4g} °C the precharge reaches the operating pressure "
-            f"{bar_g(p_operating):g} bar, so the accumulator is empty; lower the precharge"
-        )
+    p0_T = _precharge_below(p0_ref, ts, model, p_operating)
     gas = gas_absorption(p_operating, p_limit, ts, model)
     mass = e_k / gas["energy"]
-    rho0 = float(density(p0_ref, T_REF, model))
-    v0 = mass / rho0
+    v0 = mass / float(density(p0_ref, T_REF, model))
     k = int(np.argmax(v0))
-    v1 = mass / gas["rho1"]
-    per_t = pd.DataFrame(
-        {
-            "temperature [°C]": [celsius(t) for t in ts],
-            "precharge [bar]": [bar_g(p) for p in p0_T],
-            "gas_volume_at_operating_pressure [L]": [litre(x) for x in v1],
-            "gas_volume [L]": [litre(x) for x in v0],
-            "oil_taken_up [L]": [litre(x) for x in mass * (1 / gas["rho1"] - 1 / gas["rho2"])],
-            "gas_temperature_at_peak [°C]": [celsius(t) for t in gas["T2"]],
-        }
-    )
-    # Linearised gas spring on the column: ω² = κ p1 A / (ρ L V1); quarter period to stop.
-    omega = math.sqrt(KAPPA * p_operating * area / (oil_density * length * float(v1[k])))
-    t_stop = math.pi / (2.0 * omega)
+    per_t = _per_temperature(ts, p0_T, mass, v0, gas)
+    t_stop = _stopping_time(p_operating, area, oil_density, length, float(mass[k] / gas["rho1"][k]))
+    v_req = float(v0[k])
     limits = type_report(
-        acc_type,
-        p0_ref,
-        p_operating,
-        p_limit,
-        T_min,
-        T_max,
-        float(v0[k]),
-        model,
-        max_allowable_pressure,
+        acc_type, p0_ref, p_operating, p_limit, T_min, T_max, v_req, model, max_allowable_pressure
     )
     result = ShockResult(
         length=float(length),
@@ -529,7 +493,7 @@ def size_shock(
         column_energy=e_k,
         precharge_ref=p0_ref,
         precharge_by_rule=by_rule,
-        required_gas_volume=float(v0[k]),
+        required_gas_volume=v_req,
         worst_temperature=float(ts[k]),
         per_temperature=per_t,
         stopping_time=t_stop,
@@ -537,6 +501,59 @@ def size_shock(
         model=model,
     )
     return _with_notes(result)
+
+
+def _check_duty(length: float, velocity: float, p_operating: float, p_limit: float) -> None:
+    """Refuse a column or pressures that :func:`size_shock` cannot size for."""
+    check_positive("pipe length", length, length, "m")
+    check_positive("flow velocity", velocity, velocity, "m/s")
+    if not (math.isfinite(p_operating) and p_operating > P_AMBIENT):
+        raise SizingError(
+            f"operating pressure must be above ambient; got {bar_g(p_operating):g} bar"
+        )
+    if not (math.isfinite(p_limit) and p_limit > p_operating):
+        raise SizingError(
+            f"allowed peak {bar_g(p_limit):g} bar must exceed the operating pressure "
+            f"{bar_g(p_operating):g} bar (gauge)"
+        )
+
+
+def _precharge_below(p0_ref: float, ts: np.ndarray, model: str, p_operating: float) -> np.ndarray:
+    """Precharge at each temperature [Pa]; SizingError where it reaches the operating pressure."""
+    p0_T = np.atleast_1d(precharge_at(p0_ref, ts, model))
+    if not np.all(p0_T < p_operating):
+        t_bad = float(ts[np.argmax(p0_T >= p_operating)])
+        raise SizingError(
+            f"at {celsius(t_bad):.4g} °C the precharge reaches the operating pressure "
+            f"{bar_g(p_operating):g} bar, so the accumulator is empty; lower the precharge"
+        )
+    return p0_T
+
+
+def _per_temperature(ts, p0_T, mass, v0, gas: dict) -> pd.DataFrame:
+    """The per-temperature table of :class:`ShockResult` (trade units)."""
+    v1 = mass / gas["rho1"]
+    return pd.DataFrame(
+        {
+            "temperature [°C]": [celsius(t) for t in ts],
+            "precharge [bar]": [bar_g(p) for p in p0_T],
+            "gas_volume_at_operating_pressure [L]": [litre(x) for x in v1],
+            "gas_volume [L]": [litre(x) for x in v0],
+            "oil_taken_up [L]": [litre(x) for x in mass * (1 / gas["rho1"] - 1 / gas["rho2"])],
+            "gas_temperature_at_peak [°C]": [celsius(t) for t in gas["T2"]],
+        }
+    )
+
+
+def _stopping_time(
+    p_operating: float, area: float, oil_density: float, length: float, v1: float
+) -> float:
+    """Quarter period of the column on the linearised gas spring, [s].
+
+    ω² = κ p1 A / (ρ L V1), with V1 the gas volume at the operating pressure [m³].
+    """
+    omega = math.sqrt(KAPPA * p_operating * area / (oil_density * length * v1))
+    return math.pi / (2.0 * omega)
 
 
 def _with_notes(r: ShockResult) -> ShockResult:

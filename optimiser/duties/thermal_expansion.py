@@ -271,6 +271,52 @@ def size_thermal(
         Impossible input: T2 ≤ T1, limit not above the start pressure, container growing as
         fast as the oil, precharge at or above the limit.
     """
+    _check_duty(
+        oil_volume, T1, T2, p_start, p_limit, oil_expansion, container_expansion, bulk_modulus
+    )
+    dv = expansion_volume(oil_volume, T1, T2, oil_expansion, container_expansion)
+    dp = blocked_pressure_rise(oil_volume, dv, bulk_modulus)
+    p0_ref, by_rule = resolve_precharge(precharge, acc_type, p_start, T1, model)
+    f1 = float(oil_fraction(p_start, p0_ref, T1, ISOTHERMAL, model))
+    f2 = float(oil_fraction(p_limit, p0_ref, T2, ISOTHERMAL, model))
+    if not f2 > f1:
+        p0_hot = bar_g(float(precharge_at(p0_ref, T2, model)))
+        raise SizingError(
+            f"at {celsius(T2):.4g} °C the precharge {p0_hot:.4g} bar reaches the limit "
+            f"{bar_g(p_limit):g} bar, so the accumulator takes up no oil; lower the precharge"
+        )
+    v0 = dv / (f2 - f1)
+    ts = np.linspace(T1, T2, N_ROWS)
+    grown = np.asarray(expansion_volume(oil_volume, T1, ts, oil_expansion, container_expansion))
+    table = _pressure_table(ts, grown, oil_volume, bulk_modulus, p_start, p0_ref, f1, v0, model)
+    limits = type_report(
+        acc_type, p0_ref, p_start, p_limit, T1, T1, v0, model, max_allowable_pressure
+    )
+    return ThermalResult(
+        oil_volume=float(oil_volume),
+        T1=float(T1),
+        T2=float(T2),
+        p_start=float(p_start),
+        p_limit=float(p_limit),
+        oil_expansion=float(oil_expansion),
+        container_expansion=float(container_expansion),
+        bulk_modulus=float(bulk_modulus),
+        expansion=float(dv),
+        pressure_rise_without=float(dp),
+        precharge_ref=p0_ref,
+        precharge_by_rule=by_rule,
+        required_gas_volume=float(v0),
+        table=table,
+        limits=limits,
+        model=model,
+        notes=tuple(_notes(p_start, p0_ref, T1, model)),
+    )
+
+
+def _check_duty(
+    oil_volume, T1, T2, p_start, p_limit, oil_expansion, container_expansion, bulk_modulus
+) -> None:
+    """Refuse a volume, temperatures, pressures or coefficients :func:`size_thermal` cannot use."""
     check_positive("blocked-in oil volume", oil_volume, litre(oil_volume), "L")
     check_positive("oil expansion coefficient", oil_expansion, oil_expansion, "1/K")
     check_positive(
@@ -298,27 +344,23 @@ def size_thermal(
             f"the container expands ({container_expansion:g} 1/K) at least as fast as the oil "
             f"({oil_expansion:g} 1/K): no growth to absorb"
         )
-    dv = expansion_volume(oil_volume, T1, T2, oil_expansion, container_expansion)
-    dp = blocked_pressure_rise(oil_volume, dv, bulk_modulus)
-    p0_ref, by_rule = resolve_precharge(precharge, acc_type, p_start, T1, model)
-    f1 = float(oil_fraction(p_start, p0_ref, T1, ISOTHERMAL, model))
-    f2 = float(oil_fraction(p_limit, p0_ref, T2, ISOTHERMAL, model))
-    if not f2 > f1:
-        p0_hot = bar_g(float(precharge_at(p0_ref, T2, model)))
-        raise SizingError(
-            f"at {celsius(T2):.4g} °C the precharge {p0_hot:.4g} bar reaches the limit "
-            f"{bar_g(p_limit):g} bar, so the accumulator takes up no oil; lower the precharge"
-        )
-    v0 = dv / (f2 - f1)
-    ts = np.linspace(T1, T2, N_ROWS)
-    grown = np.asarray(expansion_volume(oil_volume, T1, ts, oil_expansion, container_expansion))
+
+
+def _pressure_table(
+    ts, grown, oil_volume, bulk_modulus, p_start, p0_ref, f1, v0, model
+) -> pd.DataFrame:
+    """Pressure with and without the accumulator at the temperatures ``ts`` [K].
+
+    ``grown`` is the oil's growth at each [m³], ``f1`` the oil fraction stored at the start
+    [-], ``v0`` the gas volume [m³]; the rest as for :func:`size_thermal`.
+    """
     s = np.clip(f1 + grown / v0, 0.0, 1.0 - 1e-12)
     p_with = np.asarray(pressure_at_oil_fraction(s, p0_ref, ts, ISOTHERMAL, model), dtype=float)
     # With the oil taken as incompressible, any growth goes into the gas (p ≥ p0(T)); before
     # any growth the pressure is the start pressure.
     p_with = np.where(s > 0.0, p_with, p_start)
     p0_T = np.asarray(precharge_at(p0_ref, ts, model), dtype=float)
-    table = pd.DataFrame(
+    return pd.DataFrame(
         {
             "temperature [°C]": [celsius(t) for t in ts],
             "growth [L]": [litre(x) for x in grown],
@@ -329,9 +371,9 @@ def size_thermal(
             "precharge [bar]": [bar_g(p) for p in p0_T],
         }
     )
-    limits = type_report(
-        acc_type, p0_ref, p_start, p_limit, T1, T1, v0, model, max_allowable_pressure
-    )
+
+
+def _notes(p_start: float, p0_ref: float, T1: float, model: str) -> list[str]:
     notes = [
         "heating is slow: the gas follows the oil's temperature (isothermal at each "
         "temperature); the sizing neglects the oil's own compression and the pipe's stretch, "
@@ -345,22 +387,4 @@ def size_thermal(
             "the precharge is above the start pressure: the accumulator starts empty and takes "
             "up oil once the pressure passes the precharge"
         )
-    return ThermalResult(
-        oil_volume=float(oil_volume),
-        T1=float(T1),
-        T2=float(T2),
-        p_start=float(p_start),
-        p_limit=float(p_limit),
-        oil_expansion=float(oil_expansion),
-        container_expansion=float(container_expansion),
-        bulk_modulus=float(bulk_modulus),
-        expansion=float(dv),
-        pressure_rise_without=float(dp),
-        precharge_ref=p0_ref,
-        precharge_by_rule=by_rule,
-        required_gas_volume=float(v0),
-        table=table,
-        limits=limits,
-        model=model,
-        notes=tuple(notes),
-    )
+    return notes

@@ -214,13 +214,7 @@ def plan_fill(
         Impossible input: non-positive volumes or counts, target not above ambient, the
         accumulator already above the target.
     """
-    _check("gas volume", volume, f"{volume:g} m³")
-    _check("bottle volume", bottle_volume, f"{bottle_volume:g} m³")
-    if int(bottles) != bottles or bottles < 1:
-        raise SizingError(f"number of bottles must be a whole number ≥ 1; got {bottles}")
-    _check("target precharge", precharge, f"{bar_g(precharge):g} bar", low=P_AMBIENT)
-    _check("bottle pressure", bottle_pressure, f"{bar_g(bottle_pressure):g} bar", low=P_AMBIENT)
-    _check("initial pressure", initial_pressure, f"{bar_g(initial_pressure):g} bar")
+    _check_plan(volume, precharge, bottles, bottle_volume, bottle_pressure, initial_pressure)
     T = float(T_fill)
     target_mass = float(density(precharge, T_REF, model)) * volume
     m0 = float(density(initial_pressure, T, model)) * volume
@@ -241,28 +235,10 @@ def plan_fill(
     options = []
     if not reached:
         rho_res = float(density(residual, T, model))
+        args = (volume, m_end, target_mass, left, bottle_volume, rho_res, T, model)
         if booster is not None:
-            ratio, swept = booster
-            if not (ratio > 1 and swept > 0):
-                raise SizingError(
-                    f"booster needs a pressure ratio > 1 and a stroke > 0; got "
-                    f"{ratio:g}, {swept:g} m³"
-                )
-            v_dead = swept / (ratio - 1.0)  # the clearance that stalls at p_out = r·p_in
-            sp = stroke_transfer(
-                m_end,
-                volume,
-                target_mass,
-                left,
-                bottle_volume,
-                swept,
-                v_dead,
-                rho_residual=rho_res,
-            )
-            label = f"gas booster 1:{ratio:g}, {to_unit(swept, 'L', 'volume'):g} L per stroke"
-            options.append(_option(sp, volume, volume, bottle_volume, T, model, label))
+            options.append(_booster_option(booster, *args))
         if transfer is not None:
-            args = (volume, m_end, target_mass, left, bottle_volume, rho_res, T, model)
             options.append(_transfer_option(transfer, own_piston, *args))
     return FillPlan(
         volume=float(volume),
@@ -281,6 +257,30 @@ def plan_fill(
         model=model,
         notes=tuple(_notes(steps, reached, need, target_T, T, bottles)),
     )
+
+
+def _check_plan(volume, precharge, bottles, bottle_volume, bottle_pressure, initial_pressure):
+    """Refuse volumes, a bottle count or pressures that :func:`plan_fill` cannot plan with."""
+    _check("gas volume", volume, f"{volume:g} m³")
+    _check("bottle volume", bottle_volume, f"{bottle_volume:g} m³")
+    if int(bottles) != bottles or bottles < 1:
+        raise SizingError(f"number of bottles must be a whole number ≥ 1; got {bottles}")
+    _check("target precharge", precharge, f"{bar_g(precharge):g} bar", low=P_AMBIENT)
+    _check("bottle pressure", bottle_pressure, f"{bar_g(bottle_pressure):g} bar", low=P_AMBIENT)
+    _check("initial pressure", initial_pressure, f"{bar_g(initial_pressure):g} bar")
+
+
+def _booster_option(booster, volume, m_end, target_mass, left, V_b, rho_res, T, model):
+    """The gas-booster option: a cylinder whose clearance stalls it at p_out = r·p_in."""
+    ratio, swept = booster
+    if not (ratio > 1 and swept > 0):
+        raise SizingError(
+            f"booster needs a pressure ratio > 1 and a stroke > 0; got {ratio:g}, {swept:g} m³"
+        )
+    v_dead = swept / (ratio - 1.0)  # the clearance that stalls at p_out = r·p_in
+    sp = stroke_transfer(m_end, volume, target_mass, left, V_b, swept, v_dead, rho_residual=rho_res)
+    label = f"gas booster 1:{ratio:g}, {to_unit(swept, 'L', 'volume'):g} L per stroke"
+    return _option(sp, volume, volume, V_b, T, model, label)
 
 
 def _transfer_option(transfer, own, volume, m_end, target_mass, left, V_b, rho_res, T, model):

@@ -25,7 +25,14 @@ from enum import StrEnum
 import numpy as np
 from stowflow.errors import SettingsError
 from stowflow.physics.gas import precharge_at
-from stowflow.units import abs_to_gauge, gauge_to_abs, kelvin_to_celsius, si_factor, to_unit
+from stowflow.units import (
+    BAR,
+    abs_to_gauge,
+    gauge_to_abs,
+    kelvin_to_celsius,
+    si_factor,
+    to_unit,
+)
 
 __all__ = [
     "DEFAULT_RULES",
@@ -62,7 +69,25 @@ class AccumulatorType(StrEnum):
 
 
 def parse_type(name: str | AccumulatorType) -> AccumulatorType:
-    """Return the :class:`AccumulatorType` named ``name`` (SettingsError if unknown)."""
+    """Return the :class:`AccumulatorType` named ``name`` (SettingsError if unknown).
+
+    Parameters
+    ----------
+    name : str or AccumulatorType
+        Type name, any case, surrounding blanks ignored.
+
+    Returns
+    -------
+    AccumulatorType
+        The type.
+
+    Examples
+    --------
+    The project's own type names (regression example, no published source):
+
+    >>> parse_type(" Bladder ").value
+    'bladder'
+    """
     try:
         return AccumulatorType(str(name).strip().lower())
     except ValueError:
@@ -106,14 +131,15 @@ class TypeRules:
     residual_oil_fraction: float = 0.0
 
 
-_BAR = si_factor("bar", "pressure")
+# L/s through pint, like every flow the catalogue and the reports state in L/s (pint's factor
+# is 1e-3 plus one unit in the last place), so that 120 L/s reads back as exactly 120.
 _LPS = si_factor("L/s", "flow")
 
 #: Default limits per type.  Each value is common practice, no published source; edit them
 #: here or override them per catalogue with a ``[limits.<type>]`` table.
 DEFAULT_RULES: dict[AccumulatorType, TypeRules] = {
     AccumulatorType.GAS_OVER_OIL: TypeRules(
-        max_pressure_gauge=60 * _BAR,  # nitrogen dissolves into the oil above about 60 bar
+        max_pressure_gauge=60 * BAR,  # nitrogen dissolves into the oil above about 60 bar
         precharge_factor=1.0,  # no separator to protect; the residual oil guards the outlet
         residual_oil_fraction=0.10,  # keep 10 % of the shell as oil at the lowest pressure
         # flow: not limited by the type (ports and piping limit it)
@@ -130,11 +156,11 @@ DEFAULT_RULES: dict[AccumulatorType, TypeRules] = {
         max_flow=6 * _LPS,  # much lower discharge, about 6 L/s
     ),
     AccumulatorType.PISTON: TypeRules(
-        precharge_margin=5 * _BAR,  # a few bar below the minimum working pressure
+        precharge_margin=5 * BAR,  # a few bar below the minimum working pressure
         max_piston_speed=3.5,  # m/s
     ),
     AccumulatorType.PISTON_BOTTLES: TypeRules(
-        precharge_margin=5 * _BAR,
+        precharge_margin=5 * BAR,
         max_piston_speed=3.5,  # the swept volume of the piston unit limits the oil exchange
     ),
 }
@@ -143,9 +169,9 @@ DEFAULT_RULES: dict[AccumulatorType, TypeRules] = {
 #: allowed, upper bound).
 OVERRIDE_KEYS: dict[str, tuple[str, float, float, bool, float]] = {
     "max_pressure_ratio": ("max_pressure_ratio", 1.0, 1.0, False, math.inf),
-    "max_pressure_bar": ("max_pressure_gauge", _BAR, 0.0, False, math.inf),
+    "max_pressure_bar": ("max_pressure_gauge", BAR, 0.0, False, math.inf),
     "precharge_factor": ("precharge_factor", 1.0, 0.0, False, 1.0),
-    "precharge_margin_bar": ("precharge_margin", _BAR, 0.0, True, math.inf),
+    "precharge_margin_bar": ("precharge_margin", BAR, 0.0, True, math.inf),
     "max_flow_lps": ("max_flow", _LPS, 0.0, False, math.inf),
     "flow_per_volume_lps_per_l": ("flow_per_volume", 1.0, 0.0, False, math.inf),
     "max_piston_speed_m_s": ("max_piston_speed", 1.0, 0.0, False, math.inf),
@@ -173,6 +199,16 @@ def rules_for(acc_type: str | AccumulatorType, overrides: dict | None = None) ->
     ------
     SettingsError
         Unknown type or key, or a value that is not a number in its range.
+
+    Examples
+    --------
+    The bladder's default limit on p2/p0 (common practice, no published source), and the same
+    with a catalogue's override:
+
+    >>> rules_for("bladder").max_pressure_ratio
+    4.0
+    >>> rules_for("bladder", {"max_pressure_ratio": 3.5}).max_pressure_ratio
+    3.5
     """
     t = parse_type(acc_type)
     rules = DEFAULT_RULES[t]
@@ -212,6 +248,15 @@ def shell_volume(
     -------
     float
         Shell volume, [m³] (equal to V0 for the separator types).
+
+    Examples
+    --------
+    Gas-over-oil keeps 10 % of its shell as oil (common practice, no published source), so
+    9 L of gas needs a 10 L shell:
+
+    >>> from stowflow.units import LITRE
+    >>> print(f"{shell_volume('gas-over-oil', 9 * LITRE) / LITRE:.2f} L")
+    10.00 L
     """
     rules = rules or rules_for(acc_type)
     return gas_volume / (1.0 - rules.residual_oil_fraction)
@@ -247,6 +292,17 @@ def unit_flow_limit(
     -------
     float
         Flow limit per unit, [m³/s]; ``inf`` where the type sets none.
+
+    Examples
+    --------
+    Bladder: 2.4 L/s per litre of nominal volume, at most 120 L/s; piston: bore area times
+    3.5 m/s (common practice, no published source):
+
+    >>> from stowflow.units import LITRE
+    >>> print(f"{unit_flow_limit('bladder', 10 * LITRE) / LITRE:.1f} L/s")
+    24.0 L/s
+    >>> print(f"{unit_flow_limit('piston', 20 * LITRE, bore=0.1) / LITRE:.2f} L/s")
+    27.49 L/s
     """
     t = parse_type(acc_type)
     rules = rules or rules_for(t)
@@ -284,6 +340,17 @@ def min_working_pressure_for_precharge(
     -------
     float or numpy.ndarray
         Absolute pressure, [Pa].
+
+    Examples
+    --------
+    Bladder: :math:`p_0/0.9`; piston: :math:`p_0` + 5 bar (common practice, no published
+    source):
+
+    >>> from stowflow.units import BAR
+    >>> print(f"{min_working_pressure_for_precharge('bladder', 90 * BAR) / BAR:.1f} bar")
+    100.0 bar
+    >>> print(f"{min_working_pressure_for_precharge('piston', 90 * BAR) / BAR:.1f} bar")
+    95.0 bar
     """
     rules = rules or rules_for(acc_type)
     return (np.asarray(p0_at_T, dtype=float) + rules.precharge_margin) / rules.precharge_factor
@@ -309,6 +376,17 @@ def max_precharge_for_min_pressure(
     -------
     float or numpy.ndarray
         Absolute precharge at that temperature, [Pa].
+
+    Examples
+    --------
+    Bladder: :math:`0.9\\, p_{min}`; piston: :math:`p_{min}` − 5 bar (common practice, no
+    published source):
+
+    >>> from stowflow.units import BAR
+    >>> print(f"{max_precharge_for_min_pressure('bladder', 100 * BAR) / BAR:.1f} bar")
+    90.0 bar
+    >>> print(f"{max_precharge_for_min_pressure('piston', 100 * BAR) / BAR:.1f} bar")
+    95.0 bar
     """
     rules = rules or rules_for(acc_type)
     return rules.precharge_factor * np.asarray(p_min, dtype=float) - rules.precharge_margin
@@ -334,6 +412,17 @@ def max_pressure_for_precharge(
     -------
     float or numpy.ndarray
         Absolute pressure, [Pa]; inf where the type sets no limit.
+
+    Examples
+    --------
+    Bladder: four times the precharge (absolute); gas-over-oil: its 60 bar gauge cap, here in
+    absolute bar (both common practice, no published source):
+
+    >>> from stowflow.units import BAR
+    >>> print(f"{max_pressure_for_precharge('bladder', 50 * BAR) / BAR:.2f} bar")
+    200.00 bar
+    >>> print(f"{max_pressure_for_precharge('gas-over-oil', 50 * BAR) / BAR:.2f} bar")
+    61.01 bar
     """
     rules = rules or rules_for(acc_type)
     p0 = np.asarray(p0_at_T, dtype=float)
@@ -428,6 +517,17 @@ def check_limits(
     -------
     list of Violation
         Empty when every limit holds.
+
+    Examples
+    --------
+    A bladder precharged to 40 bar absolute at 20 °C and charged to 200 bar breaks the rule
+    p2/p0 ≤ 4 at 10 °C (common practice, no published source):
+
+    >>> from stowflow.units import BAR, ZERO_CELSIUS
+    >>> found = check_limits("bladder", 40 * BAR, 100 * BAR, 200 * BAR,
+    ...                      ZERO_CELSIUS + 10, ZERO_CELSIUS + 50)
+    >>> [v.limit for v in found]
+    ['ratio']
     """
     t = parse_type(acc_type)
     rules = rules or rules_for(t)
@@ -462,6 +562,22 @@ def check_limits(
             f"{_bar(max_allowable_pressure)}"
         )
         out.append(Violation("ps", msg))
+    unit = (peak_unit_flow, nominal_volume, bore, max_flow, oil_exchange, swept_volume)
+    return out + _unit_violations(t, rules, *unit)
+
+
+def _unit_violations(
+    t: AccumulatorType,
+    rules: TypeRules,
+    peak_unit_flow: float | None,
+    nominal_volume: float | None,
+    bore: float | None,
+    max_flow: float | None,
+    oil_exchange: float | None,
+    swept_volume: float | None,
+) -> list[Violation]:
+    """The limits of one unit's flow and swept volume that :func:`check_limits` checks."""
+    out: list[Violation] = []
     if peak_unit_flow is not None:
         limit = unit_flow_limit(t, nominal_volume or 0.0, bore, max_flow, rules)
         if peak_unit_flow > limit:
@@ -521,6 +637,16 @@ def pressure_equipment_category(ps_bar_gauge: float, volume_l: float) -> tuple[s
     ----------
     Directive 2014/68/EU of the European Parliament and of the Council on pressure equipment
     (recast), OJ L 189, 27.6.2014, Article 4 and Annex II (from memory).
+
+    Examples
+    --------
+    Directive 2014/68/EU, Annex II, Table 2 (from memory): 330 bar × 16.99 L = 5607 bar·L is
+    above 3000 bar·L, category IV; 200 bar × 4 L = 800 bar·L is category II.
+
+    >>> pressure_equipment_category(330.0, 16.99)[0]
+    'IV'
+    >>> pressure_equipment_category(200.0, 4.0)[0]
+    'II'
     """
     if not (np.isfinite(ps_bar_gauge) and np.isfinite(volume_l)) or volume_l <= 0:
         raise SettingsError(

@@ -154,6 +154,15 @@ def parse_process(text: str | Process) -> Process:
     ------
     SettingsError
         Unknown kind, missing or bad index.
+
+    Examples
+    --------
+    The project's own spelling of a process (regression example, no published source):
+
+    >>> parse_process("polytropic:1.3").n
+    1.3
+    >>> str(parse_process("isentropic"))
+    'adiabatic'
     """
     if isinstance(text, Process):
         return text
@@ -235,6 +244,17 @@ def compressibility(p, T, model: GasModel = "real", *, method: Method = "table")
     -------
     float or numpy.ndarray
         Z with :math:`R_s` = :data:`R_SPECIFIC`, [-].
+
+    Examples
+    --------
+    Nitrogen at 100 bar absolute and 20 °C: CoolProp 8.0.0 (Span et al. 2000) gives
+    Z = 1.0008; the ideal gas has Z = 1.
+
+    >>> from stowflow.units import BAR, T_REF
+    >>> print(f"{compressibility(100 * BAR, T_REF):.4f}")
+    1.0008
+    >>> compressibility(100 * BAR, T_REF, "ideal")
+    1.0
     """
     p, T = _positive("pressure", p, "Pa"), _positive("temperature", T, "K")
     if _model(model) == "ideal":
@@ -267,6 +287,18 @@ def density(p, T, model: GasModel = "real", *, method: Method = "table"):
     -----
     Table accuracy, 0.5–500 bar and −40…150 °C: better than 1e-6 relative (see
     tests/benchmarks/bench_gas.py).
+
+    Examples
+    --------
+    Nitrogen at 100 bar absolute and 20 °C: 114.842 kg/m³ by CoolProp 8.0.0 (Span et al.
+    2000), shown here to the table's accuracy; the ideal-gas law :math:`p/(R_s T)` (Çengel &
+    Boles 2015) gives 114.93 kg/m³.
+
+    >>> from stowflow.units import BAR, T_REF
+    >>> print(f"{density(100 * BAR, T_REF):.2f} kg/m³")
+    114.84 kg/m³
+    >>> print(f"{density(100 * BAR, T_REF, 'ideal'):.2f} kg/m³")
+    114.93 kg/m³
     """
     p, T = _positive("pressure", p, "Pa"), _positive("temperature", T, "K")
     z = 1.0 if _model(model) == "ideal" else z_pT(p, T, method)
@@ -295,6 +327,16 @@ def state_from_density(rho, T, model: GasModel = "real", *, method: Method = "ta
     -------
     GasState
         p [Pa], cv [J/(kg·K)], dpdT_v [Pa/K], u [J/kg], each broadcast over rho and T.
+
+    Examples
+    --------
+    At 114.842 kg/m³ and 20 °C, CoolProp 8.0.0 (Span et al. 2000) gives p = 100.00 bar
+    absolute and :math:`c_v` = 765.98 J/(kg·K):
+
+    >>> from stowflow.units import BAR, T_REF
+    >>> st = state_from_density(114.842, T_REF)
+    >>> print(f"{float(st.p) / BAR:.2f} bar, {float(st.cv):.1f} J/(kg·K)")
+    100.00 bar, 766.0 J/(kg·K)
     """
     rho, T = _positive("density", rho, "kg/m³"), _positive("temperature", T, "K")
     rho, T = np.broadcast_arrays(rho, T)
@@ -323,6 +365,14 @@ def pressure_from_density(rho, T, model: GasModel = "real", *, method: Method = 
     -------
     float or numpy.ndarray
         Absolute pressure, [Pa].
+
+    Examples
+    --------
+    114.842 kg/m³ at 20 °C is 100.00 bar absolute (CoolProp 8.0.0, Span et al. 2000):
+
+    >>> from stowflow.units import BAR, T_REF
+    >>> print(f"{pressure_from_density(114.842, T_REF) / BAR:.2f} bar")
+    100.00 bar
     """
     rho, T = _positive("density", rho, "kg/m³"), _positive("temperature", T, "K")
     if _model(model) == "ideal":
@@ -350,6 +400,14 @@ def temperature_from_density(rho, p, model: GasModel = "real", *, method: Method
     -------
     float or numpy.ndarray
         Temperature, [K].
+
+    Examples
+    --------
+    114.842 kg/m³ at 100 bar absolute is at 20 °C (CoolProp 8.0.0, Span et al. 2000):
+
+    >>> from stowflow.units import BAR
+    >>> print(f"{temperature_from_density(114.842, 100 * BAR):.2f} K")
+    293.15 K
     """
     rho, p = _positive("density", rho, "kg/m³"), _positive("pressure", p, "Pa")
     rho, p = np.broadcast_arrays(rho, p)
@@ -387,6 +445,18 @@ def precharge_at(p0_ref, T, model: GasModel = "real", *, method: Method = "table
     -------
     float or numpy.ndarray
         Absolute precharge pressure at T, [Pa].
+
+    Examples
+    --------
+    A precharge of 100 bar absolute at 20 °C reads 112.58 bar at 50 °C on the real-gas
+    isochore (CoolProp 8.0.0, Span et al. 2000) and 110.23 bar for the ideal gas,
+    :math:`p\\,T/T_{ref}` (Gay-Lussac's law; Çengel & Boles 2015):
+
+    >>> from stowflow.units import BAR, ZERO_CELSIUS
+    >>> print(f"{precharge_at(100 * BAR, ZERO_CELSIUS + 50) / BAR:.2f} bar")
+    112.58 bar
+    >>> print(f"{precharge_at(100 * BAR, ZERO_CELSIUS + 50, 'ideal') / BAR:.2f} bar")
+    110.23 bar
     """
     p0_ref, T = _positive("precharge", p0_ref, "Pa"), _positive("temperature", T, "K")
     if _model(model) == "ideal":
@@ -418,6 +488,15 @@ def reference_precharge(p0_at_T, T, model: GasModel = "real", *, method: Method 
     -----
     The real-gas value is refined by fixed-point iteration on :func:`precharge_at`, so the
     two functions are inverse to rounding, not only to table accuracy.
+
+    Examples
+    --------
+    A precharge that reads 91.58 bar absolute at 0 °C is 100 bar at 20 °C (CoolProp 8.0.0,
+    Span et al. 2000; 91.58 bar is given to 0.01 bar, so 0.1 bar here):
+
+    >>> from stowflow.units import BAR, ZERO_CELSIUS
+    >>> print(f"{reference_precharge(91.58 * BAR, ZERO_CELSIUS) / BAR:.1f} bar")
+    100.0 bar
     """
     target = _positive("precharge", p0_at_T, "Pa")
     rho0 = density(target, T, model, method=method)
@@ -526,6 +605,21 @@ def gas_volume_ratio(
     -----
     Real-gas polytropic means :math:`pV^n` = const starting at the real-gas precharge
     :math:`p_0(T)`; only the isentrope uses the real equation of state along the path.
+
+    Examples
+    --------
+    Isentropic compression from a 90 bar absolute precharge at 20 °C to 200 bar: the real gas
+    keeps 0.6195 of its volume (CoolProp 8.0.0, Span et al. 2000), the ideal gas
+    :math:`(p_0/p)^{1/\\kappa}` = 0.5653 (Çengel & Boles 2015, isentropic relations), and
+    Boyle's law gives 90/200 = 0.45:
+
+    >>> from stowflow.units import BAR, T_REF
+    >>> print(f"{gas_volume_ratio(200 * BAR, 90 * BAR, T_REF, 'adiabatic'):.4f}")
+    0.6195
+    >>> print(f"{gas_volume_ratio(200 * BAR, 90 * BAR, T_REF, 'adiabatic', 'ideal'):.4f}")
+    0.5653
+    >>> print(f"{gas_volume_ratio(200 * BAR, 90 * BAR, T_REF, 'isothermal', 'ideal'):.4f}")
+    0.4500
     """
     return _out(_map(p, p0_ref, T, process, model, method)[0])
 
@@ -552,6 +646,20 @@ def oil_fraction(
     -------
     float or numpy.ndarray
         Oil fraction in [0, 1), [-].
+
+    Examples
+    --------
+    The car-crusher accumulator of A. Esposito, *Fluid Power with Applications*, 7th ed.,
+    Pearson (2009), accumulator chapter (inputs and result from memory): precharge 1200 psia,
+    working pressures 1800 and 3000 psia, 2827 in³ of oil, Boyle's law → 45.9 US gal of gas.
+
+    >>> from stowflow.units import T_REF, si_factor
+    >>> psi = si_factor("psi", "pressure")
+    >>> f1, f2 = (oil_fraction(p * psi, 1200 * psi, T_REF, "isothermal", "ideal")
+    ...           for p in (1800, 3000))
+    >>> v0 = 2827 * si_factor("in3", "volume") / (f2 - f1)
+    >>> print(f"{v0 / si_factor('gal', 'volume'):.1f} US gal")
+    45.9 US gal
     """
     return _out(1.0 - _map(p, p0_ref, T, process, model, method)[0])
 
@@ -581,6 +689,19 @@ def end_temperature(
     -------
     float or numpy.ndarray
         Gas temperature, [K] (T itself where p ≤ p0(T)).
+
+    Examples
+    --------
+    Isentropic compression from 90 to 200 bar absolute, starting at 20 °C, ends at 370.6 K for
+    the real gas (CoolProp 8.0.0, Span et al. 2000) and at
+    :math:`T (p/p_0)^{(\\kappa-1)/\\kappa}` = 368.3 K for the ideal gas (Çengel & Boles 2015,
+    isentropic relations):
+
+    >>> from stowflow.units import BAR, T_REF
+    >>> print(f"{end_temperature(200 * BAR, 90 * BAR, T_REF, 'adiabatic'):.1f} K")
+    370.6 K
+    >>> print(f"{end_temperature(200 * BAR, 90 * BAR, T_REF, 'adiabatic', 'ideal'):.1f} K")
+    368.3 K
     """
     return _out(_map(p, p0_ref, T, process, model, method, want_T=True)[1])
 
@@ -611,6 +732,20 @@ def pressure_at_oil_fraction(
     -------
     float or numpy.ndarray
         Absolute pressure, [Pa]; :math:`p_0(T)` at s = 0.
+
+    Examples
+    --------
+    The inverse of the isentrope of :func:`gas_volume_ratio`: with 1 − 0.6195 of the volume
+    filled with oil the gas is at 200 bar absolute (CoolProp 8.0.0, Span et al. 2000; 0.6195
+    is given to 4 decimals, so 0.1 bar here).  Boyle's law: 90 bar/(1 − 0.55) = 200 bar.
+
+    >>> from stowflow.units import BAR, T_REF
+    >>> p = pressure_at_oil_fraction(1 - 0.6195, 90 * BAR, T_REF, "adiabatic")
+    >>> print(f"{p / BAR:.1f} bar")
+    200.0 bar
+    >>> p = pressure_at_oil_fraction(0.55, 90 * BAR, T_REF, "isothermal", "ideal")
+    >>> print(f"{p / BAR:.1f} bar")
+    200.0 bar
     """
     proc = parse_process(process)
     _model(model)
@@ -673,6 +808,18 @@ def expansion_ratio(
     -------
     float or numpy.ndarray
         :math:`V/V_s` (> 1 for an expansion), broadcast over the inputs, [-].
+
+    Examples
+    --------
+    Isentropic expansion from 200 to 100 bar absolute of a gas at rest at 20 °C: the real gas
+    grows 1.464-fold (CoolProp 8.0.0, Span et al. 2000), the ideal gas
+    :math:`2^{1/\\kappa}` = 1.641-fold (Çengel & Boles 2015, isentropic relations):
+
+    >>> from stowflow.units import BAR, T_REF
+    >>> print(f"{expansion_ratio(100 * BAR, 200 * BAR, T_REF, 'adiabatic'):.3f}")
+    1.464
+    >>> print(f"{expansion_ratio(100 * BAR, 200 * BAR, T_REF, 'adiabatic', 'ideal'):.3f}")
+    1.641
     """
     proc = parse_process(process)
     _model(model)
@@ -712,6 +859,20 @@ def pressure_after_expansion(
     -------
     float or numpy.ndarray
         Absolute pressure, [Pa].
+
+    Examples
+    --------
+    The inverse of :func:`expansion_ratio`'s example: at 1.464 times its start volume the real
+    gas is at 100 bar absolute (CoolProp 8.0.0, Span et al. 2000; 1.464 is given to 3
+    decimals, so 0.1 bar here).  Boyle's law halves the pressure when the volume doubles.
+
+    >>> from stowflow.units import BAR, T_REF
+    >>> p = pressure_after_expansion(1.464, 200 * BAR, T_REF, "adiabatic")
+    >>> print(f"{p / BAR:.1f} bar")
+    100.0 bar
+    >>> p = pressure_after_expansion(2.0, 200 * BAR, T_REF, "isothermal", "ideal")
+    >>> print(f"{p / BAR:.1f} bar")
+    100.0 bar
     """
     proc = parse_process(process)
     _model(model)

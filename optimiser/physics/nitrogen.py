@@ -50,6 +50,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
+from stowflow.units import BAR
 
 __all__ = [
     "KAPPA",
@@ -90,7 +91,7 @@ TABLE_PATH: Path = Path(__file__).parent / "data" / "nitrogen_span2000.npz"
 # sampled beyond each end (except at rho = 0, which is a natural boundary of the rhoT grid).
 MARGIN = 4
 GRID_PT = {
-    "x": ("ln_p", np.log(0.4e5), np.log(700e5), 0.15),  # ln(p / Pa)
+    "x": ("ln_p", np.log(0.4 * BAR), np.log(700 * BAR), 0.15),  # ln(p / Pa)
     "y": ("ln_T", np.log(180.0), np.log(900.0), 0.035),  # ln(T / K)
     "fields": ("Z", "s"),
 }
@@ -204,7 +205,28 @@ def _collocation_inverse(n: int) -> np.ndarray:
 
 
 def fit_bspline(values: np.ndarray) -> np.ndarray:
-    """Coefficients (nx + 2, ny + 2) of the interpolating cubic B-spline through node values."""
+    """Coefficients (nx + 2, ny + 2) of the interpolating cubic B-spline through node values.
+
+    Parameters
+    ----------
+    values : numpy.ndarray
+        Values at the nodes of a regular grid, shape (nx, ny), nx, ny ≥ 4, [field unit].
+
+    Returns
+    -------
+    numpy.ndarray
+        Tensor-product B-spline coefficients, shape (nx + 2, ny + 2), [field unit].
+
+    Examples
+    --------
+    Uniform cubic B-splines sum to one (partition of unity; de Boor 2001, ch. IX), so the
+    coefficients of a constant field are that constant:
+
+    >>> import numpy as np
+    >>> c = fit_bspline(np.full((6, 5), 2.5))
+    >>> c.shape, bool(np.allclose(c, 2.5))
+    ((8, 7), True)
+    """
     nx, ny = values.shape
     return _collocation_inverse(nx) @ values @ _collocation_inverse(ny).T
 
@@ -267,6 +289,14 @@ def load_table(path: str | None = None) -> N2Table | None:
     -------
     N2Table or None
         The splines, or None if there is no table file.
+
+    Examples
+    --------
+    The committed table records the CoolProp release it was built with (regression example,
+    the project's own file):
+
+    >>> load_table().meta["coolprop_version"]
+    '8.0.0'
     """
     file = Path(path) if path else TABLE_PATH
     if not file.exists():
@@ -323,6 +353,16 @@ def direct(inputs: str, a, b, outputs: tuple[str, ...]) -> tuple[np.ndarray, ...
     -------
     tuple of numpy.ndarray
         One array per output, with the broadcast shape of ``a`` and ``b``.
+
+    Examples
+    --------
+    Nitrogen at 100 bar absolute and 20 °C: CoolProp 8.0.0 (Span et al. 2000 equation of
+    state) gives ρ = 114.842 kg/m³.
+
+    >>> from stowflow.units import BAR, T_REF
+    >>> (rho,) = direct("PT", 100 * BAR, T_REF, ("rho",))
+    >>> print(f"{float(rho):.3f} kg/m³")
+    114.842 kg/m³
     """
     cp_mod, st = _abstract_state()
     pair = {
@@ -351,7 +391,32 @@ def direct(inputs: str, a, b, outputs: tuple[str, ...]) -> tuple[np.ndarray, ...
 
 # ----------------------------------------------------------------- evaluation with fallback
 def z_pT(p: np.ndarray, T: np.ndarray, method: str) -> np.ndarray:
-    """Z [-] at (p [Pa], T [K]) from the table; CoolProp directly where outside it."""
+    """Z [-] at (p [Pa], T [K]) from the table; CoolProp directly where outside it.
+
+    Parameters
+    ----------
+    p : numpy.ndarray
+        Absolute pressure, [Pa].
+    T : numpy.ndarray
+        Temperature, [K].
+    method : {"table", "direct"}
+        Tabulated fast path or direct CoolProp calls.
+
+    Returns
+    -------
+    numpy.ndarray
+        :math:`Z = p/(\\rho R_s T)` with :math:`R_s` = :data:`R_SPECIFIC`, [-].
+
+    Examples
+    --------
+    At 100 bar absolute and 20 °C, CoolProp 8.0.0 (Span et al. 2000) gives Z = 1.0008 (its
+    own gas constant differs from CODATA 2018 by about 6e-6, below the digits shown):
+
+    >>> import numpy as np
+    >>> from stowflow.units import BAR, T_REF
+    >>> print(f"{float(z_pT(np.array(100 * BAR), np.array(T_REF), 'table')):.4f}")
+    1.0008
+    """
     p, T = np.broadcast_arrays(p, T)
     tab = load_table() if method == "table" else None
     if tab is None:
@@ -364,7 +429,35 @@ def z_pT(p: np.ndarray, T: np.ndarray, method: str) -> np.ndarray:
 
 
 def fields_rhoT(rho: np.ndarray, T: np.ndarray, method: str, fields: tuple[str, ...]):
-    """Fields of the (ρ, T) grid: Z [-], cv [J/(kg·K)], dpdT_ratio [-], u [J/kg], s [J/(kg·K)]."""
+    """Fields of the (ρ, T) grid: Z [-], cv [J/(kg·K)], dpdT_ratio [-], u [J/kg], s [J/(kg·K)].
+
+    Parameters
+    ----------
+    rho : numpy.ndarray
+        Density, [kg/m³].
+    T : numpy.ndarray
+        Temperature, [K].
+    method : {"table", "direct"}
+        Tabulated fast path or direct CoolProp calls.
+    fields : tuple of str
+        Any of ``"Z"``, ``"cv"``, ``"dpdT_ratio"``, ``"u"``, ``"s"``.
+
+    Returns
+    -------
+    tuple of numpy.ndarray
+        One array per field, with the broadcast shape of ``rho`` and ``T``.
+
+    Examples
+    --------
+    Isochoric heat capacity at 114.842 kg/m³ and 20 °C (100 bar absolute): CoolProp 8.0.0
+    (Span et al. 2000) gives 765.98 J/(kg·K).
+
+    >>> import numpy as np
+    >>> from stowflow.units import T_REF
+    >>> (cv,) = fields_rhoT(np.array(114.842), np.array(T_REF), "table", ("cv",))
+    >>> print(f"{float(cv):.1f} J/(kg·K)")
+    766.0 J/(kg·K)
+    """
     rho, T = np.broadcast_arrays(rho, T)
     tab = load_table() if method == "table" else None
     res = {}
@@ -390,12 +483,72 @@ def fields_rhoT(rho: np.ndarray, T: np.ndarray, method: str, fields: tuple[str, 
 
 
 def isentrope_T_at_p(p, s0, T_guess, method):
-    """Temperature [K] on the isentrope s0 [J/(kg·K)] at pressure p [Pa] (Newton in ln T)."""
+    """Temperature [K] on the isentrope s0 [J/(kg·K)] at pressure p [Pa] (Newton in ln T).
+
+    Parameters
+    ----------
+    p : array_like
+        Absolute pressure, [Pa].
+    s0 : array_like
+        Specific entropy of the isentrope, [J/(kg·K)] (CoolProp's reference state).
+    T_guess : array_like
+        Starting temperature of the Newton iteration, [K].
+    method : {"table", "direct"}
+        Tabulated fast path or direct CoolProp calls.
+
+    Returns
+    -------
+    numpy.ndarray
+        Temperature, [K].
+
+    Examples
+    --------
+    Isentropic compression from 90 to 200 bar absolute, starting at 20 °C: CoolProp 8.0.0
+    (Span et al. 2000) gives 370.6 K at the end.
+
+    >>> import numpy as np
+    >>> from stowflow.physics.gas import density
+    >>> from stowflow.units import BAR, T_REF
+    >>> rho1 = np.array(density(90 * BAR, T_REF))
+    >>> (s0,) = fields_rhoT(rho1, np.array(T_REF), "table", ("s",))
+    >>> print(f"{float(isentrope_T_at_p(200 * BAR, s0, 360.0, 'table')):.1f} K")
+    370.6 K
+    """
     return _isentrope_T("PS", p, s0, T_guess, method)
 
 
 def isentrope_T_at_rho(rho, s0, T_guess, method):
-    """Temperature [K] on the isentrope s0 [J/(kg·K)] at density rho [kg/m³]."""
+    """Temperature [K] on the isentrope s0 [J/(kg·K)] at density rho [kg/m³].
+
+    Parameters
+    ----------
+    rho : array_like
+        Density, [kg/m³].
+    s0 : array_like
+        Specific entropy of the isentrope, [J/(kg·K)] (CoolProp's reference state).
+    T_guess : array_like
+        Starting temperature of the Newton iteration, [K].
+    method : {"table", "direct"}
+        Tabulated fast path or direct CoolProp calls.
+
+    Returns
+    -------
+    numpy.ndarray
+        Temperature, [K].
+
+    Examples
+    --------
+    The isentrope from 90 bar absolute and 20 °C reaches 200 bar at 0.6195 of the start
+    volume and 370.6 K (CoolProp 8.0.0, Span et al. 2000):
+
+    >>> import numpy as np
+    >>> from stowflow.physics.gas import density
+    >>> from stowflow.units import BAR, T_REF
+    >>> rho1 = np.array(density(90 * BAR, T_REF))
+    >>> (s0,) = fields_rhoT(rho1, np.array(T_REF), "table", ("s",))
+    >>> print(f"{float(isentrope_T_at_rho(rho1 / 0.6195, s0, 360.0, 'table')):.1f} K")
+    370.6 K
+    """
     return _isentrope_T("DS", rho, s0, T_guess, method)
 
 
@@ -460,7 +613,7 @@ def build_table(path: Path = TABLE_PATH) -> dict[str, object]:
 
     cp_mod, st = _abstract_state()
     payload: dict[str, np.ndarray] = {}
-    st.update(cp_mod.PT_INPUTS, 1e5, 300.0)
+    st.update(cp_mod.PT_INPUTS, BAR, 300.0)
     r_eos = st.gas_constant() / st.molar_mass()  # the EOS's own R (8.31451 J/(mol·K))
     payload["R_eos"] = np.array(r_eos)
 

@@ -12,6 +12,7 @@ constants here, below both, lets the search use them without importing the simul
 from __future__ import annotations
 
 import numpy as np
+from stowflow.units import BAR
 
 __all__ = [
     "MIN_BAND_FRACTION",
@@ -31,7 +32,7 @@ RELIEF_OVERRIDE = 0.10
 #: switch; common practice, no published source.
 MIN_BAND_FRACTION = 0.01
 #: Narrowest pressure-switch band tried, [Pa] (1 bar; common practice, no published source).
-MIN_BAND_PRESSURE = 1e5
+MIN_BAND_PRESSURE = 1.0 * BAR
 #: Narrowest position-switch band tried, fraction of the stroke, [-] (common practice, no
 #: published source).
 MIN_BAND_STROKE = 0.01
@@ -52,9 +53,13 @@ def narrowest_band(off_gauge):
 
     Examples
     --------
-    >>> float(narrowest_band(200e5))  # 1 % of 200 bar
-    200000.0
-    >>> float(narrowest_band(50e5))  # at least 1 bar
-    100000.0
+    The project's own rule (common practice, no published source): 1 % of the unload gauge
+    pressure, and at least 1 bar.
+
+    >>> from stowflow.units import BAR
+    >>> print(f"{narrowest_band(200 * BAR) / BAR:.2f} bar")  # 1 % of 200 bar
+    2.00 bar
+    >>> print(f"{narrowest_band(50 * BAR) / BAR:.2f} bar")  # at least 1 bar
+    1.00 bar
     """
     return np.maximum(MIN_BAND_PRESSURE, MIN_BAND_FRACTION * np.asarray(off_gauge, float))
