@@ -44,6 +44,7 @@ __all__ = [
     "registry",
     "si_factor",
     "to_unit",
+    "unit_dimension",
 ]
 
 #: Standard atmospheric pressure, [Pa] (ISO 2533 standard atmosphere, sea level).
@@ -188,6 +189,27 @@ def _dimension_name(dimensionality) -> str | None:
     if dimensionality == ureg.Unit("K").dimensionality:
         return "temperature"
     return None
+
+
+def unit_dimension(text: str) -> str | None:
+    """What a unit measures, for messages about a unit of the wrong kind.
+
+    Parameters
+    ----------
+    text : str
+        A unit such as ``"bar"``, ``"L/min"``, ``"kg"``.
+
+    Returns
+    -------
+    str or None
+        A key of :data:`DIMENSIONS` or ``"temperature"``; pint's dimensionality text (e.g.
+        ``"[mass]"``) for any other known unit; None when the unit is unknown.
+    """
+    try:
+        unit = registry().Unit(_normalise(text))
+    except Exception:
+        return None
+    return _dimension_name(unit.dimensionality) or str(unit.dimensionality)
 
 
 def si_factor(unit: str, dimension: str) -> float:

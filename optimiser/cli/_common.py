@@ -1,4 +1,4 @@
-"""What several commands share: temperature ranges typed in °C and the tables made from them."""
+"""What several commands share: negative °C values on the command line, temperature tables."""
 
 from __future__ import annotations
 
@@ -7,37 +7,12 @@ import re
 
 import numpy as np
 from stowflow.errors import SettingsError
-from stowflow.glossary import term
-from stowflow.units import celsius_to_kelvin
+from stowflow.io.quantities import parse_temperature_range, parse_temperature_step
 
-__all__ = ["MAX_ROWS", "allow_negative_ranges", "parse_temperature_range", "temperatures"]
+__all__ = ["MAX_ROWS", "allow_negative_ranges", "temperatures"]
 
 #: Largest temperature table a command prints, [-].
 MAX_ROWS = 1000
-
-_NUM = r"(-?(?:\d+(?:\.\d*)?|\.\d+))\s*(?:°?c)?"
-_RANGE_RE = re.compile(rf"^\s*{_NUM}\s*(?:\.\.\s*{_NUM})?\s*$", re.IGNORECASE)
-
-
-def parse_temperature_range(text: str) -> tuple[float, float]:
-    """``"10..50"`` or ``"20"`` (°C) → (T_min, T_max) [K]."""
-    m = _RANGE_RE.match(text)
-    try:
-        lo = float(m.group(1))
-        hi = float(m.group(2)) if m.group(2) is not None else lo
-    except (AttributeError, ValueError):
-        raise SettingsError(
-            f"--temperature '{text}' is not a range in °C; write e.g. 10..50 or 20"
-        ) from None
-    lo_ok, hi_ok = term("temperature").plausible
-    for v in (lo, hi):
-        if not lo_ok <= v <= hi_ok:
-            raise SettingsError(
-                f"--temperature {v:g} °C is outside the plausible {lo_ok:g}…{hi_ok:g} °C"
-            )
-    if hi < lo:
-        raise SettingsError(f"--temperature '{text}': the first value must be the lower one")
-    return celsius_to_kelvin(lo), celsius_to_kelvin(hi)
 
 
 def allow_negative_ranges(parser: argparse.ArgumentParser) -> None:
@@ -53,7 +28,9 @@ def allow_negative_ranges(parser: argparse.ArgumentParser) -> None:
         )
 
 
-def temperatures(text: str, step_text: str) -> np.ndarray:
+def temperatures(
+    text: str, step_text: str, *, option: str = "--temperature", step_option: str = "--step"
+) -> np.ndarray:
     """``"-10..50"`` and ``"5"`` → the temperatures of the table, [K].
 
     Parameters
@@ -62,20 +39,20 @@ def temperatures(text: str, step_text: str) -> np.ndarray:
         Range in °C, ``LO..HI`` (or one value).
     step_text : str
         Step in kelvin, > 0.
+    option, step_option : str
+        The options' names, for messages.
 
     Returns
     -------
     numpy.ndarray
         From LO to HI (HI included when the step lands on it), [K].
     """
-    lo, hi = parse_temperature_range(text)
-    try:
-        step = float(str(step_text).strip().removesuffix("K").removesuffix("°C").strip())
-    except ValueError:
-        raise SettingsError(f"--step '{step_text}' is not a number of kelvin") from None
-    if not (np.isfinite(step) and step > 0):
-        raise SettingsError(f"--step must be > 0 K; got {step_text}")
+    lo, hi = parse_temperature_range(text, option)
+    step = parse_temperature_step(step_text, step_option)
     n = int(np.floor((hi - lo) / step + 1e-9)) + 1
     if n > MAX_ROWS:
-        raise SettingsError(f"--step {step:g} K gives {n} rows; at most {MAX_ROWS}")
+        raise SettingsError(
+            f"{step_option}: '{str(step_text).strip()}' gives {n} rows from {option} "
+            f"'{str(text).strip()}'; expected a step that gives at most {MAX_ROWS} rows"
+        )
     return lo + step * np.arange(n)

@@ -5,7 +5,8 @@
 strings to :func:`stowflow.io.options.cost_settings`, the parser the web page uses too.  Values
 carry their units: ``--energy-price 0.25/kWh`` (or ``0.25EUR/kWh``, ``250/MWh``),
 ``--hours-per-year 4000``, ``--cycle-time 40s``.  Bad values raise a one-line
-:class:`~stowflow.errors.UnitsError` or :class:`~stowflow.errors.SettingsError`.
+:class:`~stowflow.errors.UnitsError` or :class:`~stowflow.errors.SettingsError` that names
+the option (the parsers of :mod:`stowflow.io.quantities`).
 """
 
 from __future__ import annotations
@@ -13,20 +14,9 @@ from __future__ import annotations
 import argparse
 
 from stowflow.costs.comparison import CostSettings
-from stowflow.io.options import (
-    COST_OPTIONS,
-    EXCLUSIVE_COST_OPTIONS,
-    cost_settings,
-    parse_energy_price,
-)
-from stowflow.io.options import _signed_fraction as parse_fraction
+from stowflow.io.options import COST_OPTIONS, EXCLUSIVE_COST_OPTIONS, cost_settings
 
-__all__ = [
-    "add_cost_options",
-    "cost_settings_from_args",
-    "parse_energy_price",
-    "parse_fraction",
-]
+__all__ = ["add_cost_options", "cost_settings_from_args"]
 
 
 def add_cost_options(parser: argparse.ArgumentParser) -> argparse._ArgumentGroup:
@@ -40,7 +30,6 @@ def add_cost_options(parser: argparse.ArgumentParser) -> argparse._ArgumentGroup
         target.add_argument(
             "--" + key.replace("_", "-"),
             metavar=metavar,
-            type=int if key == "years" else None,
             help=text.replace("%", "%%"),
         )
     return g

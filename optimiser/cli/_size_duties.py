@@ -10,14 +10,28 @@ from __future__ import annotations
 
 import argparse
 import math
-import re
 
+from stowflow.catalogue import ACCUMULATOR_TYPES
 from stowflow.cli._common import allow_negative_ranges
 from stowflow.cli._output import print_json, print_table
-from stowflow.errors import SettingsError, UnitsError
-from stowflow.units import gauge_to_abs, parse_quantity, registry
+from stowflow.errors import SettingsError
+from stowflow.io.quantities import (
+    parse_choice,
+    parse_density,
+    parse_duration,
+    parse_expansion_coefficient,
+    parse_flow,
+    parse_gas_process,
+    parse_length,
+    parse_number,
+    parse_pressure,
+    parse_pressure_difference,
+    parse_temperature_range,
+    parse_velocity,
+    parse_volume,
+)
 
-__all__ = ["DUTIES", "add_duty_options", "check_duty_options", "run_duty"]
+__all__ = ["DUTIES", "add_duty_options", "check_duty_options", "motion_from_text", "run_duty"]
 
 #: The duties of ``stowflow size``; storage is the default.
 DUTIES: tuple[str, ...] = ("storage", "reserve", "shock", "thermal")
@@ -58,7 +72,6 @@ _REQUIRED: dict[str, tuple[str, ...]] = {
     "shock": ("pipe_length", "pipe_diameter", "wall", "pressure", "peak_limit"),
     "thermal": ("oil_volume", "start_pressure", "pressure_limit"),
 }
-_NUMBER = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(.*?)\s*$")
 
 
 def _flag(dest: str) -> str:
@@ -119,7 +132,6 @@ def add_duty_options(parser: argparse.ArgumentParser) -> None:
     s.add_argument(
         "--constraint",
         metavar="C1",
-        type=float,
         help="Korteweg constraint factor c1 (default 1: free to move; 0.91 anchored throughout)",
     )
     s.add_argument("--velocity", metavar="V", help="flow velocity stopped, e.g. 4m/s")
@@ -174,63 +186,72 @@ def check_duty_options(args: argparse.Namespace) -> None:
         raise SettingsError("--duty shock needs exactly one of --velocity and --flow")
 
 
-def _quantity(text: str, dimension: str, option: str) -> float:
-    try:
-        return parse_quantity(text, dimension)
-    except UnitsError as exc:
-        raise UnitsError(f"{option}: {exc}") from None
+def motion_from_text(text: str, *, absolute: bool = False):
+    """Read one ``--motion NAME,VOLUME,MIN_PRESSURE,TIME``, e.g. ``"close guard,1.2L,120bar,2s"``.
 
+    Parameters
+    ----------
+    text : str
+        The motion: four comma-separated fields, the last three with units.
+    absolute : bool
+        The pressure is absolute (default gauge).
 
-def _other(text: str, si_unit: str, option: str, example: str) -> float:
-    """A quantity whose dimension stowflow.units does not list (m/s, kg/m³, 1/K), [SI]."""
-    m = _NUMBER.match(str(text))
-    if not m or not m.group(2):
-        raise UnitsError(f"{option}: '{text}' is not a number with a unit (example: {example})")
-    unit = m.group(2).replace("°C", "K").replace("degC", "K").replace("³", "**3")
-    unit = re.sub(r"(?<=[A-Za-z])3\b", "**3", unit)
-    if unit.startswith("/"):
-        unit = "1" + unit
-    ureg = registry()
-    try:
-        value = ureg.Quantity(float(m.group(1)), ureg.Unit(unit)).to(si_unit).magnitude
-    except Exception:
-        raise UnitsError(
-            f"{option}: unknown or wrong unit '{m.group(2)}'; expected e.g. {example}"
-        ) from None
-    if not math.isfinite(value):
-        raise UnitsError(f"{option}: '{text}' is not finite")
-    return float(value)
+    Returns
+    -------
+    stowflow.duties.Motion
+        The motion in SI units.
+    """
+    from stowflow.duties import Motion
+
+    parts = [p.strip() for p in str(text).split(",")]
+    if len(parts) != 4 or not parts[0]:
+        raise SettingsError(
+            f"--motion: '{str(text).strip()}' is not four comma-separated fields; expected "
+            "NAME,VOLUME,MIN_PRESSURE,TIME, e.g. 'close guard,1.2L,120bar,2s'"
+        )
+    name, volume, pressure, time = parts
+    option = f"--motion '{name}'"
+    return Motion(
+        name,
+        parse_volume(volume, option),
+        parse_pressure(pressure, option, absolute=absolute),
+        parse_duration(time, option),
+    )
 
 
 def _pressure(args, text: str, option: str) -> float:
-    p = _quantity(text, "pressure", option)
-    return p if args.absolute else gauge_to_abs(p)
+    return parse_pressure(text, option, absolute=args.absolute)
 
 
 def _common(args) -> dict:
-    from stowflow.cli._common import parse_temperature_range
-
-    t_min, t_max = parse_temperature_range(args.temperature)
-    out = {"model": args.gas, "acc_type": args.type or "bladder"}
+    t_min, t_max = parse_temperature_range(args.temperature, "--temperature")
+    acc_type = (
+        "bladder" if args.type is None else parse_choice(args.type, "--type", ACCUMULATOR_TYPES)
+    )
+    out = {"model": args.gas, "acc_type": acc_type}
     if args.precharge is not None:
         out["precharge"] = _pressure(args, args.precharge, "--precharge")
     if args.ps is not None:
-        out["max_allowable_pressure"] = gauge_to_abs(_quantity(args.ps, "pressure", "--ps"))
+        out["max_allowable_pressure"] = parse_pressure(args.ps, "--ps")
     return out | {"T_min": t_min, "T_max": t_max}
 
 
 def _reserve(args):
-    from stowflow.duties import parse_motion, read_motions, size_reserve
+    from stowflow.duties import read_motions, size_reserve
 
     motions = list(read_motions(args.motions)) if args.motions else []
-    motions += [parse_motion(m, absolute=args.absolute) for m in args.motion or []]
+    motions += [motion_from_text(m, absolute=args.absolute) for m in args.motion or []]
     kw = _common(args)
     return size_reserve(
         motions,
         _pressure(args, args.charge_pressure, "--charge-pressure"),
-        leakage=0.0 if args.leakage is None else _quantity(args.leakage, "flow", "--leakage"),
-        standby_time=0.0 if args.standby is None else _quantity(args.standby, "time", "--standby"),
-        process=args.process or "adiabatic",
+        leakage=0.0 if args.leakage is None else parse_flow(args.leakage, "--leakage"),
+        standby_time=0.0 if args.standby is None else parse_duration(args.standby, "--standby"),
+        process=(
+            "adiabatic"
+            if args.process is None
+            else parse_gas_process(args.process, "--process", allow_auto=False)
+        ),
         **kw,
     )
 
@@ -239,26 +260,28 @@ def _shock(args):
     from stowflow.duties import size_shock
 
     kw = _common(args)
-    diameter = _quantity(args.pipe_diameter, "length", "--pipe-diameter")
+    diameter = parse_length(args.pipe_diameter, "--pipe-diameter")
     if args.velocity is not None:
-        velocity = _other(args.velocity, "m/s", "--velocity", "4m/s")
+        velocity = parse_velocity(args.velocity, "--velocity")
     else:
-        velocity = _quantity(args.flow, "flow", "--flow") / (math.pi / 4 * diameter**2)
+        velocity = parse_flow(args.flow, "--flow") / (math.pi / 4 * diameter**2)
     extra = {}
     if args.pipe_modulus is not None:
-        extra["pipe_modulus"] = _quantity(args.pipe_modulus, "pressure", "--pipe-modulus")
+        extra["pipe_modulus"] = parse_pressure_difference(
+            args.pipe_modulus, "--pipe-modulus", at_least=None, above=0.0
+        )
     if args.constraint is not None:
-        extra["constraint"] = args.constraint
+        extra["constraint"] = parse_number(args.constraint, "--constraint", above=0.0)
     if args.closure_time is not None:
-        extra["closure_time"] = _quantity(args.closure_time, "time", "--closure-time")
+        extra["closure_time"] = parse_duration(args.closure_time, "--closure-time")
     if args.oil_density is not None:
-        extra["oil_density"] = _other(args.oil_density, "kg/m**3", "--oil-density", "870kg/m3")
+        extra["oil_density"] = parse_density(args.oil_density, "--oil-density")
     if args.bulk_modulus is not None:
-        extra["bulk_modulus"] = _quantity(args.bulk_modulus, "pressure", "--bulk-modulus")
+        extra["bulk_modulus"] = _bulk_modulus(args)
     return size_shock(
-        _quantity(args.pipe_length, "length", "--pipe-length"),
+        parse_length(args.pipe_length, "--pipe-length"),
         diameter,
-        _quantity(args.wall, "length", "--wall"),
+        parse_length(args.wall, "--wall"),
         velocity,
         _pressure(args, args.pressure, "--pressure"),
         _pressure(args, args.peak_limit, "--peak-limit"),
@@ -267,25 +290,26 @@ def _shock(args):
     )
 
 
+def _bulk_modulus(args) -> float:
+    return parse_pressure_difference(args.bulk_modulus, "--bulk-modulus", at_least=None, above=0.0)
+
+
 def _thermal(args):
     from stowflow.duties import size_thermal
 
     kw = _common(args)
     extra = {}
     if args.oil_expansion is not None:
-        extra["oil_expansion"] = _other(args.oil_expansion, "1/K", "--oil-expansion", "7e-4/K")
+        extra["oil_expansion"] = parse_expansion_coefficient(args.oil_expansion, "--oil-expansion")
     if args.container_expansion is not None:
-        extra["container_expansion"] = _other(
-            args.container_expansion, "1/K", "--container-expansion", "3.6e-5/K"
+        extra["container_expansion"] = parse_expansion_coefficient(
+            args.container_expansion, "--container-expansion"
         )
     if args.bulk_modulus is not None:
-        extra["bulk_modulus"] = _quantity(args.bulk_modulus, "pressure", "--bulk-modulus")
-    kw.pop("T_min"), kw.pop("T_max")
-    from stowflow.cli._common import parse_temperature_range
-
-    t1, t2 = parse_temperature_range(args.temperature)
+        extra["bulk_modulus"] = _bulk_modulus(args)
+    t1, t2 = kw.pop("T_min"), kw.pop("T_max")
     return size_thermal(
-        _quantity(args.oil_volume, "volume", "--oil-volume"),
+        parse_volume(args.oil_volume, "--oil-volume"),
         t1,
         t2,
         _pressure(args, args.start_pressure, "--start-pressure"),

@@ -12,8 +12,7 @@ import textwrap
 
 from stowflow.cli._output import print_json, print_table
 from stowflow.cycle.duty import DEFAULT_MAX_STEPS, load_cycle, summarize
-from stowflow.errors import UnitsError
-from stowflow.units import parse_quantity
+from stowflow.io.quantities import parse_duration, parse_pressure_difference, parse_whole
 
 __all__ = ["register", "run"]
 
@@ -82,8 +81,7 @@ def register(subparsers, common: argparse.ArgumentParser) -> None:
     )
     parser.add_argument(
         "--max-steps",
-        type=int,
-        default=DEFAULT_MAX_STEPS,
+        default=str(DEFAULT_MAX_STEPS),
         metavar="N",
         help=f"largest number of time steps (default {DEFAULT_MAX_STEPS})",
     )
@@ -92,11 +90,12 @@ def register(subparsers, common: argparse.ArgumentParser) -> None:
 
 def run(args: argparse.Namespace) -> int:
     """Read the cycle, print its summary; return the exit code (0)."""
-    step = None if args.step is None else _option("--step", args.step, "time")
+    step = None if args.step is None else parse_duration(args.step, "--step", above=0.0)
     min_pressure = None
     if args.min_pressure is not None:  # gauge, as the user means it
-        min_pressure = _option("--min-pressure", args.min_pressure, "pressure")
-    cycle = load_cycle(args.cycle, step=step, min_pressure=min_pressure, max_steps=args.max_steps)
+        min_pressure = parse_pressure_difference(args.min_pressure, "--min-pressure")
+    max_steps = parse_whole(args.max_steps, "--max-steps", at_least=1)
+    cycle = load_cycle(args.cycle, step=step, min_pressure=min_pressure, max_steps=max_steps)
     summary = summarize(cycle).as_dict()
     if args.json:
         print_json({"schema": SCHEMA, **summary})
@@ -109,11 +108,3 @@ def run(args: argparse.Namespace) -> int:
     for note in summary["notes"]:
         print(f"note: {note}")
     return 0
-
-
-def _option(flag: str, text: str, dimension: str) -> float:
-    """Parse an option with a unit to SI, naming the option in the error."""
-    try:
-        return parse_quantity(text, dimension)
-    except UnitsError as exc:
-        raise UnitsError(f"{flag}: {exc}") from None

@@ -9,7 +9,8 @@ from pathlib import Path
 from stowflow.cli._costopts import add_cost_options, cost_settings_from_args
 from stowflow.cli._output import print_json, print_table, progress
 from stowflow.io.options import DESIGN_OPTIONS, design_settings
-from stowflow.units import abs_to_gauge, parse_quantity
+from stowflow.io.quantities import parse_duration, parse_pressure_difference
+from stowflow.units import abs_to_gauge
 
 __all__ = ["add_design_options", "register", "run", "run_study", "settings_from_args"]
 
@@ -56,6 +57,7 @@ def settings_from_args(args: argparse.Namespace):
     values = {key: getattr(args, f"opt_{key}", None) for key in DESIGN_OPTIONS}
     both = getattr(args, "opt_min_dwell", None)
     if both:
+        parse_duration(both, "--min-dwell")  # refused here, by the name the user typed
         values["min_loaded_dwell"] = values["min_loaded_dwell"] or both
         values["min_unloaded_dwell"] = values["min_unloaded_dwell"] or both
     s = design_settings(values)
@@ -116,8 +118,8 @@ def run_study(args: argparse.Namespace, cycle, *, out_default: Path, name: str |
         settings=settings,
         costs=costs,
         name=name,
-        min_pressure=parse_quantity(min_p, "pressure") if min_p else None,
-        step=parse_quantity(step, "time") if step else None,
+        min_pressure=parse_pressure_difference(min_p, "--min-pressure") if min_p else None,
+        step=parse_duration(step, "--step", above=0.0) if step else None,
         verify=not getattr(args, "no_verify", False),
     )
     with progress("designing", total=1.0) as update:

@@ -7,10 +7,17 @@ from __future__ import annotations
 
 import argparse
 
-from stowflow.cli._common import allow_negative_ranges
+from stowflow.cli._common import allow_negative_ranges, temperatures
 from stowflow.cli._output import print_json, print_table
-from stowflow.errors import SettingsError, SizingError, UnitsError
-from stowflow.units import gauge_to_abs, parse_quantity
+from stowflow.errors import SettingsError, SizingError
+from stowflow.io.quantities import (
+    parse_number,
+    parse_pressure,
+    parse_pressure_difference,
+    parse_temperature,
+    parse_volume,
+    parse_whole,
+)
 
 __all__ = ["register", "run"]
 
@@ -66,7 +73,7 @@ def register(subparsers, common: argparse.ArgumentParser) -> argparse.ArgumentPa
     )
     g.add_argument("--ps", metavar="P", help="the accumulator's PS, gauge, to check the target")
     s = parser.add_argument_group("supply bottles")
-    s.add_argument("--bottles", required=True, type=int, metavar="N", help="number of bottles")
+    s.add_argument("--bottles", required=True, metavar="N", help="number of bottles")
     s.add_argument("--bottle-volume", required=True, metavar="VOL", help="water volume each")
     s.add_argument(
         "--bottle-pressure",
@@ -82,7 +89,7 @@ def register(subparsers, common: argparse.ArgumentParser) -> argparse.ArgumentPa
         "bottle (default 2bar gauge; common practice, no published source)",
     )
     o = parser.add_argument_group("when the bottles cannot reach the target")
-    o.add_argument("--booster-ratio", type=float, metavar="R", help="gas booster pressure ratio")
+    o.add_argument("--booster-ratio", metavar="R", help="gas booster pressure ratio")
     o.add_argument("--booster-stroke", metavar="VOL", help="gas booster swept volume per stroke")
     o.add_argument(
         "--transfer-volume",
@@ -123,32 +130,24 @@ def register(subparsers, common: argparse.ArgumentParser) -> argparse.ArgumentPa
     return parser
 
 
-def _q(text: str, dimension: str, option: str) -> float:
-    try:
-        return parse_quantity(text, dimension)
-    except UnitsError as exc:
-        raise UnitsError(f"{option}: {exc}") from None
-
-
 def _plan(args: argparse.Namespace):
-    from stowflow.cli._common import parse_temperature_range, temperatures
     from stowflow.fill import plan_fill
 
     def pressure(text: str, option: str) -> float:
-        p = _q(text, "pressure", option)
-        return p if args.absolute else gauge_to_abs(p)
+        return parse_pressure(text, option, absolute=args.absolute)
 
-    t_lo, t_hi = parse_temperature_range(args.ambient)
-    if t_lo != t_hi:
-        raise SettingsError(f"--ambient is one temperature in °C; got '{args.ambient}'")
+    t_fill = parse_temperature(args.ambient, "--ambient")
     target = pressure(args.precharge, "--precharge")
-    if args.ps is not None and target > gauge_to_abs(_q(args.ps, "pressure", "--ps")):
+    if args.ps is not None and target > parse_pressure(args.ps, "--ps"):
         raise SizingError(f"--precharge {args.precharge} exceeds the accumulator's PS {args.ps}")
     booster = None
     if (args.booster_ratio is None) != (args.booster_stroke is None):
         raise SettingsError("a booster needs both --booster-ratio and --booster-stroke")
     if args.booster_ratio is not None:
-        booster = (args.booster_ratio, _q(args.booster_stroke, "volume", "--booster-stroke"))
+        booster = (
+            parse_number(args.booster_ratio, "--booster-ratio", above=1.0),
+            parse_volume(args.booster_stroke, "--booster-stroke"),
+        )
     transfer = None
     if (args.transfer_volume is None) != (args.oil_pressure is None):
         raise SettingsError("a transfer pump needs both --transfer-volume and --oil-pressure")
@@ -156,16 +155,16 @@ def _plan(args: argparse.Namespace):
         raise SettingsError("--own-piston needs --transfer-volume (the piston unit's gas volume)")
     if args.transfer_volume is not None:
         transfer = (
-            _q(args.transfer_volume, "volume", "--transfer-volume"),
+            parse_volume(args.transfer_volume, "--transfer-volume"),
             pressure(args.oil_pressure, "--oil-pressure"),
-            _q(args.transfer_dead, "volume", "--transfer-dead"),
+            parse_volume(args.transfer_dead, "--transfer-dead"),
         )
     return plan_fill(
-        _q(args.volume, "volume", "--volume"),
+        parse_volume(args.volume, "--volume"),
         target,
-        t_lo,
-        args.bottles,
-        _q(args.bottle_volume, "volume", "--bottle-volume"),
+        t_fill,
+        parse_whole(args.bottles, "--bottles", at_least=1),
+        parse_volume(args.bottle_volume, "--bottle-volume"),
         pressure(args.bottle_pressure, "--bottle-pressure"),
         initial_pressure=pressure(args.initial, "--initial"),
         model=args.gas,
@@ -173,14 +172,19 @@ def _plan(args: argparse.Namespace):
         transfer=transfer,
         own_piston=args.own_piston,
         residual=pressure(args.residual, "--residual"),
-        table_temperatures=None if args.table is None else temperatures(args.table, args.step),
+        table_temperatures=(
+            None
+            if args.table is None
+            else temperatures(args.table, args.step, option="--table", step_option="--step")
+        ),
     )
 
 
 def run(args: argparse.Namespace) -> int:
     """Plan the fill and print it (or JSON); return the exit code."""
     data = _plan(args).as_dict()
-    if args.ps is not None and data["bottle_pressure_bar"] > _q(args.ps, "pressure", "--ps") / 1e5:
+    ps = None if args.ps is None else parse_pressure_difference(args.ps, "--ps")
+    if ps is not None and data["bottle_pressure_bar"] > ps / 1e5:
         data["notes"].append(
             "the bottle pressure exceeds the accumulator's PS: a pressure regulator set below "
             "PS is mandatory"

@@ -11,8 +11,9 @@ import argparse
 
 from stowflow.cli._common import allow_negative_ranges, temperatures
 from stowflow.cli._output import print_json, print_table
-from stowflow.errors import SettingsError, UnitsError
-from stowflow.units import celsius_to_kelvin, gauge_to_abs, parse_quantity
+from stowflow.errors import SettingsError
+from stowflow.io.quantities import parse_pressure
+from stowflow.units import P_AMBIENT, celsius_to_kelvin
 
 __all__ = ["PRECHARGE_NOTES", "register", "run"]
 
@@ -71,13 +72,14 @@ def run(args: argparse.Namespace) -> int:
     """Print the table (or JSON); return the exit code."""
     from stowflow.fill import precharge_table
 
-    try:
-        p = parse_quantity(args.precharge, "pressure")
-    except UnitsError as exc:
-        raise UnitsError(f"precharge: {exc}") from None
-    p_abs = p if args.absolute else gauge_to_abs(p)
-    if not p_abs > gauge_to_abs(0.0):
-        raise SettingsError(f"the precharge must be above ambient; got {args.precharge}")
+    p_abs = parse_pressure(args.precharge, "precharge", absolute=args.absolute)
+    if not p_abs > P_AMBIENT:
+        kind = "absolute" if args.absolute else "gauge"
+        raise SettingsError(
+            f"precharge: '{args.precharge.strip()}' is not above ambient; expected a "
+            f"precharge > {(P_AMBIENT if args.absolute else 0.0) / 1e5:g} bar {kind}, "
+            "e.g. 90bar"
+        )
     ts = temperatures(args.temperature, args.step)
     table = precharge_table(p_abs, ts, args.gas)
     p20 = float(precharge_table(p_abs, [celsius_to_kelvin(20.0)], args.gas).iloc[0, 1])

@@ -10,7 +10,7 @@ import argparse
 import sys
 
 from stowflow.errors import SettingsError
-from stowflow.units import parse_quantity
+from stowflow.io.quantities import parse_duration, parse_whole
 
 __all__ = ["register", "run"]
 
@@ -70,24 +70,11 @@ def register(subparsers, common) -> None:
     p.set_defaults(func=run)
 
 
-def _whole(text, what: str, least: int, most: int | None = None) -> int:
-    try:
-        value = int(str(text).strip())
-    except ValueError:
-        raise SettingsError(f"--{what} '{text}' is not a whole number") from None
-    if value < least or (most is not None and value > most):
-        upper = f" and at most {most}" if most is not None else ""
-        raise SettingsError(f"--{what} {value} must be at least {least}{upper}")
-    return value
-
-
 def config_from_args(args: argparse.Namespace):
     """Server configuration from parsed options (checked, one-line errors)."""
     from stowflow.web.app import ServerConfig, is_loopback
 
-    time_limit = parse_quantity(args.time_limit, "time")
-    if not time_limit > 0:
-        raise SettingsError(f"--time-limit {args.time_limit} must be > 0 s")
+    time_limit = parse_duration(args.time_limit, "--time-limit", above=0.0)
     host = str(args.host).strip()
     loopback = is_loopback(host)
     if not loopback and not args.allow_remote:
@@ -96,10 +83,15 @@ def config_from_args(args: argparse.Namespace):
             "anyone who reaches it could run designs and read every result. Add "
             "--allow-remote to bind it anyway"
         )
-    extra = {} if args.workers is None else {"workers": _whole(args.workers, "workers", 1)}
+    extra = (
+        {}
+        if args.workers is None
+        else {"workers": parse_whole(args.workers, "--workers", at_least=1)}
+    )
     if not loopback:
         extra["allowed_hosts"] = ("*",)
-    return ServerConfig(queue=_whole(args.queue, "queue", 0), time_limit=time_limit, **extra)
+    queue = parse_whole(args.queue, "--queue", at_least=0)
+    return ServerConfig(queue=queue, time_limit=time_limit, **extra)
 
 
 def run(args: argparse.Namespace) -> int:
@@ -108,7 +100,7 @@ def run(args: argparse.Namespace) -> int:
     from stowflow.web.app import create_app, is_loopback
 
     config = config_from_args(args)
-    port = _whole(args.port, "port", 1, 65535)
+    port = parse_whole(args.port, "--port", at_least=1, at_most=65535)
     host = str(args.host).strip()
     shown = f"[{host}]" if ":" in host else host
     print(f"stowflow serve: open http://{shown}:{port}/ in a browser (Ctrl+C stops)")

@@ -27,12 +27,16 @@ from stowflow.catalogue import (
 )
 from stowflow.cli._output import print_json, print_table
 from stowflow.cycle.duty import load_cycle
-from stowflow.errors import DesignFileError, SettingsError, UnitsError
+from stowflow.errors import DesignFileError, SettingsError
 from stowflow.io.designfile import load_design, read_setpoints
-from stowflow.io.options import parse_temperature_range
+from stowflow.io.quantities import (
+    parse_duration,
+    parse_pressure_difference,
+    parse_temperature_range,
+)
 from stowflow.search.settings import DesignSettings
 from stowflow.simulation.verify import CONTROLLERS, verify
-from stowflow.units import kelvin_to_celsius, parse_quantity, to_unit
+from stowflow.units import kelvin_to_celsius, to_unit
 
 __all__ = ["SCHEMA", "register", "run"]
 
@@ -207,7 +211,7 @@ def run(args: argparse.Namespace) -> int:
     catalogue = load_catalogue(cat_path)
     min_p = None
     if args.min_pressure:
-        min_p = _quantity("--min-pressure", args.min_pressure, "pressure")
+        min_p = parse_pressure_difference(args.min_pressure, "--min-pressure")
     cycle = load_cycle(args.cycle, min_pressure=min_p)
     settings = DesignSettings()
     design_path = Path(args.design)
@@ -215,9 +219,11 @@ def run(args: argparse.Namespace) -> int:
     design, settings, notes = load_design(design_path, catalogue, settings, sched, cycle)
     changes = {}
     if args.time_constant:
-        changes["time_constant"] = _quantity("--time-constant", args.time_constant, "time")
+        changes["time_constant"] = parse_duration(args.time_constant, "--time-constant", above=0.0)
     if args.temperature:
-        changes["t_min"], changes["t_max"] = parse_temperature_range(args.temperature)
+        changes["t_min"], changes["t_max"] = parse_temperature_range(
+            args.temperature, "--temperature"
+        )
     if args.gas:
         changes["gas_model"] = args.gas
     if changes:
@@ -254,14 +260,6 @@ def run(args: argparse.Namespace) -> int:
     else:
         _print(v, record, args.out)
     return 0 if v.passed else 1
-
-
-def _quantity(flag: str, text: str, dimension: str) -> float:
-    """Parse an option with a unit to SI, naming the option in the error."""
-    try:
-        return parse_quantity(text, dimension)
-    except UnitsError as exc:
-        raise UnitsError(f"{flag}: {exc}") from None
 
 
 def _print(v, record: dict, out) -> None:

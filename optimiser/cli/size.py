@@ -12,16 +12,15 @@ from __future__ import annotations
 
 import argparse
 
-from stowflow.cli._common import parse_temperature_range
 from stowflow.cli._output import print_json, print_table
 from stowflow.cli._size_duties import add_duty_options, check_duty_options, run_duty
-from stowflow.errors import UnitsError
-from stowflow.units import (
-    abs_to_gauge,
-    gauge_to_abs,
-    parse_quantity,
-    to_unit,
+from stowflow.io.quantities import (
+    parse_gas_process,
+    parse_pressure,
+    parse_temperature_range,
+    parse_volume,
 )
+from stowflow.units import abs_to_gauge, to_unit
 
 __all__ = [
     "add_condition_options",
@@ -146,33 +145,29 @@ def add_output_options(parser: argparse.ArgumentParser) -> None:
     g.add_argument("--json", action="store_true", help="print the result as JSON")
 
 
-def _quantity(text: str, dimension: str, option: str) -> float:
-    try:
-        return parse_quantity(text, dimension)
-    except UnitsError as exc:
-        raise UnitsError(f"{option}: {exc}") from None
-
-
 def storage_inputs(args: argparse.Namespace) -> dict:
     """SI keyword arguments for :func:`stowflow.duties.sizing.size_accumulator` from the options."""
 
     def pressure(text: str, option: str) -> float:
-        p = _quantity(text, "pressure", option)
-        return p if args.absolute else gauge_to_abs(p)
+        return parse_pressure(text, option, absolute=args.absolute)
 
-    t_min, t_max = parse_temperature_range(args.temperature)
+    t_min, t_max = parse_temperature_range(args.temperature, "--temperature")
     kwargs = {
-        "oil_volume": _quantity(args.volume, "volume", "--volume"),
+        "oil_volume": parse_volume(args.volume, "--volume"),
         "p_min": pressure(args.min_pressure, "--min-pressure"),
         "p_max": pressure(args.max_pressure, "--max-pressure"),
         "precharge": None if args.precharge is None else pressure(args.precharge, "--precharge"),
-        "process": args.process or "adiabatic",
+        "process": (
+            "adiabatic"
+            if args.process is None
+            else parse_gas_process(args.process, "--process", allow_auto=False)
+        ),
         "model": args.gas,
         "T_min": t_min,
         "T_max": t_max,
     }
     if args.ps is not None:
-        kwargs["max_allowable_pressure"] = gauge_to_abs(_quantity(args.ps, "pressure", "--ps"))
+        kwargs["max_allowable_pressure"] = parse_pressure(args.ps, "--ps")
     return kwargs
 
 

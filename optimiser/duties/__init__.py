@@ -14,7 +14,7 @@ in trade units; ``stowflow size --duty reserve|shock|thermal`` is the shell over
 
 from __future__ import annotations
 
-from stowflow.duties.motions import Motion, parse_motion, read_motions
+from stowflow.duties.motions import Motion, read_motions
 from stowflow.duties.reserve import ReserveResult, reserve_pressures, size_reserve
 from stowflow.duties.shock import (
     ShockResult,
@@ -40,7 +40,6 @@ __all__ = [
     "column_energy",
     "expansion_volume",
     "gas_absorption",
-    "parse_motion",
     "read_motions",
     "reserve_pressures",
     "size_reserve",

@@ -1,4 +1,4 @@
-"""The safe-state motions of an emergency reserve: a small CSV format and a command-line form.
+"""The safe-state motions of an emergency reserve and their small CSV format.
 
 A motions CSV lists what the machine must still do from the accumulator alone when the pump
 fails, one motion a row, units in brackets in the header (parsed with :mod:`stowflow.units`,
@@ -15,7 +15,8 @@ any compatible unit), pressures **gauge**::
 * ``time``: how long it takes (the circuit leaks meanwhile).
 
 On the command line a motion is ``NAME,VOLUME,MIN_PRESSURE,TIME``, e.g.
-``"close guard,1.2L,120bar,2s"``.
+``"close guard,1.2L,120bar,2s"`` (read by the command with the option parsers of
+:mod:`stowflow.io.quantities`).
 """
 
 from __future__ import annotations
@@ -28,9 +29,9 @@ from pathlib import Path
 from stowflow.cycle.csvtable import utf8_text
 from stowflow.duties._common import bar_g, check_positive, litre
 from stowflow.errors import SettingsError, SizingError, StowflowError
-from stowflow.units import gauge_to_abs, parse_quantity, parse_unit
+from stowflow.units import gauge_to_abs, parse_unit
 
-__all__ = ["MOTION_COLUMNS", "Motion", "parse_motion", "read_motions"]
+__all__ = ["MOTION_COLUMNS", "Motion", "read_motions"]
 
 #: Columns of a motions CSV and the dimension of their unit (None: no unit).
 MOTION_COLUMNS: dict[str, str | None] = {
@@ -70,40 +71,6 @@ class Motion:
                 f"motion '{self.name}' minimum pressure must be above ambient; got "
                 f"{bar_g(self.min_pressure):g} bar"
             )
-
-
-def parse_motion(text: str, *, absolute: bool = False) -> Motion:
-    """Read ``"NAME,VOLUME,MIN_PRESSURE,TIME"``, e.g. ``"close guard,1.2L,120bar,2s"``.
-
-    Parameters
-    ----------
-    text : str
-        The motion, four comma-separated fields with units.
-    absolute : bool
-        The pressure is absolute (default gauge).
-
-    Returns
-    -------
-    Motion
-        The motion in SI units.
-    """
-    parts = [p.strip() for p in str(text).split(",")]
-    if len(parts) != 4 or not parts[0]:
-        raise SettingsError(
-            f"--motion '{text}': write NAME,VOLUME,MIN_PRESSURE,TIME, e.g. "
-            "'close guard,1.2L,120bar,2s'"
-        )
-    name, vol, p, t = parts
-    try:
-        p_si = parse_quantity(p, "pressure")
-        return Motion(
-            name,
-            parse_quantity(vol, "volume"),
-            p_si if absolute else gauge_to_abs(p_si),
-            parse_quantity(t, "time"),
-        )
-    except StowflowError as exc:
-        raise type(exc)(f"--motion '{text}': {exc}") from None
 
 
 def read_motions(path: str | Path) -> tuple[Motion, ...]:

@@ -4,29 +4,41 @@ The command line and the web page both take settings as text with units; this mo
 one place that turns that text into :class:`stowflow.search.settings.DesignSettings` (from
 :data:`DESIGN_OPTIONS`) and :class:`stowflow.costs.CostSettings` (from :data:`COST_OPTIONS`), so
 both shells accept exactly the same spellings and refuse bad ones with the same one-line
-message.
+message.  Each option's text goes to the parser of its kind in :mod:`stowflow.io.quantities`,
+named by its command-line flag (``--min-loaded-dwell``); a limit that only the settings
+check is reported with the flag too.
 """
 
 from __future__ import annotations
 
-import math
-import re
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
+from typing import Any
 
 from stowflow.costs.comparison import CostSettings
-from stowflow.errors import SettingsError, StowflowError, UnitsError
+from stowflow.errors import SettingsError
+from stowflow.io.quantities import (
+    parse_choice,
+    parse_choices,
+    parse_duration,
+    parse_energy_price,
+    parse_fraction,
+    parse_gas_process,
+    parse_number,
+    parse_per_hour,
+    parse_pressure_difference,
+    parse_temperature_range,
+    parse_whole,
+)
+from stowflow.physics.gas import GAS_MODELS
 from stowflow.search.settings import ACCUMULATOR_TYPES, DesignSettings
-from stowflow.units import celsius_to_kelvin, parse_quantity, si_factor
+from stowflow.units import si_factor
 
 __all__ = [
     "COST_OPTIONS",
     "DESIGN_OPTIONS",
+    "EXCLUSIVE_COST_OPTIONS",
     "cost_settings",
     "design_settings",
-    "parse_energy_price",
-    "parse_fraction",
-    "parse_per_hour",
-    "parse_temperature_range",
 ]
 
 #: Option name → (DesignSettings field, parser, help text).  The CLI builds its options and
@@ -96,62 +108,44 @@ DESIGN_OPTIONS: dict[str, tuple[str, str, str]] = {
 }
 
 
-def parse_temperature_range(text: str) -> tuple[float, float]:
-    """Parse ``"10..50"``, ``"-20..60"`` or ``"40"`` (°C) into (coldest, hottest) [K]."""
-    t = str(text).strip().replace("°C", "").replace("degC", "").strip()
-    m = re.fullmatch(r"([-+]?\d+(?:\.\d*)?)\s*(?:\.\.|to)\s*([-+]?\d+(?:\.\d*)?)", t)
-    try:
-        if m:
-            lo, hi = float(m.group(1)), float(m.group(2))
-        else:
-            lo = hi = float(t)
-    except ValueError:
-        raise SettingsError(
-            f"temperature '{text}' is not a range in °C; write it like 10..50 or 40"
-        ) from None
-    if lo > hi:
-        raise SettingsError(
-            f"temperature range '{text}' runs from hot to cold; write {hi:g}..{lo:g}"
-        )
-    return float(celsius_to_kelvin(lo)), float(celsius_to_kelvin(hi))
+def _flag(key: str) -> str:
+    """The option's name as the command line spells it (``time_limit`` → ``--time-limit``)."""
+    return "--" + key.replace("_", "-")
 
 
-def parse_fraction(text: str) -> float:
-    """Parse ``"10%"`` or ``"0.1"`` into a fraction [-]."""
-    t = str(text).strip()
-    try:
-        value = float(t[:-1]) / 100.0 if t.endswith("%") else float(t)
-    except ValueError:
-        raise SettingsError(f"'{text}' is not a fraction; write it like 10% or 0.1") from None
-    if not math.isfinite(value) or value < 0:
-        raise SettingsError(f"'{text}' must be a fraction ≥ 0")
-    return value
+#: Option name → parser of its text (text, the option's flag → value).  The limits mirror
+#: those :class:`DesignSettings` checks, so that a refusal names the option the user typed.
+_DESIGN_PARSERS: dict[str, Callable[[str, str], Any]] = {
+    "temperature": parse_temperature_range,
+    "gas": lambda text, flag: parse_choice(text, flag, GAS_MODELS),
+    "process": parse_gas_process,
+    "time_constant": lambda text, flag: parse_duration(text, flag, above=0.0),
+    "line_loss": parse_pressure_difference,
+    "relief_margin": parse_fraction,
+    "standby_pressure": parse_pressure_difference,
+    "min_loaded_dwell": parse_duration,
+    "min_unloaded_dwell": parse_duration,
+    "max_load_events": lambda text, flag: parse_per_hour(
+        text, flag, allow_none=True, at_least=1.0, above=None
+    ),
+    "flow_margin": lambda text, flag: parse_fraction(text, flag, below=0.5),
+    "max_count": lambda text, flag: parse_whole(text, flag, at_least=1, at_most=64),
+    "types": lambda text, flag: parse_choices(text, flag, ACCUMULATOR_TYPES),
+    "precharge_step": lambda text, flag: parse_pressure_difference(
+        text, flag, at_least=None, above=0.0
+    ),
+    "time_limit": lambda text, flag: parse_duration(text, flag, above=0.0),
+    "mip_gap": lambda text, flag: parse_fraction(text, flag, above=0.0, below=0.5),
+}
 
 
-def parse_per_hour(text: str) -> float | None:
-    """Parse ``"360/h"``, ``"6/min"``, ``"360"`` or ``"none"`` into events per hour [1/h]."""
-    t = str(text).strip().lower()
-    if t in ("none", "off", "no", "unlimited"):
-        return None
-    m = re.fullmatch(r"([-+]?\d+(?:\.\d*)?)\s*(?:/\s*(h|hour|min|minute))?", t)
-    if not m:
-        raise SettingsError(f"'{text}' is not a rate; write it like 360/h, 6/min or none")
-    value = float(m.group(1)) * (60.0 if m.group(2) in ("min", "minute") else 1.0)
-    return value
-
-
-_ZERO_RE = re.compile(r"^\s*[-+]?(?:0+\.?0*|\.0+)(?:[eE][-+]?\d+)?\s*$")
-
-
-def _quantity(text: str, dimension: str) -> float:
-    """Parse a quantity with its unit to SI; a bare zero needs none (0 s = 0 min), [SI].
-
-    Whether zero is allowed is the settings' business (:class:`DesignSettings` refuses a
-    zero time constant, for example); other bare numbers still need their unit.
-    """
-    if _ZERO_RE.match(text):
-        return 0.0
-    return parse_quantity(text, dimension)
+def _given(values: Mapping[str, str | None]) -> dict[str, str]:
+    """The options given: None and blank text leave the default."""
+    return {
+        key: str(text)
+        for key, text in values.items()
+        if text is not None and not (isinstance(text, str) and not text.strip())
+    }
 
 
 def design_settings(
@@ -170,43 +164,24 @@ def design_settings(
     -------
     DesignSettings
     """
+    start = base or DesignSettings()
     changes: dict = {}
-    for key, text in values.items():
-        if text is None or (isinstance(text, str) and not text.strip()):
-            continue
+    for key, text in _given(values).items():
         if key not in DESIGN_OPTIONS:
             raise SettingsError(f"unknown design option '{key}'")
-        field_name, kind, _ = DESIGN_OPTIONS[key]
-        try:
-            if kind == "temperature range":
-                changes["t_min"], changes["t_max"] = parse_temperature_range(text)
-            elif kind == "choice":
-                changes[field_name] = str(text).strip().lower()
-            elif kind == "text":
-                changes[field_name] = str(text).strip().lower()
-            elif kind in ("time", "pressure"):
-                changes[field_name] = _quantity(str(text), kind)
-            elif kind == "fraction":
-                changes[field_name] = parse_fraction(str(text))
-            elif kind == "per hour":
-                changes[field_name] = parse_per_hour(str(text))
-            elif kind == "integer":
-                changes[field_name] = int(str(text).strip())
-            elif kind == "types":
-                names = tuple(t.strip().lower() for t in str(text).split(",") if t.strip())
-                unknown = [t for t in names if t not in ACCUMULATOR_TYPES]
-                if unknown:
-                    raise SettingsError(
-                        f"unknown accumulator type(s) {unknown}; known: {list(ACCUMULATOR_TYPES)}"
-                    )
-                changes[field_name] = names
-        except StowflowError as exc:
-            raise SettingsError(f"--{key.replace('_', '-')}: {exc}") from None
-        except ValueError:
-            raise SettingsError(
-                f"--{key.replace('_', '-')}: '{text}' is not a whole number"
-            ) from None
-    return (base or DesignSettings()).with_(**changes)
+        field_name, _kind, _help = DESIGN_OPTIONS[key]
+        value = _DESIGN_PARSERS[key](text, _flag(key))
+        change = (
+            dict(zip(("t_min", "t_max"), value, strict=True))
+            if key == "temperature"
+            else {field_name: value}
+        )
+        try:  # a limit only the settings know: name the option anyway
+            start.with_(**change)
+        except SettingsError as exc:
+            raise SettingsError(f"{_flag(key)}: {exc}") from None
+        changes.update(change)
+    return start.with_(**changes)
 
 
 _COST_DEFAULTS = CostSettings()
@@ -248,62 +223,21 @@ COST_OPTIONS: dict[str, tuple[str, str]] = {
 #: Options of :data:`COST_OPTIONS` that exclude each other.
 EXCLUSIVE_COST_OPTIONS: tuple[str, str] = ("cycles_per_hour", "cycle_time")
 
-# number, optional currency word or symbol, "/", energy unit: "0.25/kWh", "0.11 $/kWh".
-_PRICE_RE = re.compile(
-    r"^\s*(?P<num>[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*"
-    r"(?P<cur>[^\d\s/.+-][^\s/]{0,15})?\s*/\s*(?P<unit>\S.*?)\s*$"
-)
-
-
-def parse_energy_price(text: str) -> tuple[float, str]:
-    """Read ``"0.25/kWh"`` or ``"0.11 $/kWh"``.
-
-    Parameters
-    ----------
-    text : str
-        Price per energy unit, optionally with a currency label before the slash.
-
-    Returns
-    -------
-    tuple of (float, str)
-        Price, [currency/J], and the currency label ("" when none was written).
-    """
-    m = _PRICE_RE.match(str(text))
-    if not m:
-        raise UnitsError(
-            f"energy price '{text}' is not a price per energy unit; write e.g. 0.25/kWh"
-        )
-    value = float(m.group("num"))
-    if value < 0:
-        raise SettingsError(f"energy price '{text}' is negative")
-    factor = si_factor(m.group("unit"), "energy")
-    return value / factor, (m.group("cur") or "")
-
-
-def _signed_fraction(text: str, what: str) -> float:
-    """Read ``"0.05"`` or ``"5%"`` (sign allowed) as a fraction, [-]."""
-    s = str(text).strip()
-    scale = 1.0
-    if s.endswith("%"):
-        s, scale = s[:-1].strip(), 0.01
-    try:
-        return float(s) * scale
-    except ValueError:
-        raise SettingsError(f"{what} '{text}' is not a number (examples: 0.05, 5%)") from None
-
-
-def _number(text: str, what: str) -> float:
-    try:
-        return float(str(text).strip())
-    except ValueError:
-        raise SettingsError(f"{what} '{text}' is not a number") from None
-
-
-def _whole(text: str, what: str) -> int:
-    try:
-        return int(str(text).strip())
-    except ValueError:
-        raise SettingsError(f"{what} '{text}' is not a whole number") from None
+#: Option name → parser of its text, as :data:`_DESIGN_PARSERS` (limits as CostSettings').
+_COST_PARSERS: dict[str, Callable[[str, str], Any]] = {
+    "energy_price": parse_energy_price,
+    "hours_per_year": lambda text, flag: parse_duration(
+        text, flag, at_least=None, above=0.0, default_unit="h", example="4000"
+    ),
+    "cycles_per_hour": parse_per_hour,
+    "cycle_time": lambda text, flag: parse_duration(text, flag, at_least=None, above=0.0),
+    "years": lambda text, flag: parse_whole(text, flag, at_least=1),
+    "discount_rate": lambda text, flag: parse_fraction(
+        text, flag, at_least=None, above=-0.5, at_most=1.0
+    ),
+    "installation_factor": lambda text, flag: parse_number(text, flag, above=0.0),
+    "currency": lambda text, flag: text.strip(),
+}
 
 
 def cost_settings(
@@ -331,45 +265,32 @@ def cost_settings(
     SettingsError, UnitsError
         An unknown option, a value that does not parse, or one out of range (one line).
     """
-    given = {
-        key: text
-        for key, text in values.items()
-        if text is not None and not (isinstance(text, str) and not text.strip())
-    }
+    given = _given(values)
     for key in given:
         if key not in COST_OPTIONS:
             raise SettingsError(f"unknown cost option '{key}'")
     if all(key in given for key in EXCLUSIVE_COST_OPTIONS):
         raise SettingsError(
-            f"cycles per hour '{given['cycles_per_hour']}' and cycle time "
-            f"'{given['cycle_time']}' both given; give one of them"
+            f"--cycles-per-hour '{given['cycles_per_hour'].strip()}' and --cycle-time "
+            f"'{given['cycle_time'].strip()}' both given; expected one of them"
         )
-    changes: dict = {}
-    currency = given.get("currency")
-    if "energy_price" in given:
-        changes["energy_price"], cur = parse_energy_price(given["energy_price"])
-        if cur and currency is None:
-            currency = cur
-    if "hours_per_year" in given:
-        changes["operating_time"] = parse_quantity(
-            str(given["hours_per_year"]), "time", default_unit="h"
-        )
-    if "cycles_per_hour" in given:
-        n = _number(given["cycles_per_hour"], "cycles per hour")
-        if not n > 0:
-            raise SettingsError(f"cycles per hour must be > 0, got {given['cycles_per_hour']}")
-        changes["cycle_time"] = si_factor("h", "time") / n
-    if "cycle_time" in given:
-        changes["cycle_time"] = parse_quantity(str(given["cycle_time"]), "time")
-    if "years" in given:
-        changes["years"] = _whole(given["years"], "years")
-    if "discount_rate" in given:
-        changes["discount_rate"] = _signed_fraction(given["discount_rate"], "discount rate")
-    if "installation_factor" in given:
-        changes["installation_factor"] = _number(
-            given["installation_factor"], "installation factor"
-        )
-    if currency is not None:
-        changes["currency"] = str(currency).strip()
     start = base or _COST_DEFAULTS
+    changes: dict = {}
+    for key, text in given.items():
+        value = _COST_PARSERS[key](text, _flag(key))
+        if key == "energy_price":
+            change = {"energy_price": value[0]}
+            if value[1] and "currency" not in given:
+                change["currency"] = value[1]
+        elif key == "hours_per_year":
+            change = {"operating_time": value}
+        elif key == "cycles_per_hour":
+            change = {"cycle_time": si_factor("h", "time") / value}
+        else:
+            change = {key: value}
+        try:  # a limit only the settings know: name the option anyway
+            CostSettings(**{**start.__dict__, **change})
+        except SettingsError as exc:
+            raise SettingsError(f"{_flag(key)}: {exc}") from None
+        changes.update(change)
     return CostSettings(**{**start.__dict__, **changes})

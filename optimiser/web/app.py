@@ -203,10 +203,19 @@ def create_app(config: ServerConfig | None = None) -> Starlette:
         and removes the temporary folder.
     """
     cfg = config or ServerConfig()
-    demo_cycle = cfg.demo_cycle or default_catalogue_path().parent / "forming_press.csv"
-    limits = cfg.limits
-    sections = form_sections(limits)
-    manager = JobManager(
+    manager = _job_manager(cfg)
+    pages = _Pages(cfg, manager, _templates(cfg))
+    return Starlette(
+        routes=_routes(pages),
+        middleware=_middleware(cfg),
+        exception_handlers={HTTPException: pages.http_error, 500: pages.http_error},
+        lifespan=_lifespan(manager),
+    )
+
+
+def _job_manager(cfg: ServerConfig) -> JobManager:
+    """The queue and worker processes of one server (started by the lifespan)."""
+    return JobManager(
         workers=cfg.workers,
         queue=cfg.queue,
         time_limit=cfg.time_limit,
@@ -214,6 +223,10 @@ def create_app(config: ServerConfig | None = None) -> Starlette:
         warm_up=cfg.warm_up,
         target=cfg.job_target,
     )
+
+
+def _templates(cfg: ServerConfig) -> Jinja2Templates:
+    """The pages' Jinja2 templates, autoescaped, with the server's limits as globals."""
     env = jinja2.Environment(
         loader=jinja2.FileSystemLoader(HERE / "templates"),
         autoescape=True,
@@ -228,136 +241,33 @@ def create_app(config: ServerConfig | None = None) -> Starlette:
         time_limit=cfg.time_limit,
     )
     env.filters["clock"] = lambda t: _dt.datetime.fromtimestamp(t).strftime("%H:%M:%S")
-    templates = Jinja2Templates(env=env)
+    return Jinja2Templates(env=env)
 
-    def page(request: Request, name: str, status: int = 200, headers=None, **context):
-        return templates.TemplateResponse(
-            request, name, {"nav": name, **context}, status_code=status, headers=headers
-        )
 
-    def form_page(request: Request, *, error: str = "", values=None, status: int = 200, **kw):
-        return page(
-            request,
-            "index.html",
-            status,
-            sections=sections,
-            error=error,
-            values=values or {},
-            cycle_field=CYCLE_FIELD,
-            catalogue_field=CATALOGUE_FIELD,
-            demo_field=DEMO_FIELD,
-            **kw,
-        )
+def _routes(pages: _Pages) -> list:
+    """The routes of the table at the top of this module."""
+    return [
+        Route("/", pages.index),
+        Route("/studies", pages.submit, methods=["POST"]),
+        Route("/studies", pages.studies),
+        Route("/studies/{sid}", pages.study),
+        Route("/studies/{sid}/status", pages.status),
+        Route("/studies/{sid}/report", pages.report),
+        Route("/studies/{sid}/files/{name}", pages.download),
+        Mount("/static", StaticFiles(directory=HERE / "static"), name="static"),
+    ]
 
-    def busy(request: Request, retry_after: int, values=None) -> Response:
-        return form_page(
-            request,
-            error=(
-                f"all {cfg.workers} worker(s) are busy and {cfg.queue} design(s) are waiting; "
-                f"try again in about {retry_after} s"
-            ),
-            values=values,
-            status=503,
-            headers={"Retry-After": str(retry_after)},
-        )
 
-    def job_or_404(request: Request) -> Job:
-        sid = request.path_params["sid"]
-        job = manager.get(sid) if _ID.fullmatch(sid) else None
-        if job is None:
-            raise HTTPException(404, "no study with this id on this server")
-        return job
+def _middleware(cfg: ServerConfig) -> list[Middleware]:
+    """Security headers on every response; unknown Host headers refused unless any is allowed."""
+    middleware = [Middleware(SecurityHeaders)]
+    if "*" not in cfg.allowed_hosts:
+        middleware.append(Middleware(TrustedHostMiddleware, allowed_hosts=cfg.allowed_hosts))
+    return middleware
 
-    async def index(request: Request) -> Response:
-        return form_page(request)
 
-    async def submit(request: Request) -> Response:
-        origin = request.headers.get("origin")
-        if origin and origin != "null" and urlsplit(origin).netloc != request.url.netloc:
-            raise HTTPException(403, "form posted from another site; use this page's form")
-        if manager.full():
-            return busy(request, manager.retry_after())
-        try:
-            form = await read_form(
-                request.headers,
-                request.stream(),
-                max_bytes=cfg.max_upload_bytes,
-                text_fields=TEXT_FIELDS,
-                file_fields=FILE_FIELDS,
-                max_lines={CYCLE_FIELD: (cfg.max_rows + EXTRA_LINES, cfg.max_rows)},
-            )
-        except UploadError as exc:
-            return form_page(request, error=str(exc), status=exc.status)
-        values = {k: v for k, v in form.fields.items() if k != DEMO_FIELD}
-        try:
-            study, source = await run_in_threadpool(build_study, form, limits, demo_cycle)
-        except StowflowError as exc:
-            return form_page(request, error=str(exc), values=values, status=422)
-        try:
-            job = manager.submit(study, name=study.name or "study", source=source)
-        except QueueFull as exc:
-            return busy(request, exc.retry_after, values)
-        return RedirectResponse(f"/studies/{job.id}", status_code=303)
-
-    async def studies(request: Request) -> Response:
-        jobs = list(reversed(manager.jobs.values()))
-        return page(request, "studies.html", jobs=jobs, manager=manager)
-
-    async def study(request: Request) -> Response:
-        job = job_or_404(request)
-        return page(
-            request,
-            "study.html",
-            job=job,
-            position=manager.queue_position(job),
-            outputs=OUTPUTS,
-        )
-
-    async def status(request: Request) -> Response:
-        job = job_or_404(request)
-        return JSONResponse(
-            {
-                "id": job.id,
-                "state": job.state,
-                "fraction": round(job.fraction, 4),
-                "label": job.label,
-                "message": job.message,
-                "queue_position": manager.queue_position(job),
-                "elapsed_s": round(job.elapsed, 2),
-                "summary": job.summary,
-            }
-        )
-
-    def _file(job: Job, name: str) -> Path:
-        path = manager.folder(job) / name
-        if job.state != "done" or not path.is_file():
-            raise HTTPException(404, "this study has no such file (yet)")
-        return path
-
-    async def report(request: Request) -> Response:
-        job = job_or_404(request)
-        return FileResponse(
-            _file(job, "report.html"),
-            media_type=_MEDIA["report.html"],
-            headers={"Content-Security-Policy": REPORT_CSP, "X-Frame-Options": "SAMEORIGIN"},
-        )
-
-    async def download(request: Request) -> Response:
-        job = job_or_404(request)
-        name = request.path_params["name"]
-        if name not in OUTPUTS:
-            raise HTTPException(404, f"no file of that name; the files are {', '.join(OUTPUTS)}")
-        return FileResponse(
-            _file(job, name),
-            media_type=_MEDIA[name],
-            filename=f"{job.name}-{name}",
-            headers={"Content-Security-Policy": REPORT_CSP},
-        )
-
-    async def http_error(request: Request, exc: Exception) -> Response:
-        code = getattr(exc, "status_code", 500)
-        detail = getattr(exc, "detail", "") if code != 500 else ""
-        return page(request, "error.html", code, code=code, detail=detail or "something went wrong")
+def _lifespan(manager: JobManager):
+    """Start the workers with the app; at shutdown kill them and remove the temporary folder."""
 
     @contextlib.asynccontextmanager
     async def lifespan(app: Starlette):
@@ -368,22 +278,160 @@ def create_app(config: ServerConfig | None = None) -> Starlette:
         finally:
             await manager.stop()
 
-    routes = [
-        Route("/", index),
-        Route("/studies", submit, methods=["POST"]),
-        Route("/studies", studies),
-        Route("/studies/{sid}", study),
-        Route("/studies/{sid}/status", status),
-        Route("/studies/{sid}/report", report),
-        Route("/studies/{sid}/files/{name}", download),
-        Mount("/static", StaticFiles(directory=HERE / "static"), name="static"),
-    ]
-    middleware = [Middleware(SecurityHeaders)]
-    if "*" not in cfg.allowed_hosts:
-        middleware.append(Middleware(TrustedHostMiddleware, allowed_hosts=cfg.allowed_hosts))
-    return Starlette(
-        routes=routes,
-        middleware=middleware,
-        exception_handlers={HTTPException: http_error, 500: http_error},
-        lifespan=lifespan,
-    )
+    return lifespan
+
+
+class _Pages:
+    """The route handlers of one server and the page helpers they share.
+
+    Parameters
+    ----------
+    cfg : ServerConfig
+        The server's limits and sizes.
+    manager : JobManager
+        The server's design jobs.
+    templates : starlette.templating.Jinja2Templates
+        The pages' templates.
+    """
+
+    def __init__(self, cfg: ServerConfig, manager: JobManager, templates: Jinja2Templates):
+        self.cfg = cfg
+        self.manager = manager
+        self.templates = templates
+        self.limits = cfg.limits
+        self.sections = form_sections(self.limits)
+        self.demo_cycle = cfg.demo_cycle or default_catalogue_path().parent / "forming_press.csv"
+
+    # ------------------------------------------------------------------ helpers
+    def page(self, request: Request, name: str, status: int = 200, headers=None, **context):
+        return self.templates.TemplateResponse(
+            request, name, {"nav": name, **context}, status_code=status, headers=headers
+        )
+
+    def form_page(self, request: Request, *, error: str = "", values=None, status: int = 200, **kw):
+        return self.page(
+            request,
+            "index.html",
+            status,
+            sections=self.sections,
+            error=error,
+            values=values or {},
+            cycle_field=CYCLE_FIELD,
+            catalogue_field=CATALOGUE_FIELD,
+            demo_field=DEMO_FIELD,
+            **kw,
+        )
+
+    def busy(self, request: Request, retry_after: int, values=None) -> Response:
+        return self.form_page(
+            request,
+            error=(
+                f"all {self.cfg.workers} worker(s) are busy and {self.cfg.queue} design(s) are "
+                f"waiting; try again in about {retry_after} s"
+            ),
+            values=values,
+            status=503,
+            headers={"Retry-After": str(retry_after)},
+        )
+
+    def job_or_404(self, request: Request) -> Job:
+        sid = request.path_params["sid"]
+        job = self.manager.get(sid) if _ID.fullmatch(sid) else None
+        if job is None:
+            raise HTTPException(404, "no study with this id on this server")
+        return job
+
+    def file(self, job: Job, name: str) -> Path:
+        path = self.manager.folder(job) / name
+        if job.state != "done" or not path.is_file():
+            raise HTTPException(404, "this study has no such file (yet)")
+        return path
+
+    # ------------------------------------------------------------------ routes
+    async def index(self, request: Request) -> Response:
+        return self.form_page(request)
+
+    async def submit(self, request: Request) -> Response:
+        origin = request.headers.get("origin")
+        if origin and origin != "null" and urlsplit(origin).netloc != request.url.netloc:
+            raise HTTPException(403, "form posted from another site; use this page's form")
+        if self.manager.full():
+            return self.busy(request, self.manager.retry_after())
+        cfg = self.cfg
+        try:
+            form = await read_form(
+                request.headers,
+                request.stream(),
+                max_bytes=cfg.max_upload_bytes,
+                text_fields=TEXT_FIELDS,
+                file_fields=FILE_FIELDS,
+                max_lines={CYCLE_FIELD: (cfg.max_rows + EXTRA_LINES, cfg.max_rows)},
+            )
+        except UploadError as exc:
+            return self.form_page(request, error=str(exc), status=exc.status)
+        values = {k: v for k, v in form.fields.items() if k != DEMO_FIELD}
+        try:
+            study, source = await run_in_threadpool(build_study, form, self.limits, self.demo_cycle)
+        except StowflowError as exc:
+            return self.form_page(request, error=str(exc), values=values, status=422)
+        try:
+            job = self.manager.submit(study, name=study.name or "study", source=source)
+        except QueueFull as exc:
+            return self.busy(request, exc.retry_after, values)
+        return RedirectResponse(f"/studies/{job.id}", status_code=303)
+
+    async def studies(self, request: Request) -> Response:
+        jobs = list(reversed(self.manager.jobs.values()))
+        return self.page(request, "studies.html", jobs=jobs, manager=self.manager)
+
+    async def study(self, request: Request) -> Response:
+        job = self.job_or_404(request)
+        return self.page(
+            request,
+            "study.html",
+            job=job,
+            position=self.manager.queue_position(job),
+            outputs=OUTPUTS,
+        )
+
+    async def status(self, request: Request) -> Response:
+        job = self.job_or_404(request)
+        return JSONResponse(
+            {
+                "id": job.id,
+                "state": job.state,
+                "fraction": round(job.fraction, 4),
+                "label": job.label,
+                "message": job.message,
+                "queue_position": self.manager.queue_position(job),
+                "elapsed_s": round(job.elapsed, 2),
+                "summary": job.summary,
+            }
+        )
+
+    async def report(self, request: Request) -> Response:
+        job = self.job_or_404(request)
+        return FileResponse(
+            self.file(job, "report.html"),
+            media_type=_MEDIA["report.html"],
+            headers={"Content-Security-Policy": REPORT_CSP, "X-Frame-Options": "SAMEORIGIN"},
+        )
+
+    async def download(self, request: Request) -> Response:
+        job = self.job_or_404(request)
+        name = request.path_params["name"]
+        if name not in OUTPUTS:
+            raise HTTPException(404, f"no file of that name; the files are {', '.join(OUTPUTS)}")
+        return FileResponse(
+            self.file(job, name),
+            media_type=_MEDIA[name],
+            filename=f"{job.name}-{name}",
+            headers={"Content-Security-Policy": REPORT_CSP},
+        )
+
+    async def http_error(self, request: Request, exc: Exception) -> Response:
+        code = getattr(exc, "status_code", 500)
+        detail = getattr(exc, "detail", "") if code != 500 else ""
+        return self.page(
+            request, "error.html", code, code=code, detail=detail or "something went wrong"
+        )

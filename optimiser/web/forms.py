@@ -5,8 +5,10 @@ Every settings field comes from :data:`stowflow.io.options.DESIGN_OPTIONS` (form
 text; a new option in a table appears on the page by itself.  This module only gives the
 fields their labels (the trade's terms) and order.  The text typed in goes, unchanged, to the
 same parsers the command line uses: :func:`~stowflow.io.options.design_settings`,
-:func:`~stowflow.io.options.cost_settings`, :func:`~stowflow.units.parse_quantity`,
+:func:`~stowflow.io.options.cost_settings`, the option parsers of :mod:`stowflow.io.quantities`,
 :func:`~stowflow.cycle.duty.parse_cycle_bytes` and :func:`~stowflow.catalogue.parse_catalogue_text`.
+A refusal names the option by its command-line flag (``--min-pressure``), as the command line
+does.
 """
 
 from __future__ import annotations
@@ -21,10 +23,10 @@ from stowflow.cycle.csvtable import utf8_text
 from stowflow.cycle.duty import DutyCycle, parse_cycle_bytes
 from stowflow.errors import CatalogueError, SettingsError
 from stowflow.io.options import COST_OPTIONS, DESIGN_OPTIONS, cost_settings, design_settings
+from stowflow.io.quantities import parse_duration, parse_pressure_difference
 from stowflow.physics.gas import GasModel
 from stowflow.pipeline import MAX_TIGHTENINGS, Study
 from stowflow.search.settings import DesignSettings
-from stowflow.units import parse_quantity
 from stowflow.web.upload import UploadedForm
 
 __all__ = [
@@ -249,9 +251,10 @@ def build_study(form: UploadedForm, limits: FormLimits, demo_cycle: Path) -> tup
     settings = design_settings(values, base=DesignSettings(time_limit=limits.solve_time_limit))
     if settings.time_limit > limits.job_time_limit:
         raise SettingsError(
-            f"time limit of one schedule solve {settings.time_limit:g} s is longer than this "
-            f"server's limit of {limits.job_time_limit:g} s per design (stowflow serve "
-            "--time-limit); give a shorter one"
+            f"--time-limit: '{values['time_limit'].strip()}' is longer than this server's limit "
+            f"of {limits.job_time_limit:g} s per design (stowflow serve --time-limit); expected "
+            f"a time limit of one schedule solve ≤ {limits.job_time_limit:g} s, e.g. "
+            f"{limits.solve_time_limit:g}s"
         )
     costs = cost_settings({key: form.fields.get(f"c_{key}") for key in COST_OPTIONS})
     min_p = _optional(form, "min_pressure")
@@ -270,8 +273,8 @@ def build_study(form: UploadedForm, limits: FormLimits, demo_cycle: Path) -> tup
         data,
         source=source,
         name=name,
-        step=parse_quantity(step, "time") if step else None,
-        min_pressure=parse_quantity(min_p, "pressure") if min_p else None,
+        step=parse_duration(step, "--step", above=0.0) if step else None,
+        min_pressure=parse_pressure_difference(min_p, "--min-pressure") if min_p else None,
         max_rows=limits.max_rows,
     )
     catalogue: Catalogue | None = None

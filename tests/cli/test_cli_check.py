@@ -69,12 +69,35 @@ def test_min_pressure_and_step_options(tmp_path, run_cli):
 @pytest.mark.parametrize(
     ("options", "match"),
     [
-        (["--step", "10"], r"--step: '10' has no unit"),
-        (["--step", "10bar"], r"--step: unit 'bar' is a pressure unit, expected a time unit"),
+        (
+            ["--step", "10"],
+            r"--step: '10' has no unit; expected a time > 0 s with its unit, e\.g\. 1s$",
+        ),
+        (
+            ["--step", "10bar"],
+            r"--step: '10bar' has the pressure unit 'bar'; expected a time > 0 s with its unit, "
+            r"e\.g\. 1s$",
+        ),
         (["--step", "0.3s"], r"step 0.3 s does not divide the cycle duration 32 s"),
-        (["--min-pressure", "100"], r"--min-pressure: '100' has no unit"),
-        (["--min-pressure", "fast"], r"--min-pressure: 'fast' is not a number with a unit"),
-        (["--min-pressure=-3bar"], r"min_pressure is -3 bar; expected a finite value >= 0"),
+        (
+            ["--min-pressure", "100"],
+            r"--min-pressure: '100' has no unit; expected a pressure ≥ 0 bar with its unit, "
+            r"e\.g\. 100bar$",
+        ),
+        (
+            ["--min-pressure", "fast"],
+            r"--min-pressure: 'fast' is not a number with a unit; expected a pressure ≥ 0 bar "
+            r"with its unit, e\.g\. 100bar$",
+        ),
+        (
+            ["--min-pressure=-3bar"],
+            r"--min-pressure: '-3bar' is below 0 bar; expected a pressure ≥ 0 bar with its unit, "
+            r"e\.g\. 100bar$",
+        ),
+        (
+            ["--max-steps", "many"],
+            r"--max-steps: 'many' is not a whole number; expected a whole number ≥ 1$",
+        ),
     ],
 )
 def test_bad_options_exit_2_with_one_line(options, match, run_cli):

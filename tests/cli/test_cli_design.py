@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import re
 import subprocess
 import sys
 
@@ -10,7 +11,7 @@ import pytest
 import stowflow.cli as cli
 from stowflow.cli import build_parser, join_dash_values
 from stowflow.cli.design import settings_from_args
-from stowflow.errors import StowflowError
+from stowflow.errors import UnitsError
 
 #: 0 °C on the kelvin scale (ITS-90 offset), [K].
 ZERO_C = 273.15
@@ -49,14 +50,46 @@ def test_min_dwell_zero_needs_no_unit(zero):
 
 
 def test_other_bare_numbers_still_need_a_unit():
-    with pytest.raises(StowflowError, match=r"'1' has no unit"):
+    message = "--min-dwell: '1' has no unit; expected a time ≥ 0 s with its unit, e.g. 1s"
+    with pytest.raises(UnitsError, match=f"^{re.escape(message)}$"):
         settings_from_args(_design_args("--min-dwell", "1"))
 
 
-def test_zero_where_zero_means_nothing_is_refused_by_the_settings(run_cli):
-    code, stdout, stderr = run_cli("design", "cycle.csv", "--time-constant", "0")
-    assert code == 2 and stdout == ""
-    assert stderr.count("\n") == 1 and "time_constant must be a positive" in stderr
+@pytest.mark.parametrize(
+    ("options", "message"),
+    [
+        (
+            # Regression: named the settings' field min_loaded_dwell, without a unit.
+            ("--min-dwell", "-1s"),
+            "--min-dwell: '-1s' is below 0 s; expected a time ≥ 0 s with its unit, e.g. 1s",
+        ),
+        (
+            ("--min-loaded-dwell", "-1s"),
+            "--min-loaded-dwell: '-1s' is below 0 s; expected a time ≥ 0 s with its unit, e.g. 1s",
+        ),
+        (
+            ("--time-constant", "0"),
+            "--time-constant: '0' is not above 0 s; expected a time > 0 s with its unit, e.g. 1s",
+        ),
+        (
+            ("--temperature", "180"),
+            "--temperature: design settings: operating temperatures must lie between −73 °C "
+            "and 177 °C",
+        ),
+        (
+            ("--max-load-events", "often"),
+            "--max-load-events: 'often' is not a rate; expected a rate ≥ 1 per hour, e.g. "
+            "360/h or 6/min, or none",
+        ),
+        (
+            ("--years", "2.5"),
+            "--years: '2.5' is not a whole number; expected a whole number ≥ 1",
+        ),
+    ],
+)
+def test_refusals_name_the_option_typed(run_cli, options, message):
+    code, stdout, stderr = run_cli("design", "cycle.csv", *options)
+    assert (code, stdout, stderr) == (2, "", f"stowflow: error: {message}\n")
 
 
 @pytest.mark.parametrize(

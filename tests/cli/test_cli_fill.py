@@ -46,7 +46,7 @@ def test_register_on_a_fresh_parser():
     fill_cmd.register(sub, common)
     precharge_cmd.register(sub, common)
     args = parser.parse_args([*FILL, "--json"])
-    assert args.func is fill_cmd.run and args.bottles == 4
+    assert args.func is fill_cmd.run and args.bottles == "4"  # read by the command
     args = parser.parse_args(["precharge", "90bar", "--temperature", "-10..50"])
     assert args.func is precharge_cmd.run and args.temperature == "-10..50"
 
@@ -121,12 +121,55 @@ def test_help(capsys, command):
         ([*FILL, "--ambient", "10..20"], "one temperature"),
         ([*FILL, "--booster-ratio", "4"], "needs both --booster-ratio and --booster-stroke"),
         ([*FILL, "--ps", "150bar"], "exceeds the accumulator's PS"),
-        (["precharge", "90bar", "--step", "0"], "--step must be > 0"),
-        (["precharge", "90L"], "pressure unit"),
-        (["precharge", "0.5bar", "--absolute"], "above ambient"),
     ],
 )
 def test_errors_are_one_line_exit_2(capsys, argv, match):
     code, out, err = run(argv, capsys)
     assert code == 2 and out == ""
     assert err.startswith("stowflow: error: ") and match in err and err.count("\n") == 1
+
+
+@pytest.mark.parametrize(
+    ("argv", "message"),
+    [
+        (
+            ["precharge", "90bar", "--step", "0"],
+            "--step: '0' is not above 0 K; expected a step > 0 K, e.g. 5 or 5K",
+        ),
+        (
+            ["precharge", "90bar", "--step", "0.01"],
+            "--step: '0.01' gives 6001 rows from --temperature '-10..50'; expected a step that "
+            "gives at most 1000 rows",
+        ),
+        (
+            ["precharge", "90L"],
+            "precharge: '90L' has the volume unit 'L'; expected a gauge pressure with its unit, "
+            "e.g. 100bar",
+        ),
+        (
+            ["precharge", "0.5bar", "--absolute"],
+            "precharge: '0.5bar' is not above ambient; expected a precharge > 1.01325 bar "
+            "absolute, e.g. 90bar",
+        ),
+        (
+            [*FILL, "--ambient", "10..20"],
+            "--ambient: '10..20' is a range; expected one temperature in °C, e.g. 15",
+        ),
+        (
+            [*FILL[:8], "four", *FILL[9:]],
+            "--bottles: 'four' is not a whole number; expected a whole number ≥ 1",
+        ),
+        (
+            [*FILL, "--booster-ratio", "1", "--booster-stroke", "0.2L"],
+            "--booster-ratio: '1' is not above 1; expected a number > 1",
+        ),
+        (
+            [*FILL, "--table", "0..40", "--step", "５"],
+            "--step: '５' has a digit other than 0-9 ('５', U+FF15); expected a step > 0 K, "
+            "e.g. 5 or 5K",
+        ),
+    ],
+)
+def test_error_messages(capsys, argv, message):
+    code, out, err = run(argv, capsys)
+    assert (code, out, err) == (2, "", f"stowflow: error: {message}\n")

@@ -3,9 +3,13 @@
 from __future__ import annotations
 
 import json
+import re
 
 import pytest
 import stowflow.cli as cli
+from stowflow.cli._size_duties import motion_from_text
+from stowflow.errors import SettingsError, UnitsError
+from stowflow.units import P_AMBIENT
 
 RESERVE = [
     "size",
@@ -179,14 +183,79 @@ def test_storage_stays_the_default(capsys):
         ([*RESERVE, "--charge-pressure", "110bar"], "not below the charge pressure"),
         ([*SHOCK, "--flow", "100L/min"], "exactly one of --velocity and --flow"),
         ([*SHOCK, "--peak-limit", "140bar"], "must exceed the operating pressure"),
-        ([*SHOCK[:-2], "--peak-limit", "180"], "has no unit"),
-        ([*SHOCK, "--velocity", "4bar"], "--velocity: unknown or wrong unit"),
+        (
+            [*SHOCK[:-2], "--peak-limit", "180"],
+            "--peak-limit: '180' has no unit; expected a gauge pressure with its unit, e.g. 100bar",
+        ),
+        (
+            [*SHOCK, "--velocity", "4bar"],
+            "--velocity: '4bar' has the pressure unit 'bar'; expected a velocity ≥ 0 m/s with "
+            "its unit, e.g. 4m/s",
+        ),
+        (
+            [*SHOCK, "--oil-density", "870kg"],
+            "--oil-density: '870kg' has the unit 'kg', which is not a density unit; expected "
+            "a density > 0 kg/m3 with its unit, e.g. 870kg/m3",
+        ),
+        (
+            [*SHOCK, "--constraint", "x"],
+            "--constraint: 'x' is not a number; expected a number > 0",
+        ),
         ([*THERMAL[:6], "20", *THERMAL[7:]], "needs --temperature T1..T2"),
         ([*THERMAL, "--pressure-limit", "40bar"], "must exceed the start pressure"),
-        ([*THERMAL, "--oil-expansion", "7e-4"], "not a number with a unit"),
+        (
+            [*THERMAL, "--oil-expansion", "7e-4"],
+            "--oil-expansion: '7e-4' has no unit; expected an expansion coefficient ≥ 0/K with "
+            "its unit, e.g. 7e-4/K",
+        ),
+        (
+            [*RESERVE, "--process", "polytropic:0.5"],
+            "--process: 'polytropic:0.5' is refused: polytropic index n = 0.5 is outside 1…3 "
+            "(n < 1 needs heat added while compressing); expected isothermal, adiabatic or "
+            "polytropic:N, e.g. polytropic:1.3",
+        ),
     ],
 )
 def test_errors_are_one_line_exit_2(capsys, argv, match):
     code, out, err = run(argv, capsys)
     assert code == 2 and out == ""
     assert err.startswith("stowflow: error: ") and match in err and err.count("\n") == 1
+
+
+def test_motion_option():
+    m = motion_from_text("close guard, 1200mL, 1740psi, 2000ms")
+    assert m.name == "close guard"
+    assert m.volume == pytest.approx(1.2e-3)
+    # 1 psi = 6894.757293168 Pa (NIST SP 811, 2008, Appendix B)
+    assert m.min_pressure == pytest.approx(1740 * 6894.757293168 + P_AMBIENT)
+    assert m.time == pytest.approx(2.0)
+    absolute = motion_from_text("a,1L,100bar,1s", absolute=True)
+    assert absolute.min_pressure == pytest.approx(100e5)
+
+
+@pytest.mark.parametrize(
+    ("text", "error", "message"),
+    [
+        (
+            "close guard, 1.2L",
+            SettingsError,
+            "--motion: 'close guard, 1.2L' is not four comma-separated fields; expected "
+            "NAME,VOLUME,MIN_PRESSURE,TIME, e.g. 'close guard,1.2L,120bar,2s'",
+        ),
+        (
+            "close guard,1.2bar,120bar,2s",
+            UnitsError,
+            "--motion 'close guard': '1.2bar' has the pressure unit 'bar'; expected a volume "
+            "≥ 0 L with its unit, e.g. 5L",
+        ),
+        (
+            "close guard,1.2L,120bar,-2s",
+            SettingsError,
+            "--motion 'close guard': '-2s' is below 0 s; expected a time ≥ 0 s with its unit, "
+            "e.g. 1s",
+        ),
+    ],
+)
+def test_motion_option_errors(text, error, message):
+    with pytest.raises(error, match=f"^{re.escape(message)}$"):
+        motion_from_text(text)

@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import argparse
 import math
+import re
 
 import numpy as np
 import pandas as pd
@@ -15,7 +16,7 @@ import pytest
 from hypothesis import given
 from hypothesis import strategies as st
 from stowflow.catalogue import AccumulatorOption, MotorOption, PumpOption
-from stowflow.cli._costopts import add_cost_options, cost_settings_from_args, parse_energy_price
+from stowflow.cli._costopts import add_cost_options, cost_settings_from_args
 from stowflow.costs.comparison import (
     OPTION_KEYS,
     CostSettings,
@@ -29,6 +30,7 @@ from stowflow.costs.comparison import (
 )
 from stowflow.cycle.duty import cycle_from_arrays
 from stowflow.errors import SettingsError, UnitsError
+from stowflow.io.quantities import parse_energy_price
 from stowflow.search.solution import Bank, Baseline, Design
 from stowflow.simulation.verify import ControllerRun, Verification
 from stowflow.units import si_factor
@@ -348,23 +350,48 @@ def test_cost_options_other_units_and_defaults():
     assert _args() == CostSettings()
 
 
+_PRICE = "expected a price ≥ 0 per energy unit, e.g. 0.25/kWh or 0.11 EUR/kWh"
+
+
 @pytest.mark.parametrize(
-    ("text", "error", "match"),
+    ("text", "error", "message"),
     [
-        ("0.25", UnitsError, "not a price per energy unit"),
-        ("cheap/kWh", UnitsError, "not a price per energy unit"),
-        ("0.25/kW", UnitsError, "is a power unit"),
+        ("0.25", UnitsError, f"'0.25' is not a price per energy unit; {_PRICE}"),
+        ("cheap/kWh", UnitsError, f"'cheap/kWh' is not a price per energy unit; {_PRICE}"),
+        ("0.25/kW", UnitsError, f"'0.25/kW' has the power unit 'kW'; {_PRICE}"),
     ],
 )
-def test_energy_price_errors(text, error, match):
-    with pytest.raises(error, match=match):
-        parse_energy_price(text)
+def test_energy_price_errors(text, error, message):
+    with pytest.raises(error, match=f"^{re.escape('--energy-price: ' + message)}$"):
+        parse_energy_price(text, "--energy-price")
 
 
-def test_cost_options_errors_are_one_line():
-    with pytest.raises(SettingsError, match="cycles per hour must be > 0"):
-        _args("--cycles-per-hour", "0")
-    with pytest.raises(SettingsError, match="discount rate 'lots' is not a number"):
-        _args("--discount-rate", "lots")
-    with pytest.raises(SettingsError, match="operating time must be > 0 h"):
-        _args("--hours-per-year", "0")
+@pytest.mark.parametrize(
+    ("argv", "message"),
+    [
+        (
+            ("--cycles-per-hour", "0"),
+            "--cycles-per-hour: '0' is not above 0 per hour; expected a rate > 0 per hour, "
+            "e.g. 360/h or 6/min",
+        ),
+        (
+            ("--discount-rate", "lots"),
+            "--discount-rate: 'lots' is not a percentage or a fraction; expected a fraction "
+            "> -50 % and ≤ 100 %, as a percentage or a number, e.g. 10% or 0.1",
+        ),
+        (
+            ("--hours-per-year", "0"),
+            "--hours-per-year: '0' is not above 0 h; expected a time > 0 h, a bare number in h "
+            "or one with its unit, e.g. 4000",
+        ),
+        (
+            ("--hours-per-year", "9000"),
+            "--hours-per-year: cost settings: operating time must be > 0 h and at most 8766 h "
+            "per year, got 9000.0 h",
+        ),
+        (("--years", "ten"), "--years: 'ten' is not a whole number; expected a whole number ≥ 1"),
+    ],
+)
+def test_cost_options_errors_are_one_line(argv, message):
+    with pytest.raises(SettingsError, match=f"^{re.escape(message)}$"):
+        _args(*argv)

@@ -14,7 +14,6 @@ from stowflow.duties import (
     blocked_pressure_rise,
     expansion_volume,
     gas_absorption,
-    parse_motion,
     read_motions,
     reserve_pressures,
     size_reserve,
@@ -24,7 +23,7 @@ from stowflow.duties import (
     wave_speed,
 )
 from stowflow.duties.properties import OIL_EXPANSION, STEEL_EXPANSION, STEEL_POISSON
-from stowflow.errors import SettingsError, SizingError, StowflowError
+from stowflow.errors import SizingError, StowflowError
 from stowflow.physics.gas import KAPPA, pressure_from_density
 from stowflow.physics.nitrogen import fields_rhoT, isentrope_T_at_rho
 from stowflow.units import P_AMBIENT, T_REF
@@ -321,13 +320,8 @@ def test_reserve_refuses_impossible_input(kw, match):
         size_reserve(**args)
 
 
-def test_motion_option_and_csv(tmp_path, repo_root):
-    m = parse_motion("close guard, 1200mL, 1740psi, 2000ms")
-    assert m.volume == pytest.approx(1.2 * LITRE)
-    assert m.min_pressure == pytest.approx(1740 * 6894.757293168 + P_AMBIENT)
-    assert m.time == pytest.approx(2.0)
-    with pytest.raises(SettingsError, match="NAME,VOLUME,MIN_PRESSURE,TIME"):
-        parse_motion("close guard, 1.2L")
+def test_motions_csv(tmp_path, repo_root):
+    # The --motion option's text is read by the command: tests/cli/test_cli_size_duties.py.
     demo = read_motions(repo_root / "duty_cycles" / "motions" / "motions_demo.csv")
     assert [x.name for x in demo] == ["close safety guard", "retract upper tool", "lock slide"]
     f = tmp_path / "m.csv"
