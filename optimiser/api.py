@@ -258,17 +258,19 @@ def settings(**settings: Any) -> Settings:
 
 
 def _quantity(value, dimension: str, what: str) -> float | None:
-    """Text with a unit → SI via :func:`stowflow.units.parse_quantity`; numbers pass (SI)."""
+    """Text with a unit → SI through the option parsers (:mod:`stowflow.io.quantities`, the
+    same as the command line's; pressures stay gauge); numbers pass as SI."""
     if value is None:
         return None
     if isinstance(value, str):
-        from stowflow.errors import UnitsError
-        from stowflow.units import parse_quantity
+        from stowflow.io import quantities as q
 
-        try:
-            return parse_quantity(value, dimension)
-        except UnitsError as exc:
-            raise UnitsError(f"{what}: {exc}") from None
+        parse = {
+            "pressure": q.parse_pressure_difference,
+            "volume": q.parse_volume,
+            "time": q.parse_duration,
+        }[dimension]
+        return parse(value, what)
     if isinstance(value, bool):
         raise SettingsError(f"{what}: {value!r} is not a quantity")
     try:
@@ -964,11 +966,11 @@ def size(
     17.0
     """
     from stowflow.duties.sizing import size_accumulator
-    from stowflow.io.options import parse_temperature_range
+    from stowflow.io.quantities import parse_temperature_range
     from stowflow.units import gauge_to_abs
 
     if isinstance(temperature, str):
-        t_min, t_max = parse_temperature_range(temperature)
+        t_min, t_max = parse_temperature_range(temperature, "temperature")
     else:
         t_min, t_max = _kelvin_pair(temperature)
     ps = _quantity(max_allowable_pressure, "pressure", "max_allowable_pressure")

@@ -346,7 +346,7 @@ def test_an_unknown_keyword_is_named_with_close_matches():
         ({"gas": 1.0}, "not text"),
         ({"temperature": (1, 2, 3)}, "temperature"),
         ({"temperature": (323.15, 283.15)}, "above the hottest"),
-        ({"flow_margin": 0.9}, "flow margin"),
+        ({"flow_margin": 0.9}, "flow-margin.*below 50 %"),
         ({"allow_pump_only": "no"}, "True or False"),
         ({"max_count": 2.5}, "whole number"),
     ],
