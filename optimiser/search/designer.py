@@ -25,6 +25,7 @@ from stowflow.physics import gas
 from stowflow.physics.valves import RELIEF_OVERRIDE
 from stowflow.search.baseline import compensated_baseline, fixed_baseline
 from stowflow.search.milp import VALVE_MODES, ScheduleProblem, hidden_load_events, solve_schedule
+from stowflow.search.problem import Problem, make_problem
 from stowflow.search.schedule import (
     check_schedule,
     deficit_from_full,
@@ -34,19 +35,16 @@ from stowflow.search.schedule import (
     switch_counts,
     window_steps,
 )
-from stowflow.search.screen import (
-    Candidate,
+from stowflow.search.screen import Candidate, screen
+from stowflow.search.settings import DesignSettings
+from stowflow.search.solution import Alternative, Bank, Design, SearchStats
+from stowflow.search.store import (
     PrechargeGrid,
-    Problem,
     bank_lower,
     bank_upper,
-    make_problem,
-    screen,
     stored_pressure,
     top_pressure,
 )
-from stowflow.search.settings import DesignSettings
-from stowflow.search.solution import Alternative, Bank, Design, SearchStats
 
 __all__ = ["Family", "design", "family_problem", "family_problems"]
 
@@ -84,7 +82,7 @@ class Family:
         it is planned at the middle temperature.
     p_top : float
         Where a discharge starts on the quasi-static curve, absolute, [Pa]
-        (:func:`stowflow.search.screen.top_pressure`).
+        (:func:`stowflow.search.store.top_pressure`).
     """
 
     candidate: Candidate
