@@ -23,14 +23,15 @@ from stowflow.search.designer import design
 from stowflow.search.settings import DesignSettings
 from stowflow.search.solution import Design
 from stowflow.simulation.verify import Verification, verify
+from stowflow.units import BAR
 
 __all__ = ["MAX_TIGHTENINGS", "Attempt", "Study", "StudyResult", "run"]
 
 #: Most times the closed loop raises the requirement and designs again.
 MAX_TIGHTENINGS = 4
-#: Extra pressure added on top of a measured shortfall when tightening, [Pa].
+#: Extra pressure added on top of a measured shortfall when tightening, [Pa] (0.5 bar).
 TIGHTEN_MARGIN = 0.5e5
-#: Resolution of the raised requirement, [Pa] (rounded up).
+#: Resolution of the raised requirement, [Pa] (rounded up; 0.5 bar).
 TIGHTEN_STEP = 0.5e5
 #: Factor on the tightening per pass in a row that left the design unchanged, [-].
 STUCK_GAIN = 4.0
@@ -252,7 +253,7 @@ def _outcome(result: Design, verification: Verification | None, attempts: list) 
     if len(attempts) > 1:
         notes.append(
             f"the verification raised the requirement {len(attempts) - 1} time(s), by up to "
-            f"{attempts[-1].extra_pressure_max / 1e5:.1f} bar, before the design passed"
+            f"{attempts[-1].extra_pressure_max / BAR:.1f} bar, before the design passed"
             if verification is not None and verification.passed
             else f"the verification raised the requirement {len(attempts) - 1} time(s)"
         )

@@ -45,6 +45,7 @@ from stowflow.search.store import (
     stored_pressure,
     top_pressure,
 )
+from stowflow.units import HOUR, kelvin_to_celsius
 
 __all__ = ["Family", "design", "family_problem", "family_problems"]
 
@@ -392,7 +393,7 @@ def _feasible(
         Alternative(c.pump, c.motor, c.option, c.count, c.capex) for c in sr.frontier
     )
     if fam is not None and not fam.robust:
-        t_mid = 0.5 * (s.t_min + s.t_max) - 273.15
+        t_mid = kelvin_to_celsius(0.5 * (s.t_min + s.t_max))
         notes.append(
             f"one open-loop schedule cannot hold at both temperature ends with this bank; the "
             f"schedule is planned at {t_mid:.0f} °C and the pressure switch keeps the window at "
@@ -639,7 +640,7 @@ def _hidden_excess(problem: Problem, sp: ScheduleProblem, u, returned) -> float:
     if sp.max_events_per_hour is None:
         return 0.0
     hidden = hidden_load_events(u, returned, sp.qp)
-    per_hour = (switch_counts(u)[0] + hidden) * 3600.0 / (problem.n * problem.dt)
+    per_hour = (switch_counts(u)[0] + hidden) * HOUR / (problem.n * problem.dt)
     return per_hour if hidden and per_hour > sp.max_events_per_hour * (1 + 1e-9) else 0.0
 
 

@@ -62,6 +62,7 @@ import numpy as np
 # standard-form compiler hands the model to HiGHS.
 import pyomo.core as pyo
 from stowflow.search.schedule import run_store, window_steps
+from stowflow.units import BAR, LITRE
 
 __all__ = [
     "VALVE_MODES",
@@ -72,9 +73,10 @@ __all__ = [
     "solve_schedule",
 ]
 
-_LITRE = 1e3  # L per m³: the model's volume unit
-_BAR = 1e5  # Pa per bar: the model's pressure unit
-_OBJECTIVE_SCALE = 1e-3  # the objective in kJ, [kJ/J]
+#: The model's volume unit is the litre: L per m³, [1/m³] (1000 exactly).
+_PER_LITRE = 1.0 / LITRE
+#: The objective is in kJ: kJ per J, [kJ/J].
+_OBJECTIVE_SCALE = 1e-3
 
 
 @dataclass(frozen=True)
@@ -375,7 +377,7 @@ def _model_data(sp: ScheduleProblem, block: int, strict: bool) -> _Data:
     """The model's data: SI scaled to litres, L/s and bar, and the blocks of ``block`` steps."""
     # The model works in litres, L/s and bar so that the solver's absolute tolerances (1e-7)
     # are far below anything that matters; results go back to SI at the end.
-    vs, ps = _LITRE, _BAR
+    vs, ps = _PER_LITRE, BAR
     d_si = np.asarray(sp.demand, float)
     blocks = block_layout(sp.n, block)
     return _Data(
@@ -549,8 +551,8 @@ def _add_event_limit(m, data: _Data) -> None:
 def _add_objective(m, data: _Data) -> None:
     """Electrical energy per cycle, in kJ (:data:`_OBJECTIVE_SCALE`)."""
     sp, dt, qp = data.sp, data.sp.dt, data.qp
-    ps = _BAR
-    hyd = _BAR / _LITRE  # W per (L/s × bar)
+    ps = BAR
+    hyd = BAR / _PER_LITRE  # W per (L/s × bar)
     eta = sp.efficiency
     m.obj = pyo.Objective(
         expr=_OBJECTIVE_SCALE
@@ -582,7 +584,7 @@ def _build(data: _Data):
 def _warm_start(m, data: _Data, warm_u) -> float:
     """Load a full-resolution schedule as the MIP start; return its energy by the model's
     law, [J] (nan when the store has no periodic run under it)."""
-    sp, vs, qp, upper = data.sp, _LITRE, data.qp, data.upper
+    sp, vs, qp, upper = data.sp, _PER_LITRE, data.qp, data.upper
     run = run_store(warm_u, data.d_si, sp.qp, sp.dt, sp.upper)
     if run is None:
         return math.nan
@@ -618,7 +620,7 @@ def _warm_start(m, data: _Data, warm_u) -> float:
 
 def _read_solution(m, data: _Data, run: _HighsRun, build_time: float, solve_time: float):
     """The solved model back in SI at full resolution."""
-    sp, vs, qp, block = data.sp, _LITRE, data.qp, data.block
+    sp, vs, qp, block = data.sp, _PER_LITRE, data.qp, data.block
     B = range(data.nb)
     ub = np.array([round(pyo.value(m.u[b])) for b in B], dtype=int)
     back_b = np.array([min(max(pyo.value(m.r[b]), 0.0), qp * ub[b]) for b in B]) / vs

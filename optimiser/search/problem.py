@@ -17,6 +17,7 @@ from stowflow.cycle.duty import DutyCycle
 from stowflow.errors import SettingsError
 from stowflow.physics import gas
 from stowflow.search.settings import DesignSettings
+from stowflow.units import BAR, bar_text
 
 #: Gas expansion V2/V1 of the discharge at which the ``auto`` process takes its effective
 #: index: a short stroke from the top of the window, where real nitrogen is stiffest (our
@@ -24,8 +25,18 @@ from stowflow.search.settings import DesignSettings
 AUTO_EXPANSION = 1.1
 #: Runge–Kutta steps of the ``auto`` process's real-gas thermal integration, [-].
 AUTO_STEPS = 32
+#: Gauge pressure where the ``auto`` process's discharge starts when the caller gives none,
+#: [Pa] (200 bar).
+AUTO_START = 200 * BAR
 
-__all__ = ["AUTO_EXPANSION", "AUTO_STEPS", "Problem", "make_problem", "resolve_process"]
+__all__ = [
+    "AUTO_EXPANSION",
+    "AUTO_START",
+    "AUTO_STEPS",
+    "Problem",
+    "make_problem",
+    "resolve_process",
+]
 
 
 @dataclass(frozen=True)
@@ -113,7 +124,7 @@ def resolve_process(
         Settings (process, time constant, gas model).
     p_start : float, optional
         Absolute pressure where the discharge starts, [Pa]: the real gas's index depends on
-        it (default 200 bar).
+        it (default :data:`AUTO_START` above ambient).
 
     Returns
     -------
@@ -130,7 +141,7 @@ def resolve_process(
 
     t_d = _discharge_time(demand, dt)
     if settings.gas_model == "real":
-        p1 = float(p_start) if p_start is not None else settings.p_ambient + 200e5
+        p1 = float(p_start) if p_start is not None else settings.p_ambient + AUTO_START
         n_eff = float(
             thermal.effective_polytropic_index(
                 t_d,
@@ -142,7 +153,7 @@ def resolve_process(
                 steps=AUTO_STEPS,
             )
         )
-        where = f" of real nitrogen from {(p1 - settings.p_ambient) / 1e5:.0f} bar"
+        where = f" of real nitrogen from {bar_text(p1, settings.p_ambient, '.0f')}"
     else:
         n_eff = float(
             thermal.effective_polytropic_index(

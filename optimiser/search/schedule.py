@@ -21,6 +21,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
+from stowflow.units import HOUR, LITRE, LPM
 
 __all__ = [
     "ScheduleCheck",
@@ -401,7 +402,7 @@ class ScheduleCheck:
     run: StoreRun | None
 
 
-def window_steps(cycle_time: float, dt: float, horizon: float = 3600.0) -> tuple[int, int]:
+def window_steps(cycle_time: float, dt: float, horizon: float = HOUR) -> tuple[int, int]:
     """Split a horizon into whole cycles plus a partial window of steps.
 
     Parameters
@@ -478,16 +479,16 @@ def check_schedule(
         k = int(np.argmax(short))
         if short[k] > tol:
             problems.append(
-                f"stored oil {run.oil[k] * 1e3:.4f} L at step {k} is below the "
-                f"{lower[k] * 1e3:.4f} L the required pressure needs"
+                f"stored oil {run.oil[k] / LITRE:.4f} L at step {k} is below the "
+                f"{lower[k] / LITRE:.4f} L the required pressure needs"
             )
         # net flow out of the bank within each step
         out = demand - qp * u + run.spill
         j = int(np.argmax(out))
         if out[j] > discharge_limit * (1 + 1e-9) + 1e-12:
             problems.append(
-                f"bank discharge {out[j] * 6e4:.1f} L/min at step {j} exceeds its limit "
-                f"{discharge_limit * 6e4:.1f} L/min"
+                f"bank discharge {out[j] / LPM:.1f} L/min at step {j} exceeds its limit "
+                f"{discharge_limit / LPM:.1f} L/min"
             )
     if not _run_lengths_ok(u, 1, min_up):
         problems.append(f"a loaded stretch is shorter than {min_up} steps")

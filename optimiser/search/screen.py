@@ -41,12 +41,19 @@ from stowflow.search.problem import Problem
 from stowflow.search.schedule import cooling_loss, deficit_from_full, level_draws, refill_memory
 from stowflow.search.settings import DesignSettings
 from stowflow.search.store import PrechargeGrid, bank_lower, bank_upper, charge_heating
+from stowflow.units import BAR, KW, LITRE, LPM, bar_text
 
 #: Motor ratings above the least power scanned for the power–capex frontier.
 FRONTIER_LEVELS = 4
+#: Lowest precharge of the screen's grid, gauge, [Pa] (2 bar).
+LOWEST_PRECHARGE = 2 * BAR
+#: Unload pressures are rounded down to this for their bank bounds, [Pa].
+BOUND_RESOLUTION = 100.0
 
 __all__ = [
+    "BOUND_RESOLUTION",
     "FRONTIER_LEVELS",
+    "LOWEST_PRECHARGE",
     "Candidate",
     "ScreenResult",
     "infeasibility_reason",
@@ -134,15 +141,16 @@ def pump_unload_limit(pump: PumpOption, motor: MotorOption, s: DesignSettings) -
 
 
 def _bound_key(p_allowed: float) -> tuple[float, float]:
-    """(the unload pressure, the one its bank bounds are computed at): rounded down to 100 Pa
-    so that unload pressures a few pascals apart share their bounds, never above the
-    limit, [Pa]."""
-    return p_allowed, math.floor(p_allowed / 100.0) * 100.0
+    """(the unload pressure, the one its bank bounds are computed at): rounded down to
+    :data:`BOUND_RESOLUTION` so that unload pressures a few pascals apart share their bounds,
+    never above the limit, [Pa]."""
+    return p_allowed, math.floor(p_allowed / BOUND_RESOLUTION) * BOUND_RESOLUTION
 
 
 def _precharge_grid(s: DesignSettings, p_hi: float) -> np.ndarray:
-    """Precharges at 20 °C from 2 bar gauge to just below ``p_hi``, absolute, [Pa]."""
-    lo = s.p_ambient + 2e5
+    """Precharges at 20 °C from :data:`LOWEST_PRECHARGE` (gauge) to just below ``p_hi``,
+    absolute, [Pa]."""
+    lo = s.p_ambient + LOWEST_PRECHARGE
     if p_hi <= lo:
         return np.empty(0)
     return np.arange(lo, p_hi, s.precharge_step)
@@ -391,7 +399,7 @@ class _Screen:
             if power < min_power * (1 - 1e-12):
                 continue
             if report:
-                report(level_no / max(len(motor_powers), 1), f"motor {power / 1e3:g} kW")
+                report(level_no / max(len(motor_powers), 1), f"motor {power / KW:g} kW")
             found = self.level_candidates(power)
             if not found:
                 continue
@@ -448,27 +456,26 @@ def infeasibility_reason(problem: Problem, catalogue: Catalogue, deficit_max, pu
     s = problem.settings
     demand = problem.demand
     p_need_max = float(problem.p_end.max())
-    bar = 1e5
-    g = (p_need_max - s.p_ambient) / bar
+    g = bar_text(p_need_max, s.p_ambient, ".0f")
     relief_ok = [p for p in pumps if s.max_unload_for_relief(p.max_pressure) >= p_need_max]
     if not relief_ok:
-        best = (max(p.max_pressure for p in pumps) - s.p_ambient) / bar
+        best = bar_text(max(p.max_pressure for p in pumps), s.p_ambient, ".0f")
         return (
-            f"required {g:.0f} bar (line loss included) with a relief setting above it exceeds "
-            f"every pump's maximum pressure in the catalogue (highest {best:.0f} bar)"
+            f"required {g} (line loss included) with a relief setting above it exceeds "
+            f"every pump's maximum pressure in the catalogue (highest {best})"
         )
     mean = float(demand.mean())
     worn = 1.0 - s.flow_margin
     if all(deficit_max[j] is None for j in range(len(pumps))):
         q = max(p.flow for p in pumps)
         margin = (
-            f" less the {s.flow_margin:.0%} wear margin ({q * worn * 6e4:.1f} L/min)"
+            f" less the {s.flow_margin:.0%} wear margin ({q * worn / LPM:.1f} L/min)"
             if s.flow_margin
             else ""
         )
         return (
-            f"mean demand {mean * 6e4:.1f} L/min exceeds the largest pump's delivery "
-            f"{q * 6e4:.1f} L/min{margin}"
+            f"mean demand {mean / LPM:.1f} L/min exceeds the largest pump's delivery "
+            f"{q / LPM:.1f} L/min{margin}"
         )
     big_motor = max(catalogue.motors, key=lambda m: m.rated_power)
     if not any(
@@ -476,21 +483,21 @@ def infeasibility_reason(problem: Problem, catalogue: Catalogue, deficit_max, pu
         for j, p in enumerate(pumps)
     ):
         return (
-            f"no motor in the catalogue (largest {big_motor.rated_power / 1e3:g} kW) drives a pump "
-            f"that covers the mean demand {mean * 6e4:.1f} L/min at {g:.0f} bar"
+            f"no motor in the catalogue (largest {big_motor.rated_power / KW:g} kW) drives a pump "
+            f"that covers the mean demand {mean / LPM:.1f} L/min at {g}"
         )
     options = [o for o in catalogue.accumulators if o.type in s.types]
     if not options:
         return (
-            f"peak demand {demand.max() * 6e4:.1f} L/min needs storage, but the catalogue has no "
+            f"peak demand {demand.max() / LPM:.1f} L/min needs storage, but the catalogue has no "
             f"accumulator of the allowed types {list(s.types)}"
         )
     ps_ok = [o for o in options if s.max_unload_for_relief(o.max_pressure) >= p_need_max]
     if not ps_ok:
         best = max(o.max_pressure for o in options)
         return (
-            f"required {g:.0f} bar with a relief setting above it exceeds every accumulator's "
-            f"maximum allowable pressure PS (highest {(best - s.p_ambient) / bar:.0f} bar)"
+            f"required {g} with a relief setting above it exceeds every accumulator's "
+            f"maximum allowable pressure PS (highest {bar_text(best, s.p_ambient, '.0f')})"
         )
     rules = {t: acc.rules_for(t, (catalogue.limits or {}).get(t)) for t in s.types}
     fastest = max(
@@ -501,13 +508,13 @@ def infeasibility_reason(problem: Problem, catalogue: Catalogue, deficit_max, pu
     qmax = max(p.flow for p in pumps) * worn
     if demand.max() - qmax > fastest:
         return (
-            f"peak flow {demand.max() * 6e4:,.0f} L/min exceeds the largest pump "
-            f"({qmax * 6e4:,.0f} L/min) plus the fastest bank discharge in the catalogue "
-            f"({s.max_count} units, {fastest * 1e3:,.0f} L/s)"
+            f"peak flow {demand.max() / LPM:,.0f} L/min exceeds the largest pump "
+            f"({qmax / LPM:,.0f} L/min) plus the fastest bank discharge in the catalogue "
+            f"({s.max_count} units, {fastest / LITRE:,.0f} L/s)"
         )
     return (
         f"no bank of at most {s.max_count} accumulators stores enough oil between the required "
-        f"{g:.0f} bar and the highest unload pressure the pumps, motors, relief margin and "
+        f"{g} and the highest unload pressure the pumps, motors, relief margin and "
         "shells allow; allow more units per bank (--max-count), larger sizes or higher-pressure "
         "components"
     )

@@ -22,8 +22,8 @@ from stowflow.search.settings import DesignSettings
 from stowflow.search.solution import Design
 from stowflow.simulation._integrator import Plant
 from stowflow.simulation._loop import Orbit
-from stowflow.simulation._setup import bar_text, lpm_text, required
-from stowflow.units import kelvin_to_celsius, to_unit
+from stowflow.simulation._setup import lpm_text, required
+from stowflow.units import HOUR, KW, bar_text, kelvin_to_celsius, to_unit
 
 __all__ = ["assess", "discharge_limit", "limits_ok", "pump_only", "switching", "trace_frame"]
 
@@ -135,7 +135,7 @@ def _figures(plant: Plant, orbit: Orbit, design: Design, s: DesignSettings) -> _
         events=events,
         dwell_on=dwell_on,
         dwell_off=dwell_off,
-        per_hour=events * 3600.0 / (P * plant.duration),
+        per_hour=events * HOUR / (P * plant.duration),
         v_relief=float(sum(r.v_relief.sum() for r in recs) / P),
         v_unmet=float(sum(r.v_unmet.sum() for r in recs) / P),
         jo=jo,
@@ -368,7 +368,7 @@ def pump_only(design: Design, cycle: DutyCycle, settings: DesignSettings, T: flo
     if shaft > design.motor.rated_power * (1 + 1e-9):
         fails.append(
             f"pump shaft power {to_unit(shaft, 'kW', 'power'):.3g} kW at the relief "
-            f"setting exceeds the motor's {design.motor.rated_power / 1e3:g} kW"
+            f"setting exceeds the motor's {design.motor.rated_power / KW:g} kW"
         )
     n = cycle.n_steps
     trace = pd.DataFrame(
