@@ -23,14 +23,15 @@ from stowflow.search.designer import design
 from stowflow.search.settings import DesignSettings
 from stowflow.search.solution import Design
 from stowflow.simulation.verify import Verification, verify
+from stowflow.units import BAR
 
 __all__ = ["MAX_TIGHTENINGS", "Attempt", "Study", "StudyResult", "run"]
 
 #: Most times the closed loop raises the requirement and designs again.
 MAX_TIGHTENINGS = 4
-#: Extra pressure added on top of a measured shortfall when tightening, [Pa].
+#: Extra pressure added on top of a measured shortfall when tightening, [Pa] (0.5 bar).
 TIGHTEN_MARGIN = 0.5e5
-#: Resolution of the raised requirement, [Pa] (rounded up).
+#: Resolution of the raised requirement, [Pa] (rounded up; 0.5 bar).
 TIGHTEN_STEP = 0.5e5
 #: Factor on the tightening per pass in a row that left the design unchanged, [-].
 STUCK_GAIN = 4.0
@@ -156,31 +157,39 @@ def _load(study: Study) -> tuple[DutyCycle, Catalogue]:
     return cycle, cat
 
 
-def run(study: Study, *, progress: Callable[[float, str], None] | None = None) -> StudyResult:
-    """Run a study end to end.
+@dataclass
+class _Loop:
+    """State of the design–verify loop."""
 
-    Parameters
-    ----------
-    study : Study
-        What to design.
-    progress : callable, optional
-        ``progress(fraction, label)``, called as the stages advance.
-
-    Returns
-    -------
-    StudyResult
-    """
-    t0 = time.perf_counter()
-    report = progress or (lambda frac, label: None)
-    cycle, catalogue = _load(study)
-    settings = study.settings
-    extra = np.zeros(cycle.n_steps)
-    attempts: list[Attempt] = []
-    t_design = t_verify = 0.0
-    verification: Verification | None = None
+    extra: np.ndarray  # extra requirement per step, [Pa]
+    attempts: list[Attempt] = field(default_factory=list)
+    t_design: float = 0.0  # [s]
+    t_verify: float = 0.0  # [s]
     result: Design | None = None
+    verification: Verification | None = None
     previous: Design | None = None
-    stuck = 0
+    stuck: int = 0  # passes in a row that left the design unchanged
+
+
+def _raise_requirement(loop: _Loop, d: Design, shortfall: np.ndarray) -> None:
+    """Raise the requirement of the steps that fell short by the shortfall and a margin."""
+    # When raising the requirement by the shortfall left the design as it was (the
+    # quasi-static model already met it; the real controller did not), raise it faster.
+    same = loop.previous is not None and _same_design(loop.previous, d)
+    loop.stuck = loop.stuck + 1 if same else 0
+    loop.previous = d
+    gain = STUCK_GAIN**loop.stuck
+    raise_by = np.where(shortfall > 0, gain * (shortfall + TIGHTEN_MARGIN), 0.0)
+    # Rounded up to TIGHTEN_STEP: conservative, and few distinct pressure levels keep the
+    # screen's tables small.
+    loop.extra = loop.extra + np.ceil(raise_by / TIGHTEN_STEP) * TIGHTEN_STEP
+
+
+def _design_and_verify(study: Study, cycle: DutyCycle, catalogue: Catalogue, report) -> _Loop:
+    """Design, verify, and raise the requirement where the pressure fell short, at most
+    :data:`MAX_TIGHTENINGS` times."""
+    settings = study.settings
+    loop = _Loop(extra=np.zeros(cycle.n_steps))
     for k in range(MAX_TIGHTENINGS + 1):
         span = 0.8 / (MAX_TIGHTENINGS + 1)
         base = k * span
@@ -189,6 +198,7 @@ def run(study: Study, *, progress: Callable[[float, str], None] | None = None) -
             tag = f" (tightening {k})" if k else ""
             report(base + span * frac, label + tag)
 
+        extra, previous = loop.extra, loop.previous
         t1 = time.perf_counter()
         d = design(
             cycle,
@@ -199,33 +209,29 @@ def run(study: Study, *, progress: Callable[[float, str], None] | None = None) -
             # a raised requirement never makes a smaller motor feasible again
             min_power=previous.levels["installed_power [W]"] if previous is not None else 0.0,
         )
-        t_design += time.perf_counter() - t1
+        loop.t_design += time.perf_counter() - t1
         if not d.feasible or not study.verify:
-            attempts.append(Attempt(float(extra.max()), d.status, None, float("nan")))
-            result, verification = d, None
+            loop.attempts.append(Attempt(float(extra.max()), d.status, None, float("nan")))
+            loop.result, loop.verification = d, None
             break
         t1 = time.perf_counter()
         v = verify(
             d, cycle, settings, progress=lambda f, lab, stage=stage: stage(0.5 + 0.5 * f, lab)
         )
-        t_verify += time.perf_counter() - t1
-        attempts.append(Attempt(float(extra.max()), d.status, v.passed, v.min_margin))
-        result, verification = d, v
+        loop.t_verify += time.perf_counter() - t1
+        loop.attempts.append(Attempt(float(extra.max()), d.status, v.passed, v.min_margin))
+        loop.result, loop.verification = d, v
         if v.passed:
             break
         if v.shortfall is None or not np.any(v.shortfall > 0):
             break  # nothing to tighten: the failure is not a pressure shortfall
-        # When raising the requirement by the shortfall left the design as it was (the
-        # quasi-static model already met it; the real controller did not), raise it faster.
-        same = previous is not None and _same_design(previous, d)
-        stuck = stuck + 1 if same else 0
-        previous = d
-        gain = STUCK_GAIN**stuck
-        raise_by = np.where(v.shortfall > 0, gain * (v.shortfall + TIGHTEN_MARGIN), 0.0)
-        # Rounded up to TIGHTEN_STEP: conservative, and few distinct pressure levels keep the
-        # screen's tables small.
-        extra = extra + np.ceil(raise_by / TIGHTEN_STEP) * TIGHTEN_STEP
-    assert result is not None
+        _raise_requirement(loop, d, v.shortfall)
+    return loop
+
+
+def _outcome(result: Design, verification: Verification | None, attempts: list) -> Design:
+    """The design as the loop leaves it: the window the recommended controller keeps, or
+    infeasible when no pass verified; a note on the tightenings."""
     if verification is not None and verification.passed:
         # The working window the designer sets up is the one the recommended controller
         # keeps at both temperature ends.
@@ -247,11 +253,35 @@ def run(study: Study, *, progress: Callable[[float, str], None] | None = None) -
     if len(attempts) > 1:
         notes.append(
             f"the verification raised the requirement {len(attempts) - 1} time(s), by up to "
-            f"{attempts[-1].extra_pressure_max / 1e5:.1f} bar, before the design passed"
+            f"{attempts[-1].extra_pressure_max / BAR:.1f} bar, before the design passed"
             if verification is not None and verification.passed
             else f"the verification raised the requirement {len(attempts) - 1} time(s)"
         )
         result = replace(result, notes=tuple(notes))
+    return result
+
+
+def run(study: Study, *, progress: Callable[[float, str], None] | None = None) -> StudyResult:
+    """Run a study end to end.
+
+    Parameters
+    ----------
+    study : Study
+        What to design.
+    progress : callable, optional
+        ``progress(fraction, label)``, called as the stages advance.
+
+    Returns
+    -------
+    StudyResult
+    """
+    t0 = time.perf_counter()
+    report = progress or (lambda frac, label: None)
+    cycle, catalogue = _load(study)
+    loop = _design_and_verify(study, cycle, catalogue, report)
+    assert loop.result is not None
+    verification = loop.verification
+    result = _outcome(loop.result, verification, loop.attempts)
     report(0.9, "costs")
     t1 = time.perf_counter()
     comparison = compare(result, verification, cycle, study.costs)
@@ -261,15 +291,15 @@ def run(study: Study, *, progress: Callable[[float, str], None] | None = None) -
         name=study.name or cycle.name,
         cycle=cycle,
         catalogue=catalogue,
-        settings=settings,
+        settings=study.settings,
         cost_settings=study.costs,
         design=result,
         verification=verification,
         comparison=comparison,
-        attempts=tuple(attempts),
+        attempts=tuple(loop.attempts),
         timings={
-            "design": t_design,
-            "verify": t_verify,
+            "design": loop.t_design,
+            "verify": loop.t_verify,
             "costs": t_costs,
             "total": time.perf_counter() - t0,
         },

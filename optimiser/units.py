@@ -11,6 +11,16 @@ Designers and gauges speak gauge pressure.  Gas laws need absolute pressure.  Th
 ``p_abs = p_gauge + P_AMBIENT`` happens here and nowhere else (:func:`gauge_to_abs`,
 :func:`abs_to_gauge`).  The standard atmosphere, 101 325 Pa, is the default ambient
 pressure (ISO 2533 standard atmosphere at sea level).
+
+Unit factors
+------------
+Core code that needs a trade unit in a message or a scaled model uses the named factors here
+(:data:`BAR`, :data:`LITRE`, :data:`LPM`, :data:`KW`, :data:`HOUR`, :data:`KWH`,
+:data:`ZERO_CELSIUS`), never a hand-typed ``1e5`` or ``6e4``: a value in bar is
+``p / BAR``, a flow in L/min ``q / LPM``.  They are stated exactly (SI Brochure, 9th edition,
+BIPM 2019, tables 8 and 9); pint's conversions (:func:`si_factor`) agree with them to the last
+bit or two.  :func:`bar_gauge` and :func:`bar_text` are the one absolute-pressure-to-gauge-bar
+conversion and its text, for every layer.
 """
 
 from __future__ import annotations
@@ -28,7 +38,9 @@ if TYPE_CHECKING:  # pragma: no cover - typing only
 __all__ = [
     "BAR",
     "DIMENSIONS",
+    "HOUR",
     "KW",
+    "KWH",
     "LITRE",
     "LPM",
     "P_AMBIENT",
@@ -36,6 +48,8 @@ __all__ = [
     "ZERO_CELSIUS",
     "Dimension",
     "abs_to_gauge",
+    "bar_gauge",
+    "bar_text",
     "celsius_to_kelvin",
     "gauge_to_abs",
     "kelvin_to_celsius",
@@ -53,18 +67,19 @@ P_AMBIENT: float = 101_325.0
 #: Reference temperature at which precharge is stated: 20 °C, [K].
 T_REF: float = 293.15
 
-# Trade units as SI factors, for constants and examples written in the trade's units
-# (``60 * BAR``); converting input and output goes through pint (:func:`parse_quantity`,
-# :func:`to_unit`).
-#: One bar, [Pa].
+#: One bar, [Pa] (exact: 1 bar = 100 kPa, SI Brochure 9th ed. table 8).
 BAR: float = 1e5
-#: One litre, [m³].
+#: One litre, [m³] (exact: 1 L = 1 dm³, SI Brochure 9th ed. table 8).
 LITRE: float = 1e-3
-#: One litre per minute, [m³/s].
-LPM: float = 1e-3 / 60
-#: One kilowatt, [W].
+#: One litre per minute, [m³/s] (exact quotient, rounded once to the nearest double).
+LPM: float = LITRE / 60.0
+#: One kilowatt, [W] (exact, SI prefix kilo).
 KW: float = 1e3
-#: 0 °C on the kelvin scale, [K] (ITS-90).
+#: One hour, [s] (exact, SI Brochure 9th ed. table 8).
+HOUR: float = 3600.0
+#: One kilowatt hour, [J] (exact: 3.6 MJ).
+KWH: float = KW * HOUR
+#: The Celsius zero, [K] (exact: t/°C = T/K − 273.15, SI Brochure 9th ed. section 2.3.1).
 ZERO_CELSIUS: float = 273.15
 
 Dimension = Literal[
@@ -326,11 +341,54 @@ def abs_to_gauge(p_abs, p_ambient: float = P_AMBIENT):
     )
 
 
+def bar_gauge(p_abs, p_ambient: float = P_AMBIENT):
+    """Absolute pressure to gauge pressure in bar, [Pa] → [bar].
+
+    Parameters
+    ----------
+    p_abs : float or array_like
+        Absolute pressure, [Pa].
+    p_ambient : float
+        Ambient pressure, [Pa].
+
+    Returns
+    -------
+    float or numpy.ndarray
+        Gauge pressure, [bar]; a float for a scalar (or 0-d) input.
+    """
+    g = abs_to_gauge(p_abs, p_ambient) / BAR
+    return float(g) if np.ndim(g) == 0 else g
+
+
+def bar_text(p_abs: float, p_ambient: float = P_AMBIENT, spec: str = ".1f") -> str:
+    """``"123.4 bar"``: an absolute pressure [Pa] as gauge bar text, formatted by ``spec``.
+
+    Parameters
+    ----------
+    p_abs : float
+        Absolute pressure, [Pa].
+    p_ambient : float
+        Ambient pressure, [Pa].
+    spec : str
+        Format specification of the number (e.g. ``".0f"``).
+
+    Returns
+    -------
+    str
+        The gauge pressure and its unit.
+    """
+    return f"{bar_gauge(p_abs, p_ambient):{spec}} bar"
+
+
 def celsius_to_kelvin(t_c):
-    """Temperature in °C to K, [°C] → [K] (ITS-90 offset 273.15 K)."""
-    return np.asarray(t_c, dtype=float) + 273.15 if not np.isscalar(t_c) else float(t_c) + 273.15
+    """Temperature in °C to K, [°C] → [K] (offset :data:`ZERO_CELSIUS`)."""
+    if np.isscalar(t_c):
+        return float(t_c) + ZERO_CELSIUS
+    return np.asarray(t_c, dtype=float) + ZERO_CELSIUS
 
 
 def kelvin_to_celsius(t_k):
     """Temperature in K to °C, [K] → [°C]."""
-    return np.asarray(t_k, dtype=float) - 273.15 if not np.isscalar(t_k) else float(t_k) - 273.15
+    if np.isscalar(t_k):
+        return float(t_k) - ZERO_CELSIUS
+    return np.asarray(t_k, dtype=float) - ZERO_CELSIUS

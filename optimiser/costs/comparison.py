@@ -47,7 +47,7 @@ from stowflow.costs.finance import (
 from stowflow.cycle.duty import DutyCycle
 from stowflow.errors import SettingsError
 from stowflow.search.solution import Baseline, Design
-from stowflow.units import kelvin_to_celsius, si_factor
+from stowflow.units import HOUR, KWH, kelvin_to_celsius
 
 __all__ = [
     "OPTION_KEYS",
@@ -66,9 +66,6 @@ __all__ = [
 
 #: The priced options, in the order the report shows them.
 OPTION_KEYS: tuple[str, ...] = ("design", "fixed", "compensated")
-
-_KWH = si_factor("kWh", "energy")  # J per kWh
-_HOUR = si_factor("h", "time")  # s per hour
 
 OPTION_LABELS: dict[str, str] = {
     "design": "accumulator supply (this design)",
@@ -102,8 +99,8 @@ class CostSettings:
         Currency label of every price; "" means the catalogue's currency.
     """
 
-    energy_price: float = 0.25 / _KWH
-    operating_time: float = 4000.0 * _HOUR
+    energy_price: float = 0.25 / KWH
+    operating_time: float = 4000.0 * HOUR
     cycle_time: float | None = None
     years: int = 10
     discount_rate: float = 0.05
@@ -119,11 +116,11 @@ class CostSettings:
 
         if not (finite(self.energy_price) and self.energy_price >= 0):
             raise bad(f"energy price must be ≥ 0, got {self.energy_price!r} per J")
-        year = 8766.0 * _HOUR  # a year of 365.25 days
+        year = 8766.0 * HOUR  # a year of 365.25 days
         if not (finite(self.operating_time) and 0 < self.operating_time <= year * (1 + 1e-9)):
             raise bad(
                 f"operating time must be > 0 h and at most 8766 h per year, got "
-                f"{self.operating_time / _HOUR!r} h"
+                f"{self.operating_time / HOUR!r} h"
             )
         if self.cycle_time is not None and not (finite(self.cycle_time) and self.cycle_time > 0):
             raise bad(f"cycle time must be > 0 s, got {self.cycle_time!r}")
@@ -141,13 +138,13 @@ class CostSettings:
     @property
     def energy_price_per_kwh(self) -> float:
         """Energy price, [currency/kWh]."""
-        return self.energy_price * _KWH
+        return self.energy_price * KWH
 
     def as_dict(self) -> dict:
         """The settings in trade units for reports (per kWh, h, s, %)."""
         return {
             "energy_price_per_kwh": self.energy_price_per_kwh,
-            "hours_per_year": self.operating_time / _HOUR,
+            "hours_per_year": self.operating_time / HOUR,
             "cycle_time_s": self.cycle_time,
             "years": self.years,
             "discount_rate": self.discount_rate,
@@ -593,7 +590,7 @@ def compare(
 
 def _notes(s: CostSettings, options: list[OptionCost], cycle_time: float, duration: float):
     notes = [
-        f"energy at {s.energy_price_per_kwh:.4g} per kWh over {s.operating_time / _HOUR:,.0f} h "
+        f"energy at {s.energy_price_per_kwh:.4g} per kWh over {s.operating_time / HOUR:,.0f} h "
         f"per year, {s.operating_time / cycle_time:,.0f} cycles per year; capex = catalogue "
         f"prices × {s.installation_factor:g} (installation factor); TCO over {s.years} years "
         f"at {s.discount_rate:.1%} discount (present value of an annuity, energy paid at each "

@@ -22,11 +22,10 @@ from stowflow.physics.accumulator import (
     shell_volume,
 )
 from stowflow.physics.gas import reference_precharge
-from stowflow.units import P_AMBIENT, abs_to_gauge, kelvin_to_celsius, to_unit
+from stowflow.units import P_AMBIENT, bar_gauge, kelvin_to_celsius, to_unit
 
 __all__ = [
     "SAFETY",
-    "bar_g",
     "celsius",
     "check_positive",
     "litre",
@@ -42,11 +41,6 @@ SAFETY: tuple[str, ...] = (
     "Protect the accumulator with a relief valve set at or below its PS.",
     "Design support only: a competent person checks it against local codes and standards.",
 )
-
-
-def bar_g(p_abs: float) -> float:
-    """Absolute pressure [Pa] → gauge pressure [bar]."""
-    return float(to_unit(abs_to_gauge(p_abs), "bar", "pressure"))
 
 
 def litre(v: float) -> float:
@@ -118,14 +112,14 @@ def resolve_precharge(
     """
     if precharge is not None:
         if not (math.isfinite(precharge) and precharge > P_AMBIENT):
-            raise SizingError(f"precharge must be above ambient; got {bar_g(precharge):g} bar")
+            raise SizingError(f"precharge must be above ambient; got {bar_gauge(precharge):g} bar")
         return float(precharge), False
     t = parse_type(acc_type)
     p_hot = float(max_precharge_for_min_pressure(t, p_low, rules_for(t)))
     if not p_hot > P_AMBIENT:
         raise SizingError(
             f"{t.value}: the precharge rule leaves no precharge above ambient for a lowest "
-            f"working pressure of {bar_g(p_low):g} bar; give a precharge"
+            f"working pressure of {bar_gauge(p_low):g} bar; give a precharge"
         )
     return float(reference_precharge(p_hot, T_rule, model)), True
 
@@ -182,7 +176,7 @@ def type_report(
     shell = float(shell_volume(t, gas_volume, rules))
     pe = None
     if max_allowable_pressure is not None and np.isfinite(shell) and shell > 0:
-        ps = bar_g(max_allowable_pressure)
+        ps = bar_gauge(max_allowable_pressure)
         category, note = pressure_equipment_category(ps, litre(shell))
         pe = {"ps_bar": ps, "volume_l": litre(shell), "category": category, "note": note}
     return {

@@ -27,9 +27,9 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from stowflow.cycle.csvtable import utf8_text
-from stowflow.duties._common import bar_g, check_positive, litre
+from stowflow.duties._common import check_positive, litre
 from stowflow.errors import SettingsError, SizingError, StowflowError
-from stowflow.units import gauge_to_abs, parse_unit
+from stowflow.units import bar_gauge, gauge_to_abs, parse_unit
 
 __all__ = ["MOTION_COLUMNS", "Motion", "read_motions"]
 
@@ -69,7 +69,7 @@ class Motion:
         if not (math.isfinite(self.min_pressure) and self.min_pressure > gauge_to_abs(0.0)):
             raise SizingError(
                 f"motion '{self.name}' minimum pressure must be above ambient; got "
-                f"{bar_g(self.min_pressure):g} bar"
+                f"{bar_gauge(self.min_pressure):g} bar"
             )
 
 

@@ -50,7 +50,6 @@ import numpy as np
 import pandas as pd
 from stowflow.duties._common import (
     SAFETY,
-    bar_g,
     celsius,
     check_positive,
     litre,
@@ -70,7 +69,7 @@ from stowflow.physics.gas import (
 )
 from stowflow.physics.nitrogen import fields_rhoT, isentrope_T_at_rho
 from stowflow.physics.thermal import DEFAULT_TIME_CONSTANT
-from stowflow.units import P_AMBIENT, T_REF, gauge_to_abs, to_unit
+from stowflow.units import P_AMBIENT, T_REF, bar_gauge, gauge_to_abs, to_unit
 
 __all__ = ["ReserveResult", "reserve_pressures", "size_reserve"]
 
@@ -151,11 +150,11 @@ class ReserveResult:
             "process": str(self.process),
             "standby_process": "isothermal",
             "temperature_c": {"min": celsius(self.T_min), "max": celsius(self.T_max)},
-            "charge_pressure_bar": bar_g(self.charge_pressure),
+            "charge_pressure_bar": bar_gauge(self.charge_pressure),
             "leakage_lpm": float(to_unit(self.leakage, "L/min", "flow")),
             "standby_time_s": self.standby_time,
             "accumulator_type": self.acc_type,
-            "precharge_bar_at_20c": bar_g(self.precharge_ref),
+            "precharge_bar_at_20c": bar_gauge(self.precharge_ref),
             "precharge_by_rule": self.precharge_by_rule,
             "required_gas_volume_l": litre(self.required_gas_volume),
             "worst_temperature_c": celsius(self.worst_temperature),
@@ -229,14 +228,14 @@ def _validate(motions, p_c, leakage, standby_time, T_min, T_max) -> None:
     if not motions:
         raise SizingError("an emergency reserve needs at least one motion")
     if not (math.isfinite(p_c) and p_c > gauge_to_abs(0.0)):
-        raise SizingError(f"charge pressure must be above ambient; got {bar_g(p_c):g} bar")
+        raise SizingError(f"charge pressure must be above ambient; got {bar_gauge(p_c):g} bar")
     check_positive("leakage", leakage, float(to_unit(leakage, "L/min", "flow")), "L/min", zero=True)
     check_positive("stand-by time", standby_time, standby_time, "s", zero=True)
     for m in motions:
         if not m.min_pressure < p_c:
             raise SizingError(
-                f"motion '{m.name}' needs {bar_g(m.min_pressure):g} bar, not below the charge "
-                f"pressure {bar_g(p_c):g} bar (gauge): no accumulator can deliver it"
+                f"motion '{m.name}' needs {bar_gauge(m.min_pressure):g} bar, not below the charge "
+                f"pressure {bar_gauge(p_c):g} bar (gauge): no accumulator can deliver it"
             )
     if not (0 < T_min <= T_max and math.isfinite(T_max)):
         raise SizingError(
@@ -303,7 +302,7 @@ def reserve_pressures(
             "step": "after stand-by",
             "draw [L]": litre(leakage * standby_time),
             "min_pressure [bar]": float("nan"),
-            "pressure [bar]": bar_g(p[0]),
+            "pressure [bar]": bar_gauge(p[0]),
             "margin [bar]": float("nan"),
             "gas_temperature [°C]": celsius(t_gas[0]),
             "oil_left [L]": litre(oil_left[0]),
@@ -316,9 +315,11 @@ def reserve_pressures(
             {
                 "step": m.name,
                 "draw [L]": litre(m.volume + leakage * m.time),
-                "min_pressure [bar]": bar_g(m.min_pressure),
-                "pressure [bar]": float("nan") if empty else bar_g(p[k]),
-                "margin [bar]": float("nan") if empty else bar_g(p[k]) - bar_g(m.min_pressure),
+                "min_pressure [bar]": bar_gauge(m.min_pressure),
+                "pressure [bar]": float("nan") if empty else bar_gauge(p[k]),
+                "margin [bar]": (
+                    float("nan") if empty else bar_gauge(p[k]) - bar_gauge(m.min_pressure)
+                ),
                 "gas_temperature [°C]": celsius(t_gas[k]),
                 "oil_left [L]": litre(oil_left[k]),
                 "mean_flow [L/min]": (
@@ -338,8 +339,9 @@ def _sized(motions, p_c, leakage, standby_time, p0_ref, proc, model, ts):
         p0_T = float(precharge_at(p0_ref, T, model))
         if not p0_T < p_c:
             raise SizingError(
-                f"at {celsius(T):.4g} °C the precharge {bar_g(p0_T):.4g} bar reaches the charge "
-                f"pressure {bar_g(p_c):.4g} bar, so no oil is stored; lower the precharge"
+                f"at {celsius(T):.4g} °C the precharge {bar_gauge(p0_T):.4g} bar reaches the "
+                f"charge pressure {bar_gauge(p_c):.4g} bar, so no oil is stored; lower the "
+                "precharge"
             )
         mass = _least_mass(rho0, T, p_c, leakage * standby_time, cum, p_min, proc, model)
         v0.append(mass / rho0)
@@ -377,7 +379,7 @@ def _per_temperature(ts, p0_ref: float, model: str, need) -> pd.DataFrame:
     return pd.DataFrame(
         {
             "temperature [°C]": [celsius(t) for t in ts],
-            "precharge [bar]": [bar_g(float(precharge_at(p0_ref, t, model))) for t in ts],
+            "precharge [bar]": [bar_gauge(float(precharge_at(p0_ref, t, model))) for t in ts],
             "gas_volume [L]": [litre(x) for x in need],
         }
     )
@@ -509,7 +511,7 @@ def _precharge_hint(p_reached: float, last: Motion, by_rule: bool) -> list[str]:
     if not by_rule or not p_reached > last.min_pressure + 0.05 * (last.min_pressure - P_AMBIENT):
         return []
     return [
-        f"the pressure never falls below {bar_g(p_reached):.4g} bar (an earlier motion "
+        f"the pressure never falls below {bar_gauge(p_reached):.4g} bar (an earlier motion "
         "governs); the precharge rule allows a higher precharge against that value, which "
         "needs less gas: try a higher --precharge and check the limits again"
     ]

@@ -67,7 +67,6 @@ import numpy as np
 import pandas as pd
 from stowflow.duties._common import (
     SAFETY,
-    bar_g,
     celsius,
     check_positive,
     litre,
@@ -79,7 +78,7 @@ from stowflow.duties.sizing import _temperature_grid
 from stowflow.errors import SizingError
 from stowflow.physics.gas import KAPPA, R_SPECIFIC, density, precharge_at
 from stowflow.physics.nitrogen import fields_rhoT, isentrope_T_at_p
-from stowflow.units import P_AMBIENT, T_REF
+from stowflow.units import BAR, P_AMBIENT, T_REF, bar_gauge
 
 __all__ = [
     "ShockResult",
@@ -356,17 +355,17 @@ class ShockResult:
             },
             "oil": {"density_kg_m3": self.oil_density, "bulk_modulus_gpa": self.bulk_modulus / 1e9},
             "velocity_m_s": self.velocity,
-            "operating_pressure_bar": bar_g(self.p_operating),
-            "allowed_peak_bar": bar_g(self.p_limit),
+            "operating_pressure_bar": bar_gauge(self.p_operating),
+            "allowed_peak_bar": bar_gauge(self.p_limit),
             "closure_time_s": self.closure_time,
             "wave_speed_m_s": self.wave_speed,
             "rigid_pipe_wave_speed_m_s": self.rigid_wave_speed,
             "reflection_time_ms": self.reflection_time * 1e3,
-            "surge_without_accumulator_bar": self.surge / 1e5,
-            "peak_without_accumulator_bar": bar_g(self.p_operating + self.surge),
+            "surge_without_accumulator_bar": self.surge / BAR,
+            "peak_without_accumulator_bar": bar_gauge(self.p_operating + self.surge),
             "accumulator_needed": self.needed,
             "column_energy_j": self.column_energy,
-            "precharge_bar_at_20c": bar_g(self.precharge_ref),
+            "precharge_bar_at_20c": bar_gauge(self.precharge_ref),
             "precharge_by_rule": self.precharge_by_rule,
             "required_gas_volume_l": litre(self.required_gas_volume),
             "worst_temperature_c": celsius(self.worst_temperature),
@@ -509,12 +508,12 @@ def _check_duty(length: float, velocity: float, p_operating: float, p_limit: flo
     check_positive("flow velocity", velocity, velocity, "m/s")
     if not (math.isfinite(p_operating) and p_operating > P_AMBIENT):
         raise SizingError(
-            f"operating pressure must be above ambient; got {bar_g(p_operating):g} bar"
+            f"operating pressure must be above ambient; got {bar_gauge(p_operating):g} bar"
         )
     if not (math.isfinite(p_limit) and p_limit > p_operating):
         raise SizingError(
-            f"allowed peak {bar_g(p_limit):g} bar must exceed the operating pressure "
-            f"{bar_g(p_operating):g} bar (gauge)"
+            f"allowed peak {bar_gauge(p_limit):g} bar must exceed the operating pressure "
+            f"{bar_gauge(p_operating):g} bar (gauge)"
         )
 
 
@@ -525,7 +524,7 @@ def _precharge_below(p0_ref: float, ts: np.ndarray, model: str, p_operating: flo
         t_bad = float(ts[np.argmax(p0_T >= p_operating)])
         raise SizingError(
             f"at {celsius(t_bad):.4g} °C the precharge reaches the operating pressure "
-            f"{bar_g(p_operating):g} bar, so the accumulator is empty; lower the precharge"
+            f"{bar_gauge(p_operating):g} bar, so the accumulator is empty; lower the precharge"
         )
     return p0_T
 
@@ -536,7 +535,7 @@ def _per_temperature(ts, p0_T, mass, v0, gas: dict) -> pd.DataFrame:
     return pd.DataFrame(
         {
             "temperature [°C]": [celsius(t) for t in ts],
-            "precharge [bar]": [bar_g(p) for p in p0_T],
+            "precharge [bar]": [bar_gauge(p) for p in p0_T],
             "gas_volume_at_operating_pressure [L]": [litre(x) for x in v1],
             "gas_volume [L]": [litre(x) for x in v0],
             "oil_taken_up [L]": [litre(x) for x in mass * (1 / gas["rho1"] - 1 / gas["rho2"])],
@@ -560,8 +559,8 @@ def _with_notes(r: ShockResult) -> ShockResult:
     notes = []
     if not r.needed:
         notes.append(
-            f"the peak without an accumulator, {bar_g(r.p_operating + r.surge):.4g} bar, is "
-            f"already below the allowed {bar_g(r.p_limit):.4g} bar: no shock accumulator is "
+            f"the peak without an accumulator, {bar_gauge(r.p_operating + r.surge):.4g} bar, is "
+            f"already below the allowed {bar_gauge(r.p_limit):.4g} bar: no shock accumulator is "
             "needed; the volume is shown for comparison"
         )
     if r.closure_time > r.reflection_time:

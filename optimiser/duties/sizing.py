@@ -49,17 +49,13 @@ from stowflow.physics.gas import (
     precharge_at,
     reference_precharge,
 )
-from stowflow.units import P_AMBIENT, T_REF, abs_to_gauge, kelvin_to_celsius, to_unit
+from stowflow.units import P_AMBIENT, T_REF, bar_gauge, kelvin_to_celsius, to_unit
 
 __all__ = ["SizingResult", "TypeSizing", "size_accumulator"]
 
 #: Temperatures evaluated across the range (plus 20 °C when inside it), [-].
 N_TEMPERATURES = 21
 _GOLDEN = (math.sqrt(5.0) - 1.0) / 2.0
-
-
-def _bar_g(p_abs):
-    return to_unit(abs_to_gauge(p_abs), "bar", "pressure")
 
 
 def _litre(v):
@@ -126,7 +122,7 @@ class TypeSizing:
         return [
             {
                 "temperature_c": kelvin_to_celsius(float(t)),
-                "precharge_bar": _bar_g(float(p0)),
+                "precharge_bar": bar_gauge(float(p0)),
                 "oil_at_min_pressure_l": _litre(v0 * float(fmin)),
                 "oil_at_max_pressure_l": _litre(v0 * float(fmax)),
                 "oil_exchange_l": _litre(v0 * float(fmax - fmin)),
@@ -147,7 +143,7 @@ class TypeSizing:
     def as_dict(self) -> dict:
         """JSON-ready summary in trade units."""
         return {
-            "precharge_bar_at_20c": _bar_g(self.precharge_ref),
+            "precharge_bar_at_20c": bar_gauge(self.precharge_ref),
             "precharge_by_rule": self.precharge_by_rule,
             "required_gas_volume_l": _litre(self.required_gas_volume),
             "shell_volume_l": _litre(self.shell_volume),
@@ -219,7 +215,7 @@ class SizingResult:
         """Category hint for one vessel of the governing shell volume at PS, or None."""
         if self.max_allowable_pressure is None:
             return None
-        ps = _bar_g(self.max_allowable_pressure)
+        ps = bar_gauge(self.max_allowable_pressure)
         vol = _litre(self.governing.shell_volume)
         category, note = pressure_equipment_category(ps, vol)
         return {"ps_bar": ps, "volume_l": vol, "category": category, "note": note}
@@ -239,9 +235,9 @@ class SizingResult:
                 "precharge_reference": kelvin_to_celsius(T_REF),
             },
             "oil_volume_l": _litre(self.oil_volume),
-            "min_pressure_bar": _bar_g(self.p_min),
-            "max_pressure_bar": _bar_g(self.p_max),
-            "precharge_bar_at_20c": _bar_g(g.precharge_ref),
+            "min_pressure_bar": bar_gauge(self.p_min),
+            "max_pressure_bar": bar_gauge(self.p_max),
+            "precharge_bar_at_20c": bar_gauge(g.precharge_ref),
             "precharge_by_rule": self.precharge is None,
             "required_gas_volume_l": _litre(g.required_gas_volume),
             "governing_type": g.type.value,
@@ -260,20 +256,20 @@ def _validate(oil_volume, p_min, p_max, precharge, T_min, T_max) -> None:
     for name, p in (("minimum working pressure", p_min), ("maximum working pressure", p_max)):
         if not (np.isfinite(p) and p > P_AMBIENT):
             raise SizingError(
-                f"{name} must be above ambient (> 0 bar gauge); got {_bar_g(p):g} bar"
+                f"{name} must be above ambient (> 0 bar gauge); got {bar_gauge(p):g} bar"
             )
     if not p_max > p_min:
         raise SizingError(
-            f"maximum working pressure {_bar_g(p_max):g} bar must exceed the minimum "
-            f"{_bar_g(p_min):g} bar (gauge)"
+            f"maximum working pressure {bar_gauge(p_max):g} bar must exceed the minimum "
+            f"{bar_gauge(p_min):g} bar (gauge)"
         )
     if precharge is not None:
         if not (np.isfinite(precharge) and precharge > P_AMBIENT):
-            raise SizingError(f"precharge must be above ambient; got {_bar_g(precharge):g} bar")
+            raise SizingError(f"precharge must be above ambient; got {bar_gauge(precharge):g} bar")
         if not precharge < p_min:
             raise SizingError(
-                f"precharge {_bar_g(precharge):g} bar at 20 °C must be below the minimum working "
-                f"pressure {_bar_g(p_min):g} bar (gauge), or no oil is stored at p_min"
+                f"precharge {bar_gauge(precharge):g} bar at 20 °C must be below the minimum "
+                f"working pressure {bar_gauge(p_min):g} bar (gauge), or no oil is stored at p_min"
             )
     if not (T_min > 0 and T_max >= T_min and np.isfinite(T_max)):
         raise SizingError(
@@ -323,7 +319,7 @@ def _physics(p0_ref: float, ctx: tuple) -> dict:
 
     t_worst, df_worst = _worst(df_of_T, ts, fmax - fmin)
     if not df_worst > 0:
-        p0_w = _bar_g(float(precharge_at(p0_ref, t_worst, model)))
+        p0_w = bar_gauge(float(precharge_at(p0_ref, t_worst, model)))
         raise SizingError(
             f"at {kelvin_to_celsius(t_worst):.4g} °C the precharge {p0_w:.4g} bar reaches the "
             "maximum working pressure, so no oil is exchanged; lower the precharge or the top "
@@ -450,7 +446,7 @@ def size_accumulator(
             if not p0_hot > P_AMBIENT:
                 raise SizingError(
                     f"{t.value}: the precharge rule leaves no precharge above ambient for a "
-                    f"minimum working pressure of {_bar_g(p_min):g} bar; give a precharge"
+                    f"minimum working pressure of {bar_gauge(p_min):g} bar; give a precharge"
                 )
             p0_ref = float(reference_precharge(p0_hot, T_max, model))
         if p0_ref not in cache:

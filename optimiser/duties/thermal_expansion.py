@@ -47,7 +47,6 @@ import numpy as np
 import pandas as pd
 from stowflow.duties._common import (
     SAFETY,
-    bar_g,
     celsius,
     check_positive,
     litre,
@@ -62,7 +61,7 @@ from stowflow.duties.properties import (
 )
 from stowflow.errors import SizingError
 from stowflow.physics.gas import ISOTHERMAL, oil_fraction, precharge_at, pressure_at_oil_fraction
-from stowflow.units import P_AMBIENT
+from stowflow.units import BAR, P_AMBIENT, bar_gauge
 
 __all__ = [
     "ThermalResult",
@@ -194,16 +193,18 @@ class ThermalResult:
             "process": "isothermal",
             "oil_volume_l": litre(self.oil_volume),
             "temperature_c": {"start": celsius(self.T1), "end": celsius(self.T2)},
-            "start_pressure_bar": bar_g(self.p_start),
-            "pressure_limit_bar": bar_g(self.p_limit),
+            "start_pressure_bar": bar_gauge(self.p_start),
+            "pressure_limit_bar": bar_gauge(self.p_limit),
             "oil_expansion_per_k": self.oil_expansion,
             "container_expansion_per_k": self.container_expansion,
             "bulk_modulus_gpa": self.bulk_modulus / 1e9,
             "expansion_l": litre(self.expansion),
-            "pressure_rise_without_accumulator_bar": self.pressure_rise_without / 1e5,
-            "pressure_without_accumulator_bar": bar_g(self.p_start + self.pressure_rise_without),
-            "pressure_rise_per_kelvin_bar": self.pressure_rise_without / 1e5 / (self.T2 - self.T1),
-            "precharge_bar_at_20c": bar_g(self.precharge_ref),
+            "pressure_rise_without_accumulator_bar": self.pressure_rise_without / BAR,
+            "pressure_without_accumulator_bar": bar_gauge(
+                self.p_start + self.pressure_rise_without
+            ),
+            "pressure_rise_per_kelvin_bar": self.pressure_rise_without / BAR / (self.T2 - self.T1),
+            "precharge_bar_at_20c": bar_gauge(self.precharge_ref),
             "precharge_by_rule": self.precharge_by_rule,
             "required_gas_volume_l": litre(self.required_gas_volume),
             "table": self.table.to_dict(orient="records"),
@@ -280,10 +281,10 @@ def size_thermal(
     f1 = float(oil_fraction(p_start, p0_ref, T1, ISOTHERMAL, model))
     f2 = float(oil_fraction(p_limit, p0_ref, T2, ISOTHERMAL, model))
     if not f2 > f1:
-        p0_hot = bar_g(float(precharge_at(p0_ref, T2, model)))
+        p0_hot = bar_gauge(float(precharge_at(p0_ref, T2, model)))
         raise SizingError(
             f"at {celsius(T2):.4g} °C the precharge {p0_hot:.4g} bar reaches the limit "
-            f"{bar_g(p_limit):g} bar, so the accumulator takes up no oil; lower the precharge"
+            f"{bar_gauge(p_limit):g} bar, so the accumulator takes up no oil; lower the precharge"
         )
     v0 = dv / (f2 - f1)
     ts = np.linspace(T1, T2, N_ROWS)
@@ -333,11 +334,13 @@ def _check_duty(
             f"{celsius(T1):g} °C"
         )
     if not (math.isfinite(p_start) and p_start >= P_AMBIENT):
-        raise SizingError(f"start pressure must be at least ambient; got {bar_g(p_start):g} bar")
+        raise SizingError(
+            f"start pressure must be at least ambient; got {bar_gauge(p_start):g} bar"
+        )
     if not (math.isfinite(p_limit) and p_limit > p_start):
         raise SizingError(
-            f"pressure limit {bar_g(p_limit):g} bar must exceed the start pressure "
-            f"{bar_g(p_start):g} bar (gauge)"
+            f"pressure limit {bar_gauge(p_limit):g} bar must exceed the start pressure "
+            f"{bar_gauge(p_start):g} bar (gauge)"
         )
     if not oil_expansion > container_expansion:
         raise SizingError(
@@ -364,11 +367,12 @@ def _pressure_table(
         {
             "temperature [°C]": [celsius(t) for t in ts],
             "growth [L]": [litre(x) for x in grown],
-            "pressure_with_accumulator [bar]": [bar_g(p) for p in p_with],
+            "pressure_with_accumulator [bar]": [bar_gauge(p) for p in p_with],
             "pressure_without_accumulator [bar]": [
-                bar_g(p_start + x) for x in blocked_pressure_rise(oil_volume, grown, bulk_modulus)
+                bar_gauge(p_start + x)
+                for x in blocked_pressure_rise(oil_volume, grown, bulk_modulus)
             ],
-            "precharge [bar]": [bar_g(p) for p in p0_T],
+            "precharge [bar]": [bar_gauge(p) for p in p0_T],
         }
     )
 

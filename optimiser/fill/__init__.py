@@ -35,7 +35,6 @@ from stowflow.errors import SizingError
 from stowflow.fill.equalise import (
     MAX_BOTTLES,
     adiabatic_transfer,
-    bar_g,
     bottles_needed,
     cascade,
     pressure,
@@ -43,7 +42,7 @@ from stowflow.fill.equalise import (
 from stowflow.fill.precharge import precharge_table
 from stowflow.fill.strokes import MAX_STROKES, MIN_YIELD, StrokePlan, stroke_transfer
 from stowflow.physics.gas import density, precharge_at
-from stowflow.units import P_AMBIENT, T_REF, kelvin_to_celsius, to_unit
+from stowflow.units import P_AMBIENT, T_REF, bar_gauge, kelvin_to_celsius, to_unit
 
 __all__ = [
     "FILL_SAFETY",
@@ -129,17 +128,17 @@ class FillPlan:
             "schema": "stowflow.fill/1",
             "gas_model": self.model,
             "volume_l": float(to_unit(self.volume, "L", "volume")),
-            "target_precharge_bar_at_20c": bar_g(self.precharge_ref),
+            "target_precharge_bar_at_20c": bar_gauge(self.precharge_ref),
             "fill_temperature_c": float(kelvin_to_celsius(self.T_fill)),
-            "target_at_fill_temperature_bar": bar_g(self.target_at_fill),
-            "bottle_pressure_bar": bar_g(self.bottle_pressure),
+            "target_at_fill_temperature_bar": bar_gauge(self.target_at_fill),
+            "bottle_pressure_bar": bar_gauge(self.bottle_pressure),
             "thermal_assumption": "each equalisation settles at the ambient temperature "
             "(valve held open until the pressure stops changing); warm values: adiabatic, "
             "right after the flow stops",
             "steps": self.steps.to_dict(orient="records"),
             "bottles_used": len(self.steps),
             "bottles_needed_direct": self.bottles_needed,
-            "final_pressure_bar": bar_g(self.final_pressure),
+            "final_pressure_bar": bar_gauge(self.final_pressure),
             "reached": self.reached,
             "options": list(self.options),
             "precharge_table": None if self.table is None else self.table.to_dict("records"),
@@ -221,8 +220,8 @@ def plan_fill(
     target_T = float(precharge_at(precharge, T, model))
     if m0 >= target_mass:
         raise SizingError(
-            f"the accumulator already holds {bar_g(initial_pressure):.4g} bar at "
-            f"{kelvin_to_celsius(T):.4g} °C, at or above the target {bar_g(target_T):.4g} bar "
+            f"the accumulator already holds {bar_gauge(initial_pressure):.4g} bar at "
+            f"{kelvin_to_celsius(T):.4g} °C, at or above the target {bar_gauge(target_T):.4g} bar "
             "there; vent it down to the target instead"
         )
     steps = cascade(volume, m0, target_mass, int(bottles), bottle_volume, bottle_pressure, T, model)
@@ -265,9 +264,9 @@ def _check_plan(volume, precharge, bottles, bottle_volume, bottle_pressure, init
     _check("bottle volume", bottle_volume, f"{bottle_volume:g} m³")
     if int(bottles) != bottles or bottles < 1:
         raise SizingError(f"number of bottles must be a whole number ≥ 1; got {bottles}")
-    _check("target precharge", precharge, f"{bar_g(precharge):g} bar", low=P_AMBIENT)
-    _check("bottle pressure", bottle_pressure, f"{bar_g(bottle_pressure):g} bar", low=P_AMBIENT)
-    _check("initial pressure", initial_pressure, f"{bar_g(initial_pressure):g} bar")
+    _check("target precharge", precharge, f"{bar_gauge(precharge):g} bar", low=P_AMBIENT)
+    _check("bottle pressure", bottle_pressure, f"{bar_gauge(bottle_pressure):g} bar", low=P_AMBIENT)
+    _check("initial pressure", initial_pressure, f"{bar_gauge(initial_pressure):g} bar")
 
 
 def _booster_option(booster, volume, m_end, target_mass, left, V_b, rho_res, T, model):
@@ -318,7 +317,7 @@ def _transfer_option(transfer, own, volume, m_end, target_mass, left, V_b, rho_r
         count_cylinder=own,
         method="transfer pump",
     )
-    label += f", oil pushed in at up to {bar_g(p_oil):.4g} bar"
+    label += f", oil pushed in at up to {bar_gauge(p_oil):.4g} bar"
     return _option(sp, v_r, volume, V_b, T, model, label, own)
 
 
@@ -330,9 +329,9 @@ def _option(sp: StrokePlan, v_receiver, v_total, v_bottle, T, model, label, own=
         "strokes": sp.strokes,
         "strokes_per_bottle": list(sp.strokes_per_bottle),
         "reached": sp.reached,
-        "final_pressure_bar": bar_g(pressure(held / v_total, T, model)),
-        "receiver_pressure_bar": bar_g(pressure(sp.receiver_mass / v_receiver, T, model)),
-        "bottles_left_bar": [bar_g(pressure(m / v_bottle, T, model)) for m in sp.bottle_masses],
+        "final_pressure_bar": bar_gauge(pressure(held / v_total, T, model)),
+        "receiver_pressure_bar": bar_gauge(pressure(sp.receiver_mass / v_receiver, T, model)),
+        "bottles_left_bar": [bar_gauge(pressure(m / v_bottle, T, model)) for m in sp.bottle_masses],
         "stop_reason": sp.stop_reason,
     }
 
@@ -350,8 +349,8 @@ def _notes(steps, reached, need, target_T, T, bottles) -> list[str]:
         notes.append(
             f"on the last bottle stop at {last['warm [bar]']:.4g} bar while warm "
             f"({last['warm_temperature [°C]']:.3g} °C gas), close, let it cool, and re-check: "
-            f"settled at {t_c:.3g} °C it must read {bar_g(target_T):.4g} bar; top up or vent to "
-            "that value"
+            f"settled at {t_c:.3g} °C it must read {bar_gauge(target_T):.4g} bar; top up or vent "
+            "to that value"
         )
     elif need is None:
         notes.append(

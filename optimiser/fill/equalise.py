@@ -31,19 +31,14 @@ import numpy as np
 import pandas as pd
 from stowflow.physics.gas import KAPPA, density, pressure_from_density, state_from_density
 from stowflow.physics.nitrogen import fields_rhoT, isentrope_T_at_rho
-from stowflow.units import abs_to_gauge, kelvin_to_celsius, to_unit
+from stowflow.units import bar_gauge, kelvin_to_celsius
 
-__all__ = ["MAX_BOTTLES", "adiabatic_transfer", "bar_g", "bottles_needed", "cascade", "pressure"]
+__all__ = ["MAX_BOTTLES", "adiabatic_transfer", "bottles_needed", "cascade", "pressure"]
 
 #: Newton iterations for T(ρ, u) stop below this relative step, [-].
 _T_TOL = 1e-12
 #: Direct cascades stop counting fresh bottles here, [-].
 MAX_BOTTLES = 10_000
-
-
-def bar_g(p_abs: float) -> float:
-    """Absolute pressure [Pa] → gauge [bar]."""
-    return float(to_unit(abs_to_gauge(p_abs), "bar", "pressure"))
 
 
 def pressure(rho: float, T: float, model: str) -> float:
@@ -186,11 +181,13 @@ def cascade(
                 "bottle_mass_before [kg]": m_b0,
                 "accumulator_mass_after [kg]": m_after,
                 "bottle_mass_after [kg]": b_after,
-                "accumulator [bar]": bar_g(pressure(m_after / V_a, T, model)),
-                "bottle_left [bar]": bar_g(pressure(b_after / V_b, T, model)),
-                "warm [bar]": bar_g(warm["p_a"]),
+                "accumulator [bar]": bar_gauge(pressure(m_after / V_a, T, model)),
+                "bottle_left [bar]": bar_gauge(pressure(b_after / V_b, T, model)),
+                "warm [bar]": bar_gauge(warm["p_a"]),
                 "warm_temperature [°C]": float(kelvin_to_celsius(warm["T_a"])),
-                "cooled_if_shut_at_once [bar]": bar_g(pressure((m_a + warm["dm"]) / V_a, T, model)),
+                "cooled_if_shut_at_once [bar]": bar_gauge(
+                    pressure((m_a + warm["dm"]) / V_a, T, model)
+                ),
                 "reached": bool(reached),
             }
         )

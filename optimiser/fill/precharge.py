@@ -15,7 +15,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 from stowflow.physics.gas import precharge_at
-from stowflow.units import abs_to_gauge, kelvin_to_celsius, to_unit
+from stowflow.units import bar_gauge, kelvin_to_celsius, to_unit
 
 __all__ = ["precharge_table"]
 
@@ -45,7 +45,7 @@ def precharge_table(p0_ref: float, temperatures, model: str = "real") -> pd.Data
     return pd.DataFrame(
         {
             "temperature [°C]": kelvin_to_celsius(ts),
-            "precharge_gauge [bar]": to_unit(abs_to_gauge(p), "bar", "pressure"),
+            "precharge_gauge [bar]": bar_gauge(p),
             "precharge_absolute [bar]": to_unit(p, "bar", "pressure"),
         }
     )

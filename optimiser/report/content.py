@@ -17,7 +17,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 from stowflow.units import (
-    abs_to_gauge,
+    bar_gauge,
     kelvin_to_celsius,
     to_unit,
 )
@@ -85,8 +85,9 @@ def fmt(value, spec: str = ".3g", unit: str = "") -> str:
 
 
 def bar_g(p_abs, result) -> float | np.ndarray:
-    """Absolute pressure [Pa] → gauge [bar] with the study's ambient pressure."""
-    return to_unit(abs_to_gauge(p_abs, result.settings.p_ambient), "bar", "pressure")
+    """Absolute pressure [Pa] → gauge [bar] with the study's ambient pressure
+    (:func:`stowflow.units.bar_gauge`)."""
+    return bar_gauge(p_abs, result.settings.p_ambient)
 
 
 def bar_delta(dp) -> float:

@@ -24,6 +24,7 @@ import numpy as np
 from stowflow.catalogue import Catalogue, MotorOption
 from stowflow.search.settings import DesignSettings
 from stowflow.search.solution import Baseline
+from stowflow.units import BAR, LPM, bar_text
 
 __all__ = ["compensated_baseline", "fixed_baseline", "smallest_motor"]
 
@@ -95,7 +96,7 @@ def fixed_baseline(
             relief,
             math.nan,
             reason=f"no pump in the catalogue delivers the peak flow "
-            f"{peak * 6e4:.1f} L/min at {(relief - s.p_ambient) / 1e5:.0f} bar",
+            f"{peak / LPM:.1f} L/min at {bar_text(relief, s.p_ambient, '.0f')}",
         )
     best = _least_drive(pumps, catalogue, relief - s.p_ambient)
     if best is None:
@@ -106,7 +107,7 @@ def fixed_baseline(
             relief,
             math.nan,
             reason="no motor in the catalogue drives a pump for the peak flow at "
-            f"{(relief - s.p_ambient) / 1e5:.0f} bar",
+            f"{bar_text(relief, s.p_ambient, '.0f')}",
         )
     pump, motor, shaft = best
     # Always loaded at the relief setting: constant shaft power.
@@ -149,7 +150,7 @@ def compensated_baseline(
             p_set,
             math.nan,
             reason="no pressure-compensated pump in the catalogue delivers the peak "
-            f"flow {peak * 6e4:.1f} L/min at {g / 1e5:.0f} bar",
+            f"flow {peak / LPM:.1f} L/min at {g / BAR:.0f} bar",
         )
     best = _least_drive(pumps, catalogue, g)
     if best is None:
@@ -160,7 +161,7 @@ def compensated_baseline(
             p_set,
             math.nan,
             reason="no motor in the catalogue drives a compensated pump for the "
-            f"peak flow at {g / 1e5:.0f} bar",
+            f"peak flow at {g / BAR:.0f} bar",
         )
     pump, motor, shaft_full = best
     leak = (1.0 - pump.volumetric_efficiency) * pump.flow / max(pump.volumetric_efficiency, 1e-9)

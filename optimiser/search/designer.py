@@ -25,6 +25,7 @@ from stowflow.physics import gas
 from stowflow.physics.valves import RELIEF_OVERRIDE
 from stowflow.search.baseline import compensated_baseline, fixed_baseline
 from stowflow.search.milp import VALVE_MODES, ScheduleProblem, hidden_load_events, solve_schedule
+from stowflow.search.problem import Problem, make_problem
 from stowflow.search.schedule import (
     check_schedule,
     deficit_from_full,
@@ -34,19 +35,17 @@ from stowflow.search.schedule import (
     switch_counts,
     window_steps,
 )
-from stowflow.search.screen import (
-    Candidate,
+from stowflow.search.screen import Candidate, ScreenResult, screen
+from stowflow.search.settings import DesignSettings
+from stowflow.search.solution import Alternative, Bank, Design, SearchStats
+from stowflow.search.store import (
     PrechargeGrid,
-    Problem,
     bank_lower,
     bank_upper,
-    make_problem,
-    screen,
     stored_pressure,
     top_pressure,
 )
-from stowflow.search.settings import DesignSettings
-from stowflow.search.solution import Alternative, Bank, Design, SearchStats
+from stowflow.units import HOUR, kelvin_to_celsius
 
 __all__ = ["Family", "design", "family_problem", "family_problems"]
 
@@ -84,7 +83,7 @@ class Family:
         it is planned at the middle temperature.
     p_top : float
         Where a discharge starts on the quasi-static curve, absolute, [Pa]
-        (:func:`stowflow.search.screen.top_pressure`).
+        (:func:`stowflow.search.store.top_pressure`).
     """
 
     candidate: Candidate
@@ -241,6 +240,189 @@ def _pressures(problem: Problem, fam: Family, oil: np.ndarray) -> tuple[np.ndarr
     return out[0], out[1]
 
 
+@dataclass(frozen=True)
+class _Search:
+    """What every outcome of one search reports: the prepared cycle, the screen, the physical
+    lower bound on installed power [W], the pump-only baselines, the notes so far (a list
+    the later stages append to) and the start time [s]."""
+
+    problem: Problem
+    screen: ScreenResult
+    lb_power: float
+    baselines: tuple
+    notes: list[str]
+    t_start: float
+
+
+def _power_lower_bound(problem: Problem, catalogue: Catalogue) -> float:
+    """Physical lower bound on installed power, [W]: a motor's rating is its shaft output, so
+    no supply installs less than the mean hydraulic power over the best pump efficiency."""
+    hyd = problem.demand * (problem.p_step - problem.settings.p_ambient)
+    best_eta = max(p.overall_efficiency for p in catalogue.pumps)
+    return float(hyd.mean()) / best_eta
+
+
+def _infeasible(search: _Search, reason: str) -> Design:
+    """The design that says why there is none."""
+    sr = search.screen
+    stats = SearchStats(
+        candidates=sr.evaluated,
+        screen_time=sr.elapsed,
+        total_time=time.perf_counter() - search.t_start,
+    )
+    return Design(
+        "infeasible",
+        reason,
+        None,
+        None,
+        None,
+        math.nan,
+        math.nan,
+        math.nan,
+        _process_label(search.problem),
+        pd.DataFrame(),
+        math.nan,
+        math.nan,
+        math.nan,
+        {},
+        search.lb_power,
+        search.baselines,
+        stats,
+        tuple(search.notes),
+    )
+
+
+def _rank_ties(problem: Problem, candidates, catalogue: Catalogue) -> list[tuple]:
+    """Level 3 among the ties, first pass: each (component set, precharge) ranked by its
+    energy under the ideal controller, least first.
+
+    Returns (energy [J], family or None for a pump-only set, candidate, load state or None)
+    per entry.
+    """
+    demand, dt = problem.demand, problem.dt
+    ranked: list[tuple[float, Family | None, Candidate, np.ndarray]] = []
+    for cand in candidates:
+        if cand.option is None:
+            ranked.append((_pump_only_energy(problem, cand), None, cand, np.ones(problem.n, int)))
+            continue
+        idx = np.arange(cand.precharges.size)
+        if idx.size > PRECHARGES_PER_SET:
+            idx = np.unique(np.linspace(0, idx.size - 1, PRECHARGES_PER_SET).round().astype(int))
+        fams = family_problems(problem, cand, cand.precharges[idx], cand.p_max[idx], catalogue)
+        for fam in fams:
+            # Rank by the ideal controller: loaded whenever the store must rise, unloaded
+            # part-way as soon as it may (the lowest trajectory); the MILP adds the limits.
+            ideal = lowest_trajectory(
+                np.ones(problem.n), demand, fam.sp.lower, fam.sp.upper, fam.sp.qp, dt
+            )
+            if ideal is None:
+                continue
+            e_rank = _energy(problem, fam, np.ones(problem.n), ideal.oil, ideal.spill)
+            ranked.append((e_rank, fam, cand, None))
+    ranked.sort(key=lambda r: r[0])
+    return ranked
+
+
+def _solve_ranked(problem: Problem, ranked: list[tuple], catalogue, notes, report):
+    """Level 3 for the best-ranked families: the schedule model, checked at full resolution.
+
+    Returns (the least-energy record or None, schedule models solved, build time [s], solve
+    time [s]); a record is the search's tuple (energy, family, candidate, u, oil, returned,
+    relief, gap, bound, status, block).
+    """
+    build_time = solve_time = 0.0
+    solved = 0
+    best = None
+    for k, (e_rank, fam, cand, u0) in enumerate(ranked[: max(MILP_FAMILIES, 1)]):
+        report(0.5 + 0.4 * k / MILP_FAMILIES, "solving the schedule model")
+        if fam is None:
+            cand_best = (e_rank, None, cand, u0, None, None, None, 0.0, e_rank, "optimal", 1)
+        else:
+            cand_best, n_solves, t_build, t_solve = _schedule_family(
+                problem, fam, cand, catalogue, notes
+            )
+            solved += n_solves
+            build_time += t_build
+            solve_time += t_solve
+            if cand_best is None:
+                continue
+        if best is None or cand_best[0] < best[0]:
+            best = cand_best
+    return best, solved, build_time, solve_time
+
+
+def _feasible(
+    search: _Search, best: tuple, n_ranked: int, solved: int, times: tuple[float, float], report
+) -> Design:
+    """The design of the best record; ``times`` are the schedule models' build and solve
+    times, [s]."""
+    problem, sr, notes = search.problem, search.screen, search.notes
+    s = problem.settings
+    energy, fam, cand, u, oil, returned, relief_flow, gap, bound, status, block = best
+    if n_ranked > MILP_FAMILIES:
+        notes.append(
+            f"{n_ranked} designs tie on installed power and capex; the one with the least "
+            "energy under an ideal pressure switch was optimised by the schedule model (level 3 "
+            "is optimal for that component set and precharge)"
+        )
+    report(0.95, "writing the schedule")
+    schedule, bank, p_min, p_max, relief = _assemble(
+        problem, fam, cand, u, oil, returned, relief_flow
+    )
+    if block > 1:
+        notes.append(
+            f"schedule model aggregated {block} steps per block (certified feasible "
+            "at full resolution)"
+        )
+    stats = SearchStats(
+        candidates=sr.evaluated,
+        screen_time=sr.elapsed,
+        build_time=times[0],
+        solve_time=times[1],
+        total_time=time.perf_counter() - search.t_start,
+        families_solved=solved,
+        block=block,
+        notes=(),
+    )
+    levels = {
+        "installed_power [W]": cand.motor.rated_power,
+        "capex": cand.capex,
+        "energy_per_cycle [J]": energy,
+    }
+    alternatives = tuple(
+        Alternative(c.pump, c.motor, c.option, c.count, c.capex) for c in sr.frontier
+    )
+    if fam is not None and not fam.robust:
+        t_mid = kelvin_to_celsius(0.5 * (s.t_min + s.t_max))
+        notes.append(
+            f"one open-loop schedule cannot hold at both temperature ends with this bank; the "
+            f"schedule is planned at {t_mid:.0f} °C and the pressure switch keeps the window at "
+            "the extremes"
+        )
+    return Design(
+        status=status if status in ("optimal", "feasible") else "feasible",
+        reason=None,
+        bank=bank,
+        pump=cand.pump,
+        motor=cand.motor,
+        p_min=p_min,
+        p_max=p_max,
+        relief=relief,
+        process=_process_label(problem),
+        schedule=schedule,
+        energy_per_cycle=energy,
+        mip_gap=0.0 if fam is None else (gap if math.isfinite(gap) else math.nan),
+        best_bound=bound,
+        levels=levels,
+        lower_bound_power=search.lb_power,
+        baselines=search.baselines,
+        stats=stats,
+        notes=tuple(notes),
+        alternatives=alternatives,
+        robust_schedule=fam is None or fam.robust,
+    )
+
+
 def design(
     cycle: DutyCycle,
     catalogue: Catalogue,
@@ -281,155 +463,23 @@ def design(
     report = progress or (lambda frac, label: None)
     report(0.0, "screening the catalogue")
     problem = make_problem(cycle, s, extra_pressure)
-    dt, demand = problem.dt, problem.demand
-
-    # Physical lower bound on installed power: a motor's rating is its shaft output, so no
-    # supply installs less than the mean hydraulic power over the best pump efficiency.
-    hyd = demand * (problem.p_step - s.p_ambient)
-    best_eta = max(p.overall_efficiency for p in catalogue.pumps)
-    lb_power = float(hyd.mean()) / best_eta
+    lb_power = _power_lower_bound(problem, catalogue)
     baselines = (
-        fixed_baseline(demand, problem.p_step, dt, catalogue, s),
-        compensated_baseline(demand, problem.p_step, dt, catalogue, s),
+        fixed_baseline(problem.demand, problem.p_step, problem.dt, catalogue, s),
+        compensated_baseline(problem.demand, problem.p_step, problem.dt, catalogue, s),
     )
     sr = screen(problem, catalogue, report=lambda f, lab: report(0.4 * f, lab), min_power=min_power)
     notes = [f"gas process: {problem.process_note}"]
-
-    def infeasible(reason: str) -> Design:
-        stats = SearchStats(
-            candidates=sr.evaluated,
-            screen_time=sr.elapsed,
-            total_time=time.perf_counter() - t_start,
-        )
-        return Design(
-            "infeasible",
-            reason,
-            None,
-            None,
-            None,
-            math.nan,
-            math.nan,
-            math.nan,
-            _process_label(problem),
-            pd.DataFrame(),
-            math.nan,
-            math.nan,
-            math.nan,
-            {},
-            lb_power,
-            baselines,
-            stats,
-            tuple(notes),
-        )
-
+    search = _Search(problem, sr, lb_power, baselines, notes, t_start)
     if not sr.candidates:
-        return infeasible(sr.reason)
-
+        return _infeasible(search, sr.reason)
     # Level 3 among the ties: rank by the ideal controller, then the MILP for the best few.
     report(0.45, "ranking tied designs by energy")
-    ranked: list[tuple[float, Family | None, Candidate, np.ndarray]] = []
-    for cand in sr.candidates:
-        if cand.option is None:
-            ranked.append((_pump_only_energy(problem, cand), None, cand, np.ones(problem.n, int)))
-            continue
-        idx = np.arange(cand.precharges.size)
-        if idx.size > PRECHARGES_PER_SET:
-            idx = np.unique(np.linspace(0, idx.size - 1, PRECHARGES_PER_SET).round().astype(int))
-        fams = family_problems(problem, cand, cand.precharges[idx], cand.p_max[idx], catalogue)
-        for fam in fams:
-            # Rank by the ideal controller: loaded whenever the store must rise, unloaded
-            # part-way as soon as it may (the lowest trajectory); the MILP adds the limits.
-            ideal = lowest_trajectory(
-                np.ones(problem.n), demand, fam.sp.lower, fam.sp.upper, fam.sp.qp, dt
-            )
-            if ideal is None:
-                continue
-            e_rank = _energy(problem, fam, np.ones(problem.n), ideal.oil, ideal.spill)
-            ranked.append((e_rank, fam, cand, None))
-    ranked.sort(key=lambda r: r[0])
-    build_time = solve_time = 0.0
-    solved = 0
-    best = None  # (energy, fam, cand, u, oil, returned, relief, gap, bound, status, block)
-    for k, (e_rank, fam, cand, u0) in enumerate(ranked[: max(MILP_FAMILIES, 1)]):
-        report(0.5 + 0.4 * k / MILP_FAMILIES, "solving the schedule model")
-        if fam is None:
-            cand_best = (e_rank, None, cand, u0, None, None, None, 0.0, e_rank, "optimal", 1)
-        else:
-            cand_best, n_solves, t_build, t_solve = _schedule_family(
-                problem, fam, cand, catalogue, notes
-            )
-            solved += n_solves
-            build_time += t_build
-            solve_time += t_solve
-            if cand_best is None:
-                continue
-        if best is None or cand_best[0] < best[0]:
-            best = cand_best
+    ranked = _rank_ties(problem, sr.candidates, catalogue)
+    best, solved, t_build, t_solve = _solve_ranked(problem, ranked, catalogue, notes, report)
     if best is None:
-        return infeasible("no schedule passed the full-resolution check")
-    energy, fam, cand, u, oil, returned, relief_flow, gap, bound, status, block = best
-    if len(ranked) > MILP_FAMILIES:
-        notes.append(
-            f"{len(ranked)} designs tie on installed power and capex; the one with the least "
-            "energy under an ideal pressure switch was optimised by the schedule model (level 3 "
-            "is optimal for that component set and precharge)"
-        )
-    report(0.95, "writing the schedule")
-    schedule, bank, p_min, p_max, relief = _assemble(
-        problem, fam, cand, u, oil, returned, relief_flow
-    )
-    if block > 1:
-        notes.append(
-            f"schedule model aggregated {block} steps per block (certified feasible "
-            "at full resolution)"
-        )
-    stats = SearchStats(
-        candidates=sr.evaluated,
-        screen_time=sr.elapsed,
-        build_time=build_time,
-        solve_time=solve_time,
-        total_time=time.perf_counter() - t_start,
-        families_solved=solved,
-        block=block,
-        notes=(),
-    )
-    levels = {
-        "installed_power [W]": cand.motor.rated_power,
-        "capex": cand.capex,
-        "energy_per_cycle [J]": energy,
-    }
-    alternatives = tuple(
-        Alternative(c.pump, c.motor, c.option, c.count, c.capex) for c in sr.frontier
-    )
-    if fam is not None and not fam.robust:
-        t_mid = 0.5 * (s.t_min + s.t_max) - 273.15
-        notes.append(
-            f"one open-loop schedule cannot hold at both temperature ends with this bank; the "
-            f"schedule is planned at {t_mid:.0f} °C and the pressure switch keeps the window at "
-            "the extremes"
-        )
-    return Design(
-        status=status if status in ("optimal", "feasible") else "feasible",
-        reason=None,
-        bank=bank,
-        pump=cand.pump,
-        motor=cand.motor,
-        p_min=p_min,
-        p_max=p_max,
-        relief=relief,
-        process=_process_label(problem),
-        schedule=schedule,
-        energy_per_cycle=energy,
-        mip_gap=0.0 if fam is None else (gap if math.isfinite(gap) else math.nan),
-        best_bound=bound,
-        levels=levels,
-        lower_bound_power=lb_power,
-        baselines=baselines,
-        stats=stats,
-        notes=tuple(notes),
-        alternatives=alternatives,
-        robust_schedule=fam is None or fam.robust,
-    )
+        return _infeasible(search, "no schedule passed the full-resolution check")
+    return _feasible(search, best, len(ranked), solved, (t_build, t_solve), report)
 
 
 def _process_label(problem: Problem) -> str:
@@ -590,7 +640,7 @@ def _hidden_excess(problem: Problem, sp: ScheduleProblem, u, returned) -> float:
     if sp.max_events_per_hour is None:
         return 0.0
     hidden = hidden_load_events(u, returned, sp.qp)
-    per_hour = (switch_counts(u)[0] + hidden) * 3600.0 / (problem.n * problem.dt)
+    per_hour = (switch_counts(u)[0] + hidden) * HOUR / (problem.n * problem.dt)
     return per_hour if hidden and per_hour > sp.max_events_per_hour * (1 + 1e-9) else 0.0
 
 

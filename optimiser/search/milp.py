@@ -62,6 +62,7 @@ import numpy as np
 # standard-form compiler hands the model to HiGHS.
 import pyomo.core as pyo
 from stowflow.search.schedule import run_store, window_steps
+from stowflow.units import BAR, LITRE
 
 __all__ = [
     "VALVE_MODES",
@@ -72,8 +73,10 @@ __all__ = [
     "solve_schedule",
 ]
 
-_LITRE = 1e3  # L per m³: the model's volume unit
-_BAR = 1e5  # Pa per bar: the model's pressure unit
+#: The model's volume unit is the litre: L per m³, [1/m³] (1000 exactly).
+_PER_LITRE = 1.0 / LITRE
+#: The objective is in kJ: kJ per J, [kJ/J].
+_OBJECTIVE_SCALE = 1e-3
 
 
 @dataclass(frozen=True)
@@ -340,6 +343,319 @@ def _labels_ok(ub, up_blocks, down_blocks, sp, block, n, dt) -> bool:
     return _max_window_events(ub, rest_blocks, full) <= sp.max_events_per_hour + 1e-9
 
 
+@dataclass(frozen=True)
+class _Data:
+    """The schedule model's data in its own units (litres, L/s, bar) and block layout."""
+
+    sp: ScheduleProblem
+    block: int
+    strict: bool
+    d_si: np.ndarray  # demand per step, [m³/s]
+    d: np.ndarray  # demand per step, [L/s]
+    lower: np.ndarray  # least store at each step end, [L]
+    upper: float  # most store, [L]
+    qp: float  # pump flow, [L/s]
+    q_lim: float  # bank discharge limit, [L/s]
+    cuts: list[tuple[float, float]]  # chords of the gauge pressure: [bar], [bar/L]
+    blocks: list[tuple[int, int]]
+    lens: list[int]  # steps per block, [-]
+    up_blocks: int  # least loaded blocks where a window constraint is needed, [-]
+    down_blocks: int  # least unloaded blocks where a window constraint is needed, [-]
+
+    @property
+    def nb(self) -> int:
+        """Blocks, [-]."""
+        return len(self.blocks)
+
+    @property
+    def need_c(self) -> bool:
+        """Whether the running counter of load events is needed."""
+        return self.up_blocks > 1 or self.sp.max_events_per_hour is not None
+
+
+def _model_data(sp: ScheduleProblem, block: int, strict: bool) -> _Data:
+    """The model's data: SI scaled to litres, L/s and bar, and the blocks of ``block`` steps."""
+    # The model works in litres, L/s and bar so that the solver's absolute tolerances (1e-7)
+    # are far below anything that matters; results go back to SI at the end.
+    vs, ps = _PER_LITRE, BAR
+    d_si = np.asarray(sp.demand, float)
+    blocks = block_layout(sp.n, block)
+    return _Data(
+        sp=sp,
+        block=block,
+        strict=strict,
+        d_si=d_si,
+        d=d_si * vs,
+        lower=np.asarray(sp.lower, float) * vs,
+        upper=sp.upper * vs,
+        qp=sp.qp * vs,
+        q_lim=sp.discharge_limit * vs,
+        cuts=[(a / ps, b / ps / vs) for a, b in sp.pressure_cuts],
+        blocks=blocks,
+        lens=[e - s for s, e in blocks],
+        up_blocks=math.ceil(sp.min_up / block) if sp.min_up > block else 0,
+        down_blocks=math.ceil(sp.min_down / block) if sp.min_down > block else 0,
+    )
+
+
+def _add_variables(m, data: _Data) -> None:
+    """Per block: load state ``u``, flow returned to tank ``r``, flow over the relief ``q``,
+    store full ``y`` (strict valves), stored oil ``S``, load and unload events ``v``/``w``,
+    gauge pressure ``pi``; the running event counters ``C``/``Cw`` where limits need them."""
+    B = range(data.nb)
+    qp, upper = data.qp, data.upper
+    m.u = pyo.Var(B, domain=pyo.Binary)
+    m.r = pyo.Var(B, bounds=(0.0, qp))  # returned to tank by the unloading valve
+    # over the relief valve, from a full store (strict valves only)
+    m.q = pyo.Var(B, bounds=(0.0, qp if data.strict else 0.0))
+    if data.strict:
+        m.y = pyo.Var(B, domain=pyo.Binary)  # store full at the block end (relief may open)
+    # The store's bounds at block ends are variable bounds (no rows); for blocks of one step
+    # they are the whole story.
+    s_lo = [float(data.lower[e - 1]) if e - st == 1 else 0.0 for st, e in data.blocks]
+    m.S = pyo.Var(B, bounds=lambda _m, b: (max(s_lo[b], 0.0), upper))
+    m.v = pyo.Var(B, bounds=(0.0, 1.0))
+    m.w = pyo.Var(B, bounds=(0.0, 1.0))
+    m.pi = pyo.Var(B, bounds=(0.0, None))  # gauge pressure at the mean store of the block
+    if data.need_c:
+        m.C = pyo.Var(B, bounds=(0.0, data.nb))
+    if data.down_blocks > 1:
+        m.Cw = pyo.Var(B, bounds=(0.0, data.nb))
+
+
+def _balance_rows(m, data: _Data, b: int) -> None:
+    """Store balance of block ``b``, and the pump's returned and relief flow within its
+    delivery."""
+    s, e = data.blocks[b]
+    nb_dt = data.lens[b] * data.sp.dt
+    prev = m.S[b - 1] if b else m.S[data.nb - 1]
+    dv = float(data.d[s:e].sum() * data.sp.dt)
+    add = m.cons.add
+    add(m.S[b] == prev + nb_dt * data.qp * m.u[b] - nb_dt * (m.r[b] + m.q[b]) - dv)
+    add(m.r[b] + m.q[b] <= data.qp * m.u[b])
+
+
+def _strict_valve_rows(m, data: _Data, b: int) -> None:
+    """Strict valves: the unloading valve opens part-way through the last block of a loaded
+    stretch only (one unload event, no extra load event); the relief valve spills only from
+    a full store."""
+    qp, add = data.qp, m.cons.add
+    # w of the next block is the unload event at this block's end; with the event bounds
+    # below it equals u_b(1 − u_{b+1}) at integer points and is tighter than 1 − u_{b+1} in
+    # the relaxation.
+    add(m.r[b] <= qp * (m.w[b + 1] if b + 1 < data.nb else m.w[0]))
+    add(m.q[b] <= qp * m.y[b])
+    add(m.y[b] <= m.u[b])
+    add(m.S[b] >= data.upper * m.y[b])
+
+
+def _inner_bound_rows(m, data: _Data, b: int) -> None:
+    """The store's bounds at the steps inside block ``b``: only the vertices of the upper
+    convex hulls can bind (none for a block of one step)."""
+    s, e = data.blocks[b]
+    if data.lens[b] <= 1:
+        return
+    dt, qp, add = data.sp.dt, data.qp, m.cons.add
+    prev = m.S[b - 1] if b else m.S[data.nb - 1]
+    dcum = np.cumsum(data.d[s:e]) * dt  # demand volume after k+1 steps
+    for k in _upper_hull(data.lower[s:e] + dcum):
+        kk = (k + 1) * dt
+        add(prev + kk * qp * m.u[b] - kk * (m.r[b] + m.q[b]) >= float(data.lower[s + k] + dcum[k]))
+    for k in _upper_hull(-dcum):
+        kk = (k + 1) * dt
+        add(prev + kk * qp * m.u[b] - kk * (m.r[b] + m.q[b]) <= float(data.upper + dcum[k]))
+
+
+def _discharge_rows(m, data: _Data, b: int) -> None:
+    """The bank's discharge limit in block ``b``, delivering and taking oil (where it can
+    bind)."""
+    if not math.isfinite(data.q_lim):
+        return
+    s, e = data.blocks[b]
+    qp, q_lim, add = data.qp, data.q_lim, m.cons.add
+    dmax, dmin = float(data.d[s:e].max()), float(data.d[s:e].min())
+    if dmax + qp > q_lim:
+        add(dmax + m.r[b] + m.q[b] - qp * m.u[b] <= q_lim)
+    if qp - dmin > q_lim:
+        add(qp * m.u[b] - dmin - m.r[b] - m.q[b] <= q_lim)
+
+
+def _event_rows(m, data: _Data, b: int) -> None:
+    """Load and unload events of block ``b`` from its change of load state."""
+    add = m.cons.add
+    u_prev = m.u[b - 1] if b else m.u[data.nb - 1]
+    add(m.v[b] - m.w[b] == m.u[b] - u_prev)
+    if data.strict:  # an event needs the state change (valid, and tightens the relaxation)
+        add(m.v[b] <= m.u[b])
+        add(m.v[b] <= 1 - u_prev)
+        add(m.w[b] <= u_prev)
+        add(m.w[b] <= 1 - m.u[b])
+
+
+def _pressure_rows(m, data: _Data, b: int) -> None:
+    """Epigraph of the convex gas curve at the block's mean store (only where oil is drawn:
+    elsewhere the pressure does not enter the energy)."""
+    s, e = data.blocks[b]
+    if data.d[s:e].sum() > 0:
+        prev = m.S[b - 1] if b else m.S[data.nb - 1]
+        for a_j, b_j in data.cuts:
+            m.cons.add(m.pi[b] >= a_j + b_j * 0.5 * (prev + m.S[b]))
+
+
+def _add_block_constraints(m, data: _Data) -> None:
+    """Every block's own rows, block after block."""
+    for b in range(data.nb):
+        _balance_rows(m, data, b)
+        if data.strict:
+            _strict_valve_rows(m, data, b)
+        _inner_bound_rows(m, data, b)
+        _discharge_rows(m, data, b)
+        _event_rows(m, data, b)
+        _pressure_rows(m, data, b)
+
+
+def _add_dwell_constraints(m, data: _Data) -> None:
+    """Running counters of load and unload events, and the minimum up and down times of
+    Rajan & Takriti as window sums over them."""
+    B, nb, add = range(data.nb), data.nb, m.cons.add
+    if data.need_c:
+        for b in B:
+            add(m.C[b] == (m.C[b - 1] if b else 0) + m.v[b])
+    if data.down_blocks > 1:
+        for b in B:
+            add(m.Cw[b] == (m.Cw[b - 1] if b else 0) + m.w[b])
+    if data.up_blocks > 1:
+        for b in B:
+            add(_window(m.C, b, data.up_blocks, nb) <= m.u[b])
+    if data.down_blocks > 1:
+        for b in B:
+            add(_window(m.Cw, b, data.down_blocks, nb) <= 1 - m.u[b])
+
+
+def _add_event_limit(m, data: _Data) -> None:
+    """Load events per hour: whole cycles in the hour times the events per cycle, plus the
+    events in the remaining window."""
+    sp, nb = data.sp, data.nb
+    if sp.max_events_per_hour is None:
+        return
+    full, rest = window_steps(sp.n * sp.dt, sp.dt)
+    k_max = float(sp.max_events_per_hour)
+    if rest <= 0:
+        m.cons.add(full * m.C[nb - 1] <= k_max)
+    else:
+        rest_blocks = min(math.ceil(rest / data.block) + (1 if data.block > 1 else 0), nb)
+        for b in range(nb):
+            m.cons.add(full * m.C[nb - 1] + _window(m.C, b, rest_blocks, nb) <= k_max)
+
+
+def _add_objective(m, data: _Data) -> None:
+    """Electrical energy per cycle, in kJ (:data:`_OBJECTIVE_SCALE`)."""
+    sp, dt, qp = data.sp, data.sp.dt, data.qp
+    ps = BAR
+    hyd = BAR / _PER_LITRE  # W per (L/s × bar)
+    eta = sp.efficiency
+    m.obj = pyo.Objective(
+        expr=_OBJECTIVE_SCALE
+        * sum(
+            dt
+            * (
+                float(data.d[s:e].sum()) * hyd * m.pi[b] / eta
+                + data.lens[b] * m.q[b] * hyd * (sp.relief_gauge / ps) / eta
+                + data.lens[b] * sp.unloaded_power * (1 - m.u[b] + m.r[b] / qp)
+            )
+            for b, (s, e) in enumerate(data.blocks)
+        ),
+        sense=pyo.minimize,
+    )
+
+
+def _build(data: _Data):
+    """The Pyomo model: variables, then constraints, then the objective."""
+    m = pyo.ConcreteModel("stowflow_schedule")
+    _add_variables(m, data)
+    m.cons = pyo.ConstraintList()
+    _add_block_constraints(m, data)
+    _add_dwell_constraints(m, data)
+    _add_event_limit(m, data)
+    _add_objective(m, data)
+    return m
+
+
+def _warm_start(m, data: _Data, warm_u) -> float:
+    """Load a full-resolution schedule as the MIP start; return its energy by the model's
+    law, [J] (nan when the store has no periodic run under it)."""
+    sp, vs, qp, upper = data.sp, _PER_LITRE, data.qp, data.upper
+    run = run_store(warm_u, data.d_si, sp.qp, sp.dt, sp.upper)
+    if run is None:
+        return math.nan
+    wu = np.asarray(warm_u, float)
+    oil = run.oil * vs
+    prev_oil = np.roll(oil, 1)
+    dv = wu - np.roll(wu, 1)
+    cv = np.cumsum(np.maximum(dv, 0))
+    cw = np.cumsum(np.maximum(-dv, 0))
+    for b in range(data.nb):
+        m.u[b].value = float(wu[b])
+        m.S[b].value = float(min(max(oil[b], 0.0), upper))
+        spill_b = float(min(max(run.spill[b] * vs, 0.0), qp * wu[b]))
+        if data.strict:  # the warm start spills over the relief valve, from a full store
+            m.r[b].value = 0.0
+            m.q[b].value = spill_b
+            m.y[b].value = 1.0 if spill_b > 0 else 0.0
+        else:
+            m.r[b].value = spill_b
+            m.q[b].value = 0.0
+        m.v[b].value = float(max(dv[b], 0))
+        m.w[b].value = float(max(-dv[b], 0))
+        if data.need_c:
+            m.C[b].value = float(cv[b])
+        if data.down_blocks > 1:
+            m.Cw[b].value = float(cw[b])
+        mid = 0.5 * (prev_oil[b] + oil[b])
+        m.pi[b].value = float(max(0.0, max(a + bb * mid for a, bb in data.cuts)))
+    if data.strict:
+        return sp.energy(wu, run.oil, 0.0, run.spill)
+    return sp.energy(wu, run.oil, run.spill)
+
+
+def _read_solution(m, data: _Data, run: _HighsRun, build_time: float, solve_time: float):
+    """The solved model back in SI at full resolution."""
+    sp, vs, qp, block = data.sp, _PER_LITRE, data.qp, data.block
+    B = range(data.nb)
+    ub = np.array([round(pyo.value(m.u[b])) for b in B], dtype=int)
+    back_b = np.array([min(max(pyo.value(m.r[b]), 0.0), qp * ub[b]) for b in B]) / vs
+    relief_b = np.array([min(max(pyo.value(m.q[b]), 0.0), qp * ub[b]) for b in B]) / vs
+    # A "loaded" block that returns all its flow to tank is an unloaded block: label it so when
+    # the dwell and event limits still hold (ties in energy; the label follows the flow).
+    idle = (ub == 1) & (back_b >= sp.qp * (1 - 1e-7))
+    if idle.any():
+        trial = np.where(idle, 0, ub)
+        if _labels_ok(trial, data.up_blocks, data.down_blocks, sp, block, sp.n, sp.dt):
+            ub, back_b = trial, np.where(idle, 0.0, back_b)
+    u = np.repeat(ub, data.lens)
+    spill = np.repeat(back_b, data.lens)
+    relief = np.repeat(relief_b, data.lens)
+    # Rebuild the full-resolution trajectory from the balance (block-constant flows).
+    net = (sp.qp * u - spill - relief - data.d_si) * sp.dt
+    oil = float(pyo.value(m.S[data.nb - 1])) / vs + np.cumsum(net)
+    energy = run.objective / _OBJECTIVE_SCALE
+    bound = run.bound / _OBJECTIVE_SCALE
+    gap = abs(energy - bound) / max(abs(energy), 1e-12) if math.isfinite(bound) else math.nan
+    return ScheduleSolution(
+        u=u,
+        oil=oil,
+        spill=spill,
+        energy=energy,
+        bound=bound,
+        gap=gap,
+        status="optimal" if run.optimal else "feasible",
+        block=block,
+        build_time=build_time,
+        solve_time=solve_time,
+        relief=relief,
+    )
+
+
 def solve_schedule(
     sp: ScheduleProblem,
     *,
@@ -377,170 +693,13 @@ def solve_schedule(
     """
     if valves not in VALVE_MODES:
         raise ValueError(f"valves must be one of {VALVE_MODES}, not {valves!r}")
-    strict = valves == "strict"
     t0 = time.perf_counter()
-    # The model works in litres, L/s and bar so that the solver's absolute tolerances (1e-7)
-    # are far below anything that matters; results go back to SI at the end.
-    vs, ps = _LITRE, _BAR
-    dt, n = sp.dt, sp.n
-    d_si = np.asarray(sp.demand, float)
-    d = d_si * vs
-    lower = np.asarray(sp.lower, float) * vs
-    blocks = block_layout(n, block)
-    nb = len(blocks)
-    qp, upper = sp.qp * vs, sp.upper * vs
-    q_lim = sp.discharge_limit * vs
-    cuts = [(a / ps, b / ps / vs) for a, b in sp.pressure_cuts]
-    hyd = ps / vs  # W per (L/s × bar)
-    scale = 1e-3  # objective in kJ
-
-    m = pyo.ConcreteModel("stowflow_schedule")
-    B = range(nb)
-    m.u = pyo.Var(B, domain=pyo.Binary)
-    m.r = pyo.Var(B, bounds=(0.0, qp))  # returned to tank by the unloading valve
-    # over the relief valve, from a full store (strict valves only)
-    m.q = pyo.Var(B, bounds=(0.0, qp if strict else 0.0))
-    if strict:
-        m.y = pyo.Var(B, domain=pyo.Binary)  # store full at the block end (relief may open)
-    # The store's bounds at block ends are variable bounds (no rows); for blocks of one step
-    # they are the whole story.
-    s_lo = [float(lower[e - 1]) if e - st == 1 else 0.0 for st, e in blocks]
-    m.S = pyo.Var(B, bounds=lambda _m, b: (max(s_lo[b], 0.0), upper))
-    m.v = pyo.Var(B, bounds=(0.0, 1.0))
-    m.w = pyo.Var(B, bounds=(0.0, 1.0))
-    m.pi = pyo.Var(B, bounds=(0.0, None))  # gauge pressure at the mean store of the block
-    m.cons = pyo.ConstraintList()
-    add = m.cons.add
-
-    lens = [e - s for s, e in blocks]
-    for b, (s, e) in enumerate(blocks):
-        prev = m.S[b - 1] if b else m.S[nb - 1]
-        dv = float(d[s:e].sum() * dt)
-        nb_dt = lens[b] * dt
-        add(m.S[b] == prev + nb_dt * qp * m.u[b] - nb_dt * (m.r[b] + m.q[b]) - dv)
-        add(m.r[b] + m.q[b] <= qp * m.u[b])
-        # The unloading valve opens part-way through the last block of a loaded stretch only
-        # (one unload event, no extra load event); the relief valve spills only from a full
-        # store.
-        if strict:
-            # w of the next block is the unload event at this block's end; with the event
-            # bounds below it equals u_b(1 − u_{b+1}) at integer points and is tighter than
-            # 1 − u_{b+1} in the relaxation.
-            add(m.r[b] <= qp * (m.w[b + 1] if b + 1 < nb else m.w[0]))
-            add(m.q[b] <= qp * m.y[b])
-            add(m.y[b] <= m.u[b])
-            add(m.S[b] >= upper * m.y[b])
-        dcum = np.cumsum(d[s:e]) * dt  # demand volume after k+1 steps
-        if lens[b] > 1:
-            for k in _upper_hull(lower[s:e] + dcum):
-                kk = (k + 1) * dt
-                add(
-                    prev + kk * qp * m.u[b] - kk * (m.r[b] + m.q[b])
-                    >= float(lower[s + k] + dcum[k])
-                )
-            for k in _upper_hull(-dcum):
-                kk = (k + 1) * dt
-                add(prev + kk * qp * m.u[b] - kk * (m.r[b] + m.q[b]) <= float(upper + dcum[k]))
-        if math.isfinite(q_lim):
-            dmax, dmin = float(d[s:e].max()), float(d[s:e].min())
-            if dmax + qp > q_lim:
-                add(dmax + m.r[b] + m.q[b] - qp * m.u[b] <= q_lim)
-            if qp - dmin > q_lim:
-                add(qp * m.u[b] - dmin - m.r[b] - m.q[b] <= q_lim)
-        # events
-        u_prev = m.u[b - 1] if b else m.u[nb - 1]
-        add(m.v[b] - m.w[b] == m.u[b] - u_prev)
-        if strict:  # an event needs the state change (valid, and tightens the relaxation)
-            add(m.v[b] <= m.u[b])
-            add(m.v[b] <= 1 - u_prev)
-            add(m.w[b] <= u_prev)
-            add(m.w[b] <= 1 - m.u[b])
-        # Epigraph of the convex gas curve at the block's mean store (only where oil is drawn:
-        # elsewhere the pressure does not enter the energy).
-        if d[s:e].sum() > 0:
-            for a_j, b_j in cuts:
-                add(m.pi[b] >= a_j + b_j * 0.5 * (prev + m.S[b]))
-
-    # Running counters of load and unload events (only where a limit needs them).
-    up_blocks = math.ceil(sp.min_up / block) if sp.min_up > block else 0
-    down_blocks = math.ceil(sp.min_down / block) if sp.min_down > block else 0
-    need_c = up_blocks > 1 or sp.max_events_per_hour is not None
-    if need_c:
-        m.C = pyo.Var(B, bounds=(0.0, nb))
-        for b in B:
-            add(m.C[b] == (m.C[b - 1] if b else 0) + m.v[b])
-    if down_blocks > 1:
-        m.Cw = pyo.Var(B, bounds=(0.0, nb))
-        for b in B:
-            add(m.Cw[b] == (m.Cw[b - 1] if b else 0) + m.w[b])
-    if up_blocks > 1:
-        for b in B:
-            add(_window(m.C, b, up_blocks, nb) <= m.u[b])
-    if down_blocks > 1:
-        for b in B:
-            add(_window(m.Cw, b, down_blocks, nb) <= 1 - m.u[b])
-    if sp.max_events_per_hour is not None:
-        full, rest = window_steps(n * dt, dt)
-        k_max = float(sp.max_events_per_hour)
-        if rest <= 0:
-            add(full * m.C[nb - 1] <= k_max)
-        else:
-            rest_blocks = min(math.ceil(rest / block) + (1 if block > 1 else 0), nb)
-            for b in B:
-                add(full * m.C[nb - 1] + _window(m.C, b, rest_blocks, nb) <= k_max)
-
-    eta = sp.efficiency
-    m.obj = pyo.Objective(
-        expr=scale
-        * sum(
-            dt
-            * (
-                float(d[s:e].sum()) * hyd * m.pi[b] / eta
-                + lens[b] * m.q[b] * hyd * (sp.relief_gauge / ps) / eta
-                + lens[b] * sp.unloaded_power * (1 - m.u[b] + m.r[b] / qp)
-            )
-            for b, (s, e) in enumerate(blocks)
-        ),
-        sense=pyo.minimize,
-    )
-
-    warm_energy = math.nan
-    if warm_u is not None and block == 1:
-        run = run_store(warm_u, d_si, sp.qp, dt, sp.upper)
-        if run is not None:
-            wu = np.asarray(warm_u, float)
-            oil = run.oil * vs
-            prev_oil = np.roll(oil, 1)
-            dv = wu - np.roll(wu, 1)
-            cv = np.cumsum(np.maximum(dv, 0))
-            cw = np.cumsum(np.maximum(-dv, 0))
-            for b in B:
-                m.u[b].value = float(wu[b])
-                m.S[b].value = float(min(max(oil[b], 0.0), upper))
-                spill_b = float(min(max(run.spill[b] * vs, 0.0), qp * wu[b]))
-                if strict:  # the warm start spills over the relief valve, from a full store
-                    m.r[b].value = 0.0
-                    m.q[b].value = spill_b
-                    m.y[b].value = 1.0 if spill_b > 0 else 0.0
-                else:
-                    m.r[b].value = spill_b
-                    m.q[b].value = 0.0
-                m.v[b].value = float(max(dv[b], 0))
-                m.w[b].value = float(max(-dv[b], 0))
-                if need_c:
-                    m.C[b].value = float(cv[b])
-                if down_blocks > 1:
-                    m.Cw[b].value = float(cw[b])
-                mid = 0.5 * (prev_oil[b] + oil[b])
-                m.pi[b].value = float(max(0.0, max(a + bb * mid for a, bb in cuts)))
-            warm_energy = (
-                sp.energy(wu, run.oil, 0.0, run.spill)
-                if strict
-                else sp.energy(wu, run.oil, run.spill)
-            )
+    data = _model_data(sp, block, valves == "strict")
+    m = _build(data)
+    warm = warm_u is not None and block == 1
+    warm_energy = _warm_start(m, data, warm_u) if warm else math.nan
     build_time = time.perf_counter() - t0
 
-    warm = warm_u is not None and block == 1
     t1 = time.perf_counter()
     run = _solve_highs(m, warm, time_limit=time_limit, mip_gap=mip_gap, threads=threads)
     solve_time = time.perf_counter() - t1
@@ -557,36 +716,4 @@ def solve_schedule(
             build_time=build_time,
             solve_time=solve_time,
         )
-    ub = np.array([round(pyo.value(m.u[b])) for b in B], dtype=int)
-    back_b = np.array([min(max(pyo.value(m.r[b]), 0.0), qp * ub[b]) for b in B]) / vs
-    relief_b = np.array([min(max(pyo.value(m.q[b]), 0.0), qp * ub[b]) for b in B]) / vs
-    # A "loaded" block that returns all its flow to tank is an unloaded block: label it so when
-    # the dwell and event limits still hold (ties in energy; the label follows the flow).
-    idle = (ub == 1) & (back_b >= sp.qp * (1 - 1e-7))
-    if idle.any():
-        trial = np.where(idle, 0, ub)
-        if _labels_ok(trial, up_blocks, down_blocks, sp, block, n, dt):
-            ub, back_b = trial, np.where(idle, 0.0, back_b)
-    u = np.repeat(ub, lens)
-    spill = np.repeat(back_b, lens)
-    relief = np.repeat(relief_b, lens)
-    # Rebuild the full-resolution trajectory from the balance (block-constant flows).
-    net = (sp.qp * u - spill - relief - d_si) * dt
-    oil = float(pyo.value(m.S[nb - 1])) / vs + np.cumsum(net)
-    energy = run.objective / scale
-    bound = run.bound / scale
-    gap = abs(energy - bound) / max(abs(energy), 1e-12) if math.isfinite(bound) else math.nan
-    status = "optimal" if run.optimal else "feasible"
-    return ScheduleSolution(
-        u=u,
-        oil=oil,
-        spill=spill,
-        energy=energy,
-        bound=bound,
-        gap=gap,
-        status=status,
-        block=block,
-        build_time=build_time,
-        solve_time=solve_time,
-        relief=relief,
-    )
+    return _read_solution(m, data, run, build_time, solve_time)

@@ -21,6 +21,7 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
+from stowflow.units import HOUR, LITRE, LPM
 
 __all__ = [
     "ScheduleCheck",
@@ -401,7 +402,7 @@ class ScheduleCheck:
     run: StoreRun | None
 
 
-def window_steps(cycle_time: float, dt: float, horizon: float = 3600.0) -> tuple[int, int]:
+def window_steps(cycle_time: float, dt: float, horizon: float = HOUR) -> tuple[int, int]:
     """Split a horizon into whole cycles plus a partial window of steps.
 
     Parameters
@@ -478,16 +479,16 @@ def check_schedule(
         k = int(np.argmax(short))
         if short[k] > tol:
             problems.append(
-                f"stored oil {run.oil[k] * 1e3:.4f} L at step {k} is below the "
-                f"{lower[k] * 1e3:.4f} L the required pressure needs"
+                f"stored oil {run.oil[k] / LITRE:.4f} L at step {k} is below the "
+                f"{lower[k] / LITRE:.4f} L the required pressure needs"
             )
         # net flow out of the bank within each step
         out = demand - qp * u + run.spill
         j = int(np.argmax(out))
         if out[j] > discharge_limit * (1 + 1e-9) + 1e-12:
             problems.append(
-                f"bank discharge {out[j] * 6e4:.1f} L/min at step {j} exceeds its limit "
-                f"{discharge_limit * 6e4:.1f} L/min"
+                f"bank discharge {out[j] / LPM:.1f} L/min at step {j} exceeds its limit "
+                f"{discharge_limit / LPM:.1f} L/min"
             )
     if not _run_lengths_ok(u, 1, min_up):
         problems.append(f"a loaded stretch is shorter than {min_up} steps")
@@ -524,6 +525,53 @@ def _required_levels(lower: np.ndarray, demand: np.ndarray, qp: float, dt: float
         if not changed:
             break
     return r
+
+
+@dataclass(frozen=True)
+class _Levels:
+    """Per-step data of the last-moment rule as Python lists (the step loop runs on scalars,
+    where lists beat numpy indexing): store gain when loaded and loss when unloaded [m³], the
+    required level and the idle thresholds for one and for ``min_down`` steps [m³]."""
+
+    gain: list[float]
+    loss: list[float]
+    req: list[float]
+    idle_1: list[float]
+    idle_down: list[float]
+
+
+def _last_moment(
+    fill: float, levels: _Levels, upper: float, min_up: int, min_down: int
+) -> np.ndarray | None:
+    """The last-moment rule with the fill target ``fill`` of the free room, [-], run around
+    the cycle until its start state repeats (at most 12 laps); the last lap's load states."""
+    n = len(levels.gain)
+    gain, loss, req_l = levels.gain, levels.loss, levels.req
+    idle_1_l, idle_down_l = levels.idle_1, levels.idle_down
+    u_prev, run_len, level = 1, min_up, upper
+    last = None
+    seen: set[tuple] = set()
+    for _ in range(12):
+        key = (u_prev, min(run_len, max(min_up, min_down)), round(level / (upper or 1.0), 9))
+        if key in seen:
+            break
+        seen.add(key)
+        u = [0] * n
+        for t in range(n):
+            if u_prev == 1:
+                load = run_len < min_up
+                if not load:
+                    target = req_l[t - 1]
+                    target = target + fill * (upper - target)
+                    load = level < target - 1e-12 or level < idle_down_l[t]
+            else:
+                load = run_len >= min_down and level < idle_1_l[t]
+            u[t] = int(load)
+            level = min(upper, level + (gain[t] if load else -loss[t]))
+            run_len = run_len + 1 if load == u_prev else 1
+            u_prev = int(load)
+        last = np.array(u, dtype=int)
+    return last
 
 
 def greedy_schedule(
@@ -579,39 +627,15 @@ def greedy_schedule(
         return always
     idle_1 = _idle_threshold(demand, req, dt, 1, discharge_limit)
     idle_down = _idle_threshold(demand, req, dt, max(1, min_down), discharge_limit)
-    # Python floats: the step loop below runs on scalars, where lists beat numpy indexing.
-    gain = ((qp - demand) * dt).tolist()
-    loss = (demand * dt).tolist()
-    req_l, idle_1_l, idle_down_l = req.tolist(), idle_1.tolist(), idle_down.tolist()
-
-    def attempt(fill: float) -> np.ndarray | None:
-        u_prev, run_len, level = 1, min_up, upper
-        last = None
-        seen: set[tuple] = set()
-        for _ in range(12):
-            key = (u_prev, min(run_len, max(min_up, min_down)), round(level / (upper or 1.0), 9))
-            if key in seen:
-                break
-            seen.add(key)
-            u = [0] * n
-            for t in range(n):
-                if u_prev == 1:
-                    load = run_len < min_up
-                    if not load:
-                        target = req_l[t - 1]
-                        target = target + fill * (upper - target)
-                        load = level < target - 1e-12 or level < idle_down_l[t]
-                else:
-                    load = run_len >= min_down and level < idle_1_l[t]
-                u[t] = int(load)
-                level = min(upper, level + (gain[t] if load else -loss[t]))
-                run_len = run_len + 1 if load == u_prev else 1
-                u_prev = int(load)
-            last = np.array(u, dtype=int)
-        return last
-
+    levels = _Levels(
+        ((qp - demand) * dt).tolist(),
+        (demand * dt).tolist(),
+        req.tolist(),
+        idle_1.tolist(),
+        idle_down.tolist(),
+    )
     for fill in (0.0, 0.25, 0.5, 1.0):
-        u = attempt(fill)
+        u = _last_moment(fill, levels, upper, min_up, min_down)
         if u is None:
             continue
         chk = check_schedule(

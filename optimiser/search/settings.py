@@ -11,7 +11,7 @@ from dataclasses import asdict, dataclass, field, replace
 
 from stowflow.catalogue import ACCUMULATOR_TYPES
 from stowflow.errors import SettingsError
-from stowflow.units import P_AMBIENT, celsius_to_kelvin
+from stowflow.units import BAR, P_AMBIENT, celsius_to_kelvin, kelvin_to_celsius
 
 __all__ = ["ACCUMULATOR_TYPES", "DEFAULT_SETTINGS", "DesignSettings"]
 
@@ -79,16 +79,16 @@ class DesignSettings:
     gas_model: str = "real"
     process: str = "auto"
     time_constant: float = 5.0
-    line_loss: float = 5e5
+    line_loss: float = 5 * BAR
     relief_margin: float = 0.10
-    relief_margin_min: float = 5e5
-    standby_pressure: float = 5e5
+    relief_margin_min: float = 5 * BAR
+    standby_pressure: float = 5 * BAR
     min_loaded_dwell: float = 1.0
     min_unloaded_dwell: float = 1.0
     max_load_events_per_hour: float | None = 360.0
     flow_margin: float = 0.10
     max_count: int = 8
-    precharge_step: float = 1e5
+    precharge_step: float = 1 * BAR
     types: tuple[str, ...] = ACCUMULATOR_TYPES
     allow_pump_only: bool = True
     mip_gap: float = 1e-3
@@ -107,8 +107,8 @@ class DesignSettings:
                 raise bad(f"{name} must be a positive finite number, got {v!r}")
         if self.t_min > self.t_max:
             raise bad(
-                f"coldest temperature {self.t_min - 273.15:.1f} °C is above the hottest "
-                f"{self.t_max - 273.15:.1f} °C"
+                f"coldest temperature {kelvin_to_celsius(self.t_min):.1f} °C is above the "
+                f"hottest {kelvin_to_celsius(self.t_max):.1f} °C"
             )
         if self.t_min < 200.0 or self.t_max > 450.0:
             raise bad("operating temperatures must lie between −73 °C and 177 °C")
@@ -160,26 +160,26 @@ class DesignSettings:
         d = asdict(self)
         d.pop("extra", None)
         out = {
-            "temperature_min_c": round(self.t_min - 273.15, 3),
-            "temperature_max_c": round(self.t_max - 273.15, 3),
+            "temperature_min_c": round(kelvin_to_celsius(self.t_min), 3),
+            "temperature_max_c": round(kelvin_to_celsius(self.t_max), 3),
             "gas_model": self.gas_model,
             "process": self.process,
             "time_constant_s": self.time_constant,
-            "line_loss_bar": self.line_loss / 1e5,
+            "line_loss_bar": self.line_loss / BAR,
             "relief_margin": self.relief_margin,
-            "relief_margin_min_bar": self.relief_margin_min / 1e5,
-            "standby_pressure_bar": self.standby_pressure / 1e5,
+            "relief_margin_min_bar": self.relief_margin_min / BAR,
+            "standby_pressure_bar": self.standby_pressure / BAR,
             "min_loaded_dwell_s": self.min_loaded_dwell,
             "min_unloaded_dwell_s": self.min_unloaded_dwell,
             "max_load_events_per_hour": self.max_load_events_per_hour,
             "flow_margin": self.flow_margin,
             "max_count": self.max_count,
-            "precharge_step_bar": self.precharge_step / 1e5,
+            "precharge_step_bar": self.precharge_step / BAR,
             "types": list(self.types),
             "allow_pump_only": self.allow_pump_only,
             "mip_gap": self.mip_gap,
             "time_limit_s": self.time_limit,
-            "ambient_pressure_bar": self.p_ambient / 1e5,
+            "ambient_pressure_bar": self.p_ambient / BAR,
         }
         return out
 

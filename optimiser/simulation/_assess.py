@@ -12,6 +12,7 @@ temperature range, energy per cycle, oil over the relief, and the per-step short
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
@@ -21,8 +22,8 @@ from stowflow.search.settings import DesignSettings
 from stowflow.search.solution import Design
 from stowflow.simulation._integrator import Plant
 from stowflow.simulation._loop import Orbit
-from stowflow.simulation._setup import bar_text, lpm_text, required
-from stowflow.units import kelvin_to_celsius, to_unit
+from stowflow.simulation._setup import lpm_text, required
+from stowflow.units import HOUR, KW, bar_text, kelvin_to_celsius, to_unit
 
 __all__ = ["assess", "discharge_limit", "limits_ok", "pump_only", "switching", "trace_frame"]
 
@@ -68,6 +69,158 @@ def discharge_limit(design: Design, limits: dict | None) -> tuple[float, str]:
     return count * unit, why
 
 
+@dataclass(frozen=True)
+class _Figures:
+    """What a simulated steady state measures (SI), with where its extremes occur.
+
+    ``c``/``j``: cycle and step of the least margin, ``jh`` step of the peak pressure, ``jo``
+    step of the largest bank discharge; ``p_lo`` the least pressure per (cycle, step), [Pa];
+    ``w_pump`` the pump's work per (cycle, step), [J].
+    """
+
+    P: int
+    p_lo: np.ndarray
+    c: int
+    j: int
+    min_margin: float
+    jh: int
+    peak: float
+    temps: np.ndarray
+    w_pump: np.ndarray
+    energy: float
+    shaft_rms: float
+    shaft_peak: float
+    events: int
+    dwell_on: float
+    dwell_off: float
+    per_hour: float
+    v_relief: float
+    v_unmet: float
+    jo: int
+    q_out: float
+
+
+def _figures(plant: Plant, orbit: Orbit, design: Design, s: DesignSettings) -> _Figures:
+    """Margins, peaks, energy, motor load, switching and volumes of a steady state."""
+    pa, dt = plant.p_ambient, plant.dt
+    recs = orbit.records
+    P = len(recs)
+    p_lo = np.stack([r.p_lo for r in recs])
+    p_hi = np.stack([r.p_hi for r in recs])
+    margin = p_lo - plant.required
+    c, j = np.unravel_index(int(np.argmin(margin)), margin.shape)
+    ch, jh = np.unravel_index(int(np.argmax(p_hi)), p_hi.shape)
+    temps = np.concatenate([[r.start.T for r in recs], np.concatenate([r.T for r in recs])])
+    eta_o = design.pump.overall_efficiency
+    unl = np.stack([r.h1 * (1 - r.u1) + (dt - r.h1) * (1 - r.u2) for r in recs])
+    w_pump = np.stack([r.w_pump for r in recs])
+    shaft_steps = (w_pump + plant.qp * s.standby_pressure * unl) / eta_o  # J per step
+    loaded_any = np.stack([(r.u1 * (r.h1 > 0) + r.u2 * (r.h1 < dt)) > 0 for r in recs])
+    events, dwell_on, dwell_off = switching(recs, dt, orbit.periodic)
+    out_max = np.stack([r.out_max for r in recs])
+    co, jo = np.unravel_index(int(np.argmax(out_max)), out_max.shape)
+    return _Figures(
+        P=P,
+        p_lo=p_lo,
+        c=c,
+        j=j,
+        min_margin=float(margin[c, j]),
+        jh=jh,
+        peak=float(p_hi[ch, jh]),
+        temps=temps,
+        w_pump=w_pump,
+        energy=float(shaft_steps.sum() / design.motor.efficiency / P),
+        shaft_rms=float(np.sqrt(np.mean((shaft_steps / dt) ** 2))),
+        shaft_peak=float(np.max(np.where(loaded_any, plant.qp * (p_hi - pa) / eta_o, 0.0))),
+        events=events,
+        dwell_on=dwell_on,
+        dwell_off=dwell_off,
+        per_hour=events * HOUR / (P * plant.duration),
+        v_relief=float(sum(r.v_relief.sum() for r in recs) / P),
+        v_unmet=float(sum(r.v_unmet.sum() for r in recs) / P),
+        jo=jo,
+        q_out=float(out_max[co, jo]),
+    )
+
+
+def _supply_failures(
+    f: _Figures, plant: Plant, orbit: Orbit, controller: str, design: Design, q_lim, lim_text, at
+) -> list[str]:
+    """Broken checks of the oil supply: bank empty, pressure margin, discharge limit, relief,
+    the shell's PS and the pump's rating, the piston's end stop."""
+    pa, dt, req = plant.p_ambient, plant.dt, plant.required
+    recs = orbit.records
+    c, j = f.c, f.j
+    fails: list[str] = []
+    if f.v_unmet > 0:
+        i = int(np.argmax(np.stack([r.v_unmet for r in recs]).max(axis=0) > 0))
+        fails.append(
+            f"bank runs empty at t = {i * dt:.4g} s ({to_unit(f.v_unmet, 'L', 'volume'):.3g} L "
+            f"of demand unmet per cycle, {at})"
+        )
+    if f.min_margin < 0:
+        fails.append(
+            f"pressure {bar_text(f.p_lo[c, j], pa)} falls "
+            f"{to_unit(-f.min_margin, 'bar', 'pressure'):.2f} bar below the required "
+            f"{bar_text(req[j], pa)} at t = {j * dt:.4g} s ({at})"
+        )
+    if f.q_out > q_lim * (1 + 1e-9):
+        fails.append(
+            f"bank discharge {lpm_text(f.q_out)} at t = {f.jo * dt:.4g} s exceeds its limit "
+            f"{lpm_text(q_lim)} ({lim_text})"
+        )
+    # A schedule that keeps the pump loaded against a full store plans its relief flow (the
+    # load-event limit leaves no other way); any other opening of the relief valve is a fault.
+    sch = design.schedule
+    planned = (
+        controller == "schedule"
+        and sch is not None
+        and "spill [m³/s]" in sch
+        and bool((sch["spill [m³/s]"] > 0).any())
+    )
+    peak = f.peak
+    if peak > plant.relief * (1 + 1e-12) and not planned:
+        fails.append(
+            f"peak pressure {bar_text(peak, pa)} at t = {f.jh * dt:.4g} s exceeds the relief "
+            f"setting {bar_text(plant.relief, pa)}; {to_unit(f.v_relief, 'L', 'volume'):.3g} L "
+            f"per cycle over the relief ({at})"
+        )
+    for what, limit in (
+        ("the accumulator's PS", design.bank.option.max_pressure),
+        ("the pump's rating", design.pump.max_pressure),
+    ):
+        if peak > limit:
+            fails.append(f"peak pressure {bar_text(peak, pa)} exceeds {what} {bar_text(limit, pa)}")
+    if any(r.stop.any() for r in recs):
+        fails.append(f"the piston reaches its end stop ({at})")
+    return fails
+
+
+def _drive_failures(f: _Figures, design: Design, s: DesignSettings, at: str) -> list[str]:
+    """Broken checks of the drive: load events per hour, least dwells, motor RMS load."""
+    fails: list[str] = []
+    lim = s.max_load_events_per_hour
+    if lim is not None and f.per_hour > lim * (1 + 1e-9):
+        fails.append(f"{f.per_hour:.0f} load events per hour exceed the limit {lim:g}/h ({at})")
+    if s.min_loaded_dwell > 0 and f.dwell_on < s.min_loaded_dwell * (1 - 1e-9):
+        fails.append(
+            f"pump stays loaded only {f.dwell_on:.3g} s, below the least loaded dwell "
+            f"{s.min_loaded_dwell:g} s ({at})"
+        )
+    if s.min_unloaded_dwell > 0 and f.dwell_off < s.min_unloaded_dwell * (1 - 1e-9):
+        fails.append(
+            f"pump stays unloaded only {f.dwell_off:.3g} s, below the least unloaded dwell "
+            f"{s.min_unloaded_dwell:g} s ({at})"
+        )
+    motor = design.motor
+    if f.shaft_rms > motor.rated_power * (1 + 1e-9):
+        fails.append(
+            f"motor RMS load {to_unit(f.shaft_rms, 'kW', 'power'):.3g} kW exceeds its rating "
+            f"{to_unit(motor.rated_power, 'kW', 'power'):.3g} kW ({at})"
+        )
+    return fails
+
+
 def assess(
     plant: Plant,
     orbit: Orbit,
@@ -101,134 +254,46 @@ def assess(
     dict
         The fields of :class:`stowflow.simulation.verify.ControllerRun`.
     """
-    s, pa, dt = settings, plant.p_ambient, plant.dt
-    recs = orbit.records
-    P = len(recs)
-    req = plant.required
-    p_lo = np.stack([r.p_lo for r in recs])
-    p_hi = np.stack([r.p_hi for r in recs])
-    margin = p_lo - req
-    c, j = np.unravel_index(int(np.argmin(margin)), margin.shape)
-    min_margin = float(margin[c, j])
-    ch, jh = np.unravel_index(int(np.argmax(p_hi)), p_hi.shape)
-    peak = float(p_hi[ch, jh])
-    temps = np.concatenate([[r.start.T for r in recs], np.concatenate([r.T for r in recs])])
-    pump, motor = design.pump, design.motor
-    eta_o = pump.overall_efficiency
-    unl = np.stack([r.h1 * (1 - r.u1) + (dt - r.h1) * (1 - r.u2) for r in recs])
-    w_pump = np.stack([r.w_pump for r in recs])
-    shaft_steps = (w_pump + plant.qp * s.standby_pressure * unl) / eta_o  # J per step
-    energy = float(shaft_steps.sum() / motor.efficiency / P)
-    shaft_rms = float(np.sqrt(np.mean((shaft_steps / dt) ** 2)))
-    loaded_any = np.stack([(r.u1 * (r.h1 > 0) + r.u2 * (r.h1 < dt)) > 0 for r in recs])
-    shaft_peak = float(np.max(np.where(loaded_any, plant.qp * (p_hi - pa) / eta_o, 0.0)))
-    events, dwell_on, dwell_off = switching(recs, dt, orbit.periodic)
-    per_hour = events * 3600.0 / (P * plant.duration)
-    v_relief = float(sum(r.v_relief.sum() for r in recs) / P)
-    v_unmet = float(sum(r.v_unmet.sum() for r in recs) / P)
-    out_max = np.stack([r.out_max for r in recs])
-    co, jo = np.unravel_index(int(np.argmax(out_max)), out_max.shape)
-    q_out = float(out_max[co, jo])
+    dt, recs = plant.dt, orbit.records
+    f = _figures(plant, orbit, design, settings)
     q_lim, lim_text = discharge_limit(design, limits)
-    T_w = kelvin_to_celsius(plant.T_wall)
-    at = f"at {T_w:.0f} °C, {controller}"
-
-    fails: list[str] = []
-    if v_unmet > 0:
-        i = int(np.argmax(np.stack([r.v_unmet for r in recs]).max(axis=0) > 0))
-        fails.append(
-            f"bank runs empty at t = {i * dt:.4g} s ({to_unit(v_unmet, 'L', 'volume'):.3g} L "
-            f"of demand unmet per cycle, {at})"
-        )
-    if min_margin < 0:
-        fails.append(
-            f"pressure {bar_text(p_lo[c, j], pa)} falls "
-            f"{to_unit(-min_margin, 'bar', 'pressure'):.2f} bar below the required "
-            f"{bar_text(req[j], pa)} at t = {j * dt:.4g} s ({at})"
-        )
-    if q_out > q_lim * (1 + 1e-9):
-        fails.append(
-            f"bank discharge {lpm_text(q_out)} at t = {jo * dt:.4g} s exceeds its limit "
-            f"{lpm_text(q_lim)} ({lim_text})"
-        )
-    # A schedule that keeps the pump loaded against a full store plans its relief flow (the
-    # load-event limit leaves no other way); any other opening of the relief valve is a fault.
-    sch = design.schedule
-    planned = (
-        controller == "schedule"
-        and sch is not None
-        and "spill [m³/s]" in sch
-        and bool((sch["spill [m³/s]"] > 0).any())
-    )
-    if peak > plant.relief * (1 + 1e-12) and not planned:
-        fails.append(
-            f"peak pressure {bar_text(peak, pa)} at t = {jh * dt:.4g} s exceeds the relief "
-            f"setting {bar_text(plant.relief, pa)}; {to_unit(v_relief, 'L', 'volume'):.3g} L "
-            f"per cycle over the relief ({at})"
-        )
-    for what, limit in (
-        ("the accumulator's PS", design.bank.option.max_pressure),
-        ("the pump's rating", pump.max_pressure),
-    ):
-        if peak > limit:
-            fails.append(f"peak pressure {bar_text(peak, pa)} exceeds {what} {bar_text(limit, pa)}")
-    if any(r.stop.any() for r in recs):
-        fails.append(f"the piston reaches its end stop ({at})")
-    lim = s.max_load_events_per_hour
-    if lim is not None and per_hour > lim * (1 + 1e-9):
-        fails.append(f"{per_hour:.0f} load events per hour exceed the limit {lim:g}/h ({at})")
-    if s.min_loaded_dwell > 0 and dwell_on < s.min_loaded_dwell * (1 - 1e-9):
-        fails.append(
-            f"pump stays loaded only {dwell_on:.3g} s, below the least loaded dwell "
-            f"{s.min_loaded_dwell:g} s ({at})"
-        )
-    if s.min_unloaded_dwell > 0 and dwell_off < s.min_unloaded_dwell * (1 - 1e-9):
-        fails.append(
-            f"pump stays unloaded only {dwell_off:.3g} s, below the least unloaded dwell "
-            f"{s.min_unloaded_dwell:g} s ({at})"
-        )
-    if shaft_rms > motor.rated_power * (1 + 1e-9):
-        fails.append(
-            f"motor RMS load {to_unit(shaft_rms, 'kW', 'power'):.3g} kW exceeds its rating "
-            f"{to_unit(motor.rated_power, 'kW', 'power'):.3g} kW ({at})"
-        )
-    shortfall = np.maximum(0.0, req - p_lo).max(axis=0)
-    rec = recs[c]
-    trace = trace_frame(plant, rec)
-    work = {
-        "pump [J]": float(w_pump.sum() / P),
-        "consumer [J]": float(sum(r.w_cons.sum() for r in recs) / P),
-        "relief [J]": float(sum(r.w_relief.sum() for r in recs) / P),
-    }
+    at = f"at {kelvin_to_celsius(plant.T_wall):.0f} °C, {controller}"
+    fails = _supply_failures(f, plant, orbit, controller, design, q_lim, lim_text, at)
+    fails += _drive_failures(f, design, settings, at)
+    rec = recs[f.c]
     return dict(
         controller=controller,
         temperature=plant.T_wall,
         passed=not fails,
         reason=fails[0] if fails else None,
-        min_margin=min_margin,
-        min_margin_time=float(j * dt),
-        peak_pressure=peak,
-        gas_temperature_min=float(temps.min()),
-        gas_temperature_max=float(temps.max()),
-        energy_per_cycle=energy,
-        load_events_per_hour=float(per_hour),
-        relief_volume=v_relief,
+        min_margin=f.min_margin,
+        min_margin_time=float(f.j * dt),
+        peak_pressure=f.peak,
+        gas_temperature_min=float(f.temps.min()),
+        gas_temperature_max=float(f.temps.max()),
+        energy_per_cycle=f.energy,
+        load_events_per_hour=float(f.per_hour),
+        relief_volume=f.v_relief,
         cycles_to_steady=int(orbit.cycles),
-        trace=trace,
+        trace=trace_frame(plant, rec),
         failures=tuple(fails),
         setpoints=dict(setpoints),
         periodic=orbit.periodic,
         period_cycles=int(orbit.period),
-        min_loaded_dwell=dwell_on,
-        min_unloaded_dwell=dwell_off,
-        peak_discharge=q_out,
+        min_loaded_dwell=f.dwell_on,
+        min_unloaded_dwell=f.dwell_off,
+        peak_discharge=f.q_out,
         discharge_limit=q_lim,
-        shaft_power_rms=shaft_rms,
-        shaft_power_peak=shaft_peak,
-        unmet_volume=v_unmet,
-        work=work,
+        shaft_power_rms=f.shaft_rms,
+        shaft_power_peak=f.shaft_peak,
+        unmet_volume=f.v_unmet,
+        work={
+            "pump [J]": float(f.w_pump.sum() / f.P),
+            "consumer [J]": float(sum(r.w_cons.sum() for r in recs) / f.P),
+            "relief [J]": float(sum(r.w_relief.sum() for r in recs) / f.P),
+        },
         start=(rec.start.S, rec.start.T),
-        shortfall=shortfall,
+        shortfall=np.maximum(0.0, plant.required - f.p_lo).max(axis=0),
     )
 
 
@@ -303,7 +368,7 @@ def pump_only(design: Design, cycle: DutyCycle, settings: DesignSettings, T: flo
     if shaft > design.motor.rated_power * (1 + 1e-9):
         fails.append(
             f"pump shaft power {to_unit(shaft, 'kW', 'power'):.3g} kW at the relief "
-            f"setting exceeds the motor's {design.motor.rated_power / 1e3:g} kW"
+            f"setting exceeds the motor's {design.motor.rated_power / KW:g} kW"
         )
     n = cycle.n_steps
     trace = pd.DataFrame(

@@ -25,7 +25,6 @@ from stowflow.units import to_unit
 
 __all__ = [
     "BALANCE_RTOL",
-    "bar_text",
     "iso_oil",
     "lpm_text",
     "motor_limit",
@@ -39,13 +38,12 @@ __all__ = [
 
 #: Tolerance of the schedule's volume balance, fraction of the bank gas volume, [-].
 BALANCE_RTOL = 1e-7
-#: Highest pressure used to bound the smooth path, inside the nitrogen table, [Pa].
+#: Highest pressure used to bound the smooth path, inside the nitrogen table, [Pa] (600 bar).
 _P_TABLE_TOP = 600e5
-
-
-def bar_text(p_abs: float, pa: float) -> str:
-    """``"123.4 bar"`` (gauge) for an absolute pressure [Pa] and the ambient pressure [Pa]."""
-    return f"{to_unit(p_abs - pa, 'bar', 'pressure'):.1f} bar"
+#: Finest load-point step of the pressure switch's search, [Pa] (0.2 bar).
+_PRESSURE_RESOLUTION = 0.2e5
+#: Finest load-point step of the position switch's search, fraction of the stroke, [-].
+_STROKE_RESOLUTION = 0.002
 
 
 def lpm_text(q: float) -> str:
@@ -227,7 +225,9 @@ def pressure_search(design: Design, settings: DesignSettings, plant: Plant) -> S
         )
     lowest = float(np.max(plant.required))
     highest = off - narrowest_band(off - s.p_ambient)
-    return SwitchSearch(off, min(lowest, highest), highest, max(0.2e5, (highest - lowest) / 32))
+    return SwitchSearch(
+        off, min(lowest, highest), highest, max(_PRESSURE_RESOLUTION, (highest - lowest) / 32)
+    )
 
 
 def stroke_search(design: Design, settings: DesignSettings, plant: Plant) -> SwitchSearch:
@@ -238,4 +238,4 @@ def stroke_search(design: Design, settings: DesignSettings, plant: Plant) -> Swi
     off = full / plant.stroke
     need = iso_oil(design, s, float(np.max(plant.required)), s.t_min) / plant.stroke
     highest = off - MIN_BAND_STROKE
-    return SwitchSearch(off, min(need, highest), highest, 0.002)
+    return SwitchSearch(off, min(need, highest), highest, _STROKE_RESOLUTION)

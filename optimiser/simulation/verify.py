@@ -422,6 +422,144 @@ def _curable(failure: str) -> bool:
     )
 
 
+#: The hysteresis switches: name, signal, the keys of their settings, the search of the load
+#: point.
+_SWITCHES = (
+    ("pressure-switch", "pressure", ("load_below", "unload_above"), pressure_search),
+    ("position-switch", "stroke", ("load_below_stroke", "unload_above_stroke"), stroke_search),
+)
+
+
+class _Progress:
+    """``report(fraction, label)`` advanced by one tick per run, about eight per controller."""
+
+    def __init__(self, report: Callable[[float, str], None], controllers: int) -> None:
+        self.report = report
+        self.steps = 0.0
+        self.total = controllers * 8.0
+
+    def __call__(self, label: str) -> None:
+        self.steps += 1
+        self.report(min(0.95, self.steps / self.total), label)
+
+
+def _wanted_controllers(controllers: Iterable[str]) -> tuple[str, ...]:
+    """The controllers asked for, refused with one SettingsError line when unknown or none."""
+    wanted = tuple(controllers)
+    unknown = [c for c in wanted if c not in CONTROLLERS]
+    if unknown or not wanted:
+        raise SettingsError(
+            f"controller(s) {unknown or '(none)'} unknown; use {', '.join(CONTROLLERS)}"
+        )
+    return wanted
+
+
+def _schedule_runs(runner: _Runner, tick: _Progress, notes: list[str]) -> list[ControllerRun]:
+    """The design's own schedule, open loop, at every temperature (none without one)."""
+    f = schedule_fraction(runner.design, runner.cycle)
+    if f is None:
+        notes.append("the design carries no schedule: schedule controller not simulated")
+        return []
+    ctrl = ScheduleController(f)
+    runs = []
+    for T in runner.plants:
+        tick("schedule")
+        runs.append(runner.run("schedule", ctrl, T, "schedule"))
+    return runs
+
+
+def _switch_runs(
+    runner: _Runner, wanted: tuple[str, ...], given: dict, tick: _Progress, notes: list[str]
+) -> tuple[list[ControllerRun], dict]:
+    """The hysteresis switches at every temperature, with the settings given or derived;
+    returns the runs and the settings."""
+    design, temps = runner.design, list(runner.plants)
+    first_plant = runner.plants[temps[0]]
+    runs: list[ControllerRun] = []
+    derived: dict = {}
+    for name, signal, keys, make_search in _SWITCHES:
+        if name not in wanted or (signal == "stroke" and not design.bank.option.has_piston):
+            continue
+        if all(k in given for k in keys):
+            ctrl = HysteresisController(name, signal, given[keys[0]], given[keys[1]])
+            sw_runs = [runner.run(name, ctrl, T, name) for T in temps]
+            sw_notes = ["settings given, not derived"]
+        else:
+            search = make_search(design, runner.s, first_plant)
+            sw_runs, sw_notes = runner.switch(name, signal, search, tick)
+        runs += sw_runs
+        derived |= sw_runs[0].setpoints
+        notes += [f"{name}: {n}" for n in sw_notes]
+    return runs, derived
+
+
+def _bank_runs(
+    runner: _Runner, wanted: tuple[str, ...], setpoints: dict | None, report, notes: list[str]
+) -> tuple[list[ControllerRun], dict]:
+    """Every wanted controller of a design with a bank, each run with its integration error
+    estimated; returns the runs and the switch settings."""
+    tick = _Progress(report, len(wanted))
+    runs = _schedule_runs(runner, tick, notes) if "schedule" in wanted else []
+    sw_runs, derived = _switch_runs(runner, wanted, setpoints or {}, tick, notes)
+    runs += sw_runs
+    report(0.96, "estimating the integration error")
+    for i, r in enumerate(runs):
+        plant, ctrl, orbit = runner.orbits[id(r)]
+        runs[i] = replace(r, integration_error=_estimate_error(plant, ctrl, orbit))
+    err = max(r.integration_error for r in runs)
+    first_plant = next(iter(runner.plants.values()))
+    notes.append(
+        "integrator: exponential integrator on the cycle grid "
+        f"({first_plant.substeps} substep(s) per step); step doubling changes the "
+        f"pressure by at most {to_unit(err, 'bar', 'pressure'):.2g} bar"
+    )
+    if runner.limits is None:
+        notes.append("discharge limits: catalogue rows and default type rules")
+    return runs, derived
+
+
+def _verdict(
+    design: Design, s: DesignSettings, runs: list, derived: dict, notes: list[str], t0, report
+) -> Verification:
+    """The verdict of the recommended controller over all the runs (``t0`` the start of the
+    verification, [s])."""
+    rec = _recommend(runs)
+    mine = [r for r in runs if r.controller == rec]
+    passed = all(r.passed for r in mine)
+    margin = min(r.min_margin for r in mine)
+    shortfall = None
+    if not passed:
+        shortfall = np.max(np.stack([r.shortfall for r in mine]), axis=0)
+    reason = None if passed else next(r.reason for r in mine if not r.passed)
+    e_sim = float(np.mean([r.energy_per_cycle for r in mine]))
+    if np.isfinite(design.energy_per_cycle) and design.energy_per_cycle > 0:
+        notes.append(
+            f"energy per cycle ({rec}, mean of the temperatures): "
+            f"{to_unit(e_sim, 'kJ', 'energy'):.4g} kJ against the design's quasi-static "
+            f"{to_unit(design.energy_per_cycle, 'kJ', 'energy'):.4g} kJ (actual pressures, heat "
+            "lost to the wall and both temperature ends here; the middle temperature there)"
+        )
+    ok = sorted({r.controller for r in runs} - {r.controller for r in runs if not r.passed})
+    notes.append("controllers passing at every temperature: " + (", ".join(ok) or "none"))
+    slow = [r for r in runs if not r.periodic]
+    if slow:
+        notes.append(f"{len(slow)} run(s) reached no periodic state within the cycle cap")
+    report(1.0, "verified")
+    return Verification(
+        passed=passed,
+        controller=rec,
+        setpoints=derived,
+        runs=tuple(runs),
+        min_margin=float(margin),
+        shortfall=shortfall,
+        reason=reason,
+        time_constant=float(s.time_constant),
+        gas_model=s.gas_model,
+        elapsed=time.perf_counter() - t0,
+        notes=tuple(notes),
+    )
+
+
 def verify(
     design: Design,
     cycle: DutyCycle,
@@ -460,12 +598,7 @@ def verify(
     t0 = time.perf_counter()
     s = settings or DesignSettings()
     _check_design(design)
-    wanted = tuple(controllers)
-    unknown = [c for c in wanted if c not in CONTROLLERS]
-    if unknown or not wanted:
-        raise SettingsError(
-            f"controller(s) {unknown or '(none)'} unknown; use {', '.join(CONTROLLERS)}"
-        )
+    wanted = _wanted_controllers(controllers)
     report = progress or (lambda frac, label: None)
     notes = [
         f"steady state: the state at a cycle start repeats within {OIL_TOL:g} of the gas "
@@ -474,99 +607,12 @@ def verify(
         f"relief valve: linear, full pump flow at {RELIEF_OVERRIDE:.0%} of its cracking gauge "
         "pressure above cracking (common practice, no published source)",
     ]
-    runs: list[ControllerRun] = []
-    derived: dict = {}
     if design.bank is None:
         temps = sorted({float(s.t_min), float(s.t_max)})
         runs = [ControllerRun(**pump_only(design, cycle, s, T)) for T in temps]
+        derived: dict = {}
         notes.append("pump-only supply: always loaded against the relief valve (no switching)")
     else:
         runner = _Runner(design, cycle, s, limits)
-        temps = list(runner.plants)
-        steps = 0.0
-        total = len(wanted) * 8.0
-
-        def tick(label: str) -> None:
-            nonlocal steps
-            steps += 1
-            report(min(0.95, steps / total), label)
-
-        if "schedule" in wanted:
-            f = schedule_fraction(design, cycle)
-            if f is None:
-                notes.append("the design carries no schedule: schedule controller not simulated")
-            else:
-                ctrl = ScheduleController(f)
-                for T in temps:
-                    tick("schedule")
-                    runs.append(runner.run("schedule", ctrl, T, "schedule"))
-        first_plant = runner.plants[temps[0]]
-        given = setpoints or {}
-        for name, signal, keys, make_search in (
-            ("pressure-switch", "pressure", ("load_below", "unload_above"), pressure_search),
-            (
-                "position-switch",
-                "stroke",
-                ("load_below_stroke", "unload_above_stroke"),
-                stroke_search,
-            ),
-        ):
-            if name not in wanted or (signal == "stroke" and not design.bank.option.has_piston):
-                continue
-            if all(k in given for k in keys):
-                ctrl = HysteresisController(name, signal, given[keys[0]], given[keys[1]])
-                sw_runs = [runner.run(name, ctrl, T, name) for T in temps]
-                sw_notes = ["settings given, not derived"]
-            else:
-                search = make_search(design, s, first_plant)
-                sw_runs, sw_notes = runner.switch(name, signal, search, tick)
-            runs += sw_runs
-            derived |= sw_runs[0].setpoints
-            notes += [f"{name}: {n}" for n in sw_notes]
-        report(0.96, "estimating the integration error")
-        for i, r in enumerate(runs):
-            plant, ctrl, orbit = runner.orbits[id(r)]
-            runs[i] = replace(r, integration_error=_estimate_error(plant, ctrl, orbit))
-        err = max(r.integration_error for r in runs)
-        notes.append(
-            "integrator: exponential integrator on the cycle grid "
-            f"({first_plant.substeps} substep(s) per step); step doubling changes the "
-            f"pressure by at most {to_unit(err, 'bar', 'pressure'):.2g} bar"
-        )
-        if limits is None:
-            notes.append("discharge limits: catalogue rows and default type rules")
-    rec = _recommend(runs)
-    mine = [r for r in runs if r.controller == rec]
-    passed = all(r.passed for r in mine)
-    margin = min(r.min_margin for r in mine)
-    shortfall = None
-    if not passed:
-        shortfall = np.max(np.stack([r.shortfall for r in mine]), axis=0)
-    reason = None if passed else next(r.reason for r in mine if not r.passed)
-    e_sim = float(np.mean([r.energy_per_cycle for r in mine]))
-    if np.isfinite(design.energy_per_cycle) and design.energy_per_cycle > 0:
-        notes.append(
-            f"energy per cycle ({rec}, mean of the temperatures): "
-            f"{to_unit(e_sim, 'kJ', 'energy'):.4g} kJ against the design's quasi-static "
-            f"{to_unit(design.energy_per_cycle, 'kJ', 'energy'):.4g} kJ (actual pressures, heat "
-            "lost to the wall and both temperature ends here; the middle temperature there)"
-        )
-    ok = sorted({r.controller for r in runs} - {r.controller for r in runs if not r.passed})
-    notes.append("controllers passing at every temperature: " + (", ".join(ok) or "none"))
-    slow = [r for r in runs if not r.periodic]
-    if slow:
-        notes.append(f"{len(slow)} run(s) reached no periodic state within the cycle cap")
-    report(1.0, "verified")
-    return Verification(
-        passed=passed,
-        controller=rec,
-        setpoints=derived,
-        runs=tuple(runs),
-        min_margin=float(margin),
-        shortfall=shortfall,
-        reason=reason,
-        time_constant=float(s.time_constant),
-        gas_model=s.gas_model,
-        elapsed=time.perf_counter() - t0,
-        notes=tuple(notes),
-    )
+        runs, derived = _bank_runs(runner, wanted, setpoints, report, notes)
+    return _verdict(design, s, runs, derived, notes, t0, report)

@@ -33,19 +33,15 @@ import numpy as np
 ROOT = Path(__file__).resolve().parents[2]
 sys.path.insert(0, str(ROOT))
 
-from stowflow import gas  # noqa: E402
 from stowflow.catalogue import load_catalogue  # noqa: E402
 from stowflow.cycle.duty import load_cycle  # noqa: E402
 from stowflow.physics import accumulator as acc  # noqa: E402
+from stowflow.physics import gas  # noqa: E402
 from stowflow.search.designer import design  # noqa: E402
-from stowflow.search.screen import (  # noqa: E402
-    charge_heating,
-    make_problem,
-    screen,
-    stored_fraction,
-    top_pressure,
-)
+from stowflow.search.problem import make_problem  # noqa: E402
+from stowflow.search.screen import screen  # noqa: E402
 from stowflow.search.settings import DesignSettings  # noqa: E402
+from stowflow.search.store import charge_heating, stored_fraction, top_pressure  # noqa: E402
 
 CYCLE = ROOT / "duty_cycles" / "forming_press.csv"
 CATALOGUE = ROOT / "duty_cycles" / "catalogue.toml"

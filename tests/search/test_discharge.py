@@ -21,15 +21,10 @@ from CoolProp.CoolProp import PropsSI
 from stowflow.cycle.duty import cycle_from_arrays
 from stowflow.physics import gas, thermal
 from stowflow.physics.gas import KAPPA, expansion_ratio, pressure_after_expansion
+from stowflow.search.problem import make_problem
 from stowflow.search.schedule import cooling_loss, refill_memory
-from stowflow.search.screen import (
-    charge_heating,
-    make_problem,
-    stored_fraction,
-    stored_pressure,
-    top_pressure,
-)
 from stowflow.search.settings import DesignSettings
+from stowflow.search.store import charge_heating, stored_fraction, stored_pressure, top_pressure
 from stowflow.units import P_AMBIENT, T_REF
 
 BAR = 1e5

@@ -22,8 +22,8 @@ from stowflow.cycle.duty import cycle_from_arrays
 from stowflow.physics import accumulator as acc
 from stowflow.physics import gas
 from stowflow.search.designer import design
+from stowflow.search.problem import make_problem
 from stowflow.search.schedule import check_schedule
-from stowflow.search.screen import make_problem
 from stowflow.search.settings import DesignSettings
 from stowflow.units import P_AMBIENT
 
@@ -119,7 +119,7 @@ def _brute_force(cyc, cat: Catalogue, s: DesignSettings):
     demand = np.asarray(cyc.flow)
     p_step = np.asarray(cyc.pressure) + s.line_loss
     p_end = np.maximum(p_step, np.roll(p_step, -1))
-    from stowflow.search.screen import resolve_process
+    from stowflow.search.problem import resolve_process
 
     proc, _ = resolve_process(demand, dt, s)
     problem = make_problem(cyc, s)  # for the store model of the auto process
@@ -170,13 +170,13 @@ def _brute_force(cyc, cat: Catalogue, s: DesignSettings):
 def _store_model(problem, s, v0, p0, p_max, t_k, p_end, floor, proc):
     """(need per step, top) [m³] of a bank, and its gas's heating factor [-]: with the
     ``auto`` process the store is charged at rest and discharged from the switch's load
-    point and the gas a refill warmed withholds oil (stowflow.search.screen's store model);
+    point and the gas a refill warmed withholds oil (stowflow.search.store's store model);
     otherwise the gas follows ``proc`` from the precharge."""
     if s.process != "auto":
         need = v0 * gas.oil_fraction(np.maximum(p_end, floor), p0, t_k, proc, s.gas_model)
         top = v0 * float(gas.oil_fraction(p_max, p0, t_k, proc, s.gas_model))
         return need, top, 0.0
-    from stowflow.search.screen import charge_heating, stored_fraction, top_pressure
+    from stowflow.search.store import charge_heating, stored_fraction, top_pressure
 
     need = v0 * stored_fraction(problem, np.maximum(p_end, floor), p0, t_k, top_pressure(s, p_max))
     top = v0 * float(gas.oil_fraction(p_max, p0, t_k, "isothermal", s.gas_model))
