@@ -6,6 +6,7 @@ import math
 
 import pytest
 import stowflow.catalogue as catalogue_module
+from sources import IEC_60034_30_1, IEC_60072_1, ISO_3
 from stowflow.catalogue import (
     ACCUMULATOR_TYPES,
     default_catalogue_path,
@@ -38,21 +39,21 @@ max_pressure_bar = 330
 price = 1200
 """
 
-# IEC 60034-30-1:2014 / EU Regulation 2019/1781, IE3 minimum efficiency, 4-pole 50 Hz, in %
-# (REFERENCES.md, confidence S+R).  The demo catalogue must carry exactly these values.
+# sources.IEC_60034_30_1 (with EU Regulation 2019/1781), IE3 minimum efficiency, 4-pole 50 Hz,
+# in %, from memory.  The demo catalogue must carry exactly these values.
 IE3_4POLE_50HZ = {
     0.75: 82.5, 1.1: 84.1, 1.5: 85.3, 2.2: 86.7, 3: 87.7, 4: 88.6, 5.5: 89.6, 7.5: 90.4,
     11: 91.4, 15: 92.1, 18.5: 92.6, 22: 93.0, 30: 93.6, 37: 93.9, 45: 94.2, 55: 94.6,
     75: 95.0, 90: 95.2, 110: 95.4, 132: 95.6, 160: 95.8,
 }  # fmt: skip
 
-# IEC 60072-1 output ratings, kW (REFERENCES.md).
+# sources.IEC_60072_1 output ratings, kW (from memory).
 IEC_60072_RATINGS = {
     0.12, 0.18, 0.25, 0.37, 0.55, 0.75, 1.1, 1.5, 2.2, 3, 4, 5.5, 7.5, 11, 15, 18.5, 22, 30,
     37, 45, 55, 75, 90, 110, 132, 160, 200, 250, 315, 355, 400,
 }  # fmt: skip
 
-# ISO 3 preferred numbers, R20 series (contains R10 and R5).
+# sources.ISO_3 preferred numbers, R20 series (contains R10 and R5).
 ISO3_R20 = (1.00, 1.12, 1.25, 1.40, 1.60, 1.80, 2.00, 2.24, 2.50, 2.80, 3.15, 3.55, 4.00, 4.50,
             5.00, 5.60, 6.30, 7.10, 8.00, 9.00)  # fmt: skip
 
@@ -81,20 +82,21 @@ def test_demo_catalogue_says_it_is_invented():
 
 
 def test_demo_motor_efficiencies_are_the_ie3_minimums():
-    # Source: IEC 60034-30-1:2014 IE3 table (REFERENCES.md); ratings from IEC 60072-1.
+    # sources.IEC_60034_30_1 IE3 table; ratings from sources.IEC_60072_1 (both from memory).
     for motor in load_catalogue(default_catalogue_path()).motors:
         kw = motor.rated_power / 1e3
-        assert round(kw, 2) in IEC_60072_RATINGS
-        assert motor.efficiency == pytest.approx(IE3_4POLE_50HZ[round(kw, 2)] / 100, abs=5e-5)
+        assert round(kw, 2) in IEC_60072_RATINGS, str(IEC_60072_1)
+        ie3 = IE3_4POLE_50HZ[round(kw, 2)] / 100
+        assert motor.efficiency == pytest.approx(ie3, abs=5e-5), str(IEC_60034_30_1)
         assert motor.efficiency_class == "IE3"
 
 
 def test_demo_sizes_are_iso3_preferred_numbers():
     cat = load_catalogue(default_catalogue_path())
     for acc in cat.accumulators:
-        assert _is_preferred(acc.nominal_volume * 1e3), acc.name
+        assert _is_preferred(acc.nominal_volume * 1e3), f"{acc.name}: {ISO_3}"
     for pump in cat.pumps:
-        assert _is_preferred(pump.displacement * 1e6), pump.name
+        assert _is_preferred(pump.displacement * 1e6), f"{pump.name}: {ISO_3}"
 
 
 def test_si_conversion_and_defaults():

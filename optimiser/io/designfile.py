@@ -41,11 +41,11 @@ __all__ = [
 #: Schema tag of design.json this module reads.
 DESIGN_SCHEMA = "stowflow.design/1"
 #: Defaults for a pump that is not in the catalogue (common practice, no published source;
-#: REFERENCES.md gives 80-90 % overall for external gear pumps, from memory).
+#: Esposito, Fluid Power with Applications, 2009: 80-90 % overall for gear pumps, from memory).
 DEFAULT_VOLUMETRIC_EFFICIENCY = 0.93
 DEFAULT_OVERALL_EFFICIENCY = 0.85
 #: Motor efficiency when neither the catalogue nor the file gives one: the IE3 minimum of a
-#: 4-pole 11 kW motor (IEC 60034-30-1:2014, REFERENCES.md), a middle value of the range.
+#: 4-pole 11 kW motor (IEC 60034-30-1:2014, from memory), a middle value of the range.
 DEFAULT_MOTOR_EFFICIENCY = 0.914
 #: Relative tolerance when matching a JSON number to a catalogue row, [-] (the export rounds
 #: to 6 decimals).

@@ -32,8 +32,8 @@ class DesignSettings:
         ``"auto"`` (effective polytropic index from the cycle's time scale and the thermal time
         constant), ``"isothermal"``, ``"adiabatic"`` or ``"polytropic:<n>"``.
     time_constant : float
-        Thermal time constant of the gas charge, [s].  Default 5 s: REFERENCES.md gives about
-        1–10 s for litre-size gas volumes (from memory).
+        Thermal time constant of the gas charge, [s].  Default 5 s: typical values are about
+        1–10 s for litre-size gas volumes (Pourmovahed & Otis 1990, from memory).
     line_loss : float
         Pressure allowance between accumulator and consumer added to every required pressure,
         [Pa].  Default 5 bar (common practice, no published source).

@@ -60,7 +60,7 @@ def test_min_pressure_and_step_options(tmp_path, run_cli):
     code, out, _ = run_cli("check", path, "--json", "--min-pressure", "1450psi", "--step", "100ms")
     data = json.loads(out)
     assert code == 0 and data["steps"] == 20 and data["step_s"] == pytest.approx(0.1)
-    # 1450 psi × 6894.757 Pa/psi (NIST SP 811) = 99.974 bar gauge
+    # 1450 psi × 6894.757 Pa/psi (sources.NIST_SP811) = 99.974 bar gauge
     assert data["peak_required_pressure_bar"] == pytest.approx(99.974, abs=5e-4)
     code, out, _ = run_cli("check", path, "--min-pressure", "100 bar")
     assert code == 0 and "note: required pressure 100 bar gauge in every step" in out

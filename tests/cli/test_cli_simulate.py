@@ -129,7 +129,11 @@ def test_table_output_names_units(cli_run, tmp_path, repo_root):
         "--gas",
         "ideal",
     )
-    assert code in (0, 1)
+    # The hand design passes at 10 and 50 °C on real nitrogen (test_hand_written_design_
+    # reverifies: margins 4.05 and 8.27 bar); inside that range, on the softer ideal gas,
+    # it passes too (margins of about 13 bar): exit 0.
+    assert code == 0
+    assert "stowflow simulate: PASSED" in stdout
     assert "margin [bar]" in stdout and "gas T [°C]" in stdout
     assert "  20  " in stdout and "  40  " in stdout
 
@@ -192,7 +196,9 @@ def test_components_not_in_the_catalogue_are_built_with_stated_defaults(
     code, stdout, _ = cli_run(
         "simulate", path, repo_root / "duty_cycles" / "die_casting_shot.csv", "--json"
     )
-    assert code in (0, 1)
+    # A larger pump (21 against 20 cm³/rev) and motor (16 against 15 kW) than the hand design,
+    # which passes: this one passes too, exit 0.
+    assert code == 0 and json.loads(stdout)["passed"] is True
     notes = json.loads(stdout)["notes"]
     assert any(n.startswith("pump not in the catalogue") and "0.93" in n for n in notes)
     assert any(n.startswith("motor not in the catalogue") for n in notes)
@@ -349,7 +355,7 @@ def forming_press_export(tmp_path_factory):
 
     cyc = Path(__file__).resolve().parents[2] / "duty_cycles" / "forming_press.csv"
     out = tmp_path_factory.mktemp("forming_press")
-    assert main(["design", str(cyc), "--out", str(out)]) in (0, 1)
+    assert main(["design", str(cyc), "--out", str(out)]) == 0  # the demo press passes
     assert (out / "schedule.csv").is_file()
     return out, cyc
 
@@ -361,10 +367,38 @@ def test_schedule_controller_runs_from_the_design_export(forming_press_export, c
     code, stdout, stderr = cli_run(
         "simulate", out / "design.json", cyc, "--controller", "schedule", "--json"
     )
-    assert code in (0, 1), stderr
     res = json.loads(stdout)
     assert {r["controller"] for r in res["runs"]} == {"schedule"}
     assert not any("schedule controller skipped" in n for n in res["notes"])
+    # The open-loop schedule is planned at the middle temperature; at 10 °C it falls 16 bar
+    # short, as in the pipeline's own verification (which therefore recommends the pressure
+    # switch).  With the schedule controller alone the verdict is a failure: exit 1.
+    assert code == 1, stderr
+    assert res["passed"] is False
+    cold = next(r for r in res["runs"] if r["temperature_c"] == 10.0)
+    assert cold["min_margin_bar"] == pytest.approx(-16.0, abs=0.05)
+
+
+@pytest.mark.xfail(
+    strict=True,
+    reason="defect: stowflow.io.designfile reads schedule.csv's 6-decimal litres as loaded "
+    "fractions of 0.999997 instead of 1, so the schedule controller unloads for slivers of a "
+    "step and counts about 21,500 load events an hour against the pipeline's 4,612",
+)
+def test_schedule_from_the_export_counts_the_pipelines_load_events(forming_press_export, cli_run):
+    out, cyc = forming_press_export
+    _, stdout, _ = cli_run(
+        "simulate", out / "design.json", cyc, "--controller", "schedule", "--json"
+    )
+    got = {r["temperature_c"]: r["load_events_per_hour"] for r in json.loads(stdout)["runs"]}
+    # The pipeline's own verification of the same design, in its design.json.
+    mine = json.loads((out / "design.json").read_text(encoding="utf-8"))["verification"]
+    want = {
+        r["temperature_c"]: r["load_events_per_hour"]
+        for r in mine["runs"]
+        if r["controller"] == "schedule"
+    }
+    assert got == pytest.approx(want, rel=1e-6)
 
 
 def test_skipped_schedule_is_explained_once(forming_press_export, cli_run, tmp_path):
@@ -377,7 +411,9 @@ def test_skipped_schedule_is_explained_once(forming_press_export, cli_run, tmp_p
     t.to_csv(bad, index=False)
     code, stdout, _ = cli_run("simulate", out / "design.json", cyc, "--schedule", bad, "--json")
     notes = json.loads(stdout)["notes"]
-    assert code in (0, 1)
+    # Without the schedule the pressure switch is verified alone; it passes (as it does in the
+    # pipeline's own verification of the demo press): exit 0.
+    assert code == 0 and json.loads(stdout)["passed"] is True
     assert sum("schedule controller skipped" in n for n in notes) == 1
     assert not any("carries no schedule" in n for n in notes)
 
@@ -411,5 +447,9 @@ def test_cold_temperature_range_after_an_option(cli_run, tmp_path, repo_root):
         "-20°C..60°C",
         "--json",
     )
-    assert code in (0, 1), stderr
-    assert {r["temperature_c"] for r in json.loads(stdout)["runs"]} == {-20.0, 60.0}
+    runs = {r["temperature_c"]: r for r in json.loads(stdout)["runs"]}
+    assert set(runs) == {-20.0, 60.0}
+    # The hand design is for 10…50 °C: at −20 °C its precharge has fallen and the pressure
+    # drops about 2.2 bar below the requirement; at 60 °C it holds.  A failure: exit 1.
+    assert code == 1, stderr
+    assert runs[-20.0]["min_margin_bar"] < 0 < runs[60.0]["min_margin_bar"]

@@ -29,8 +29,8 @@ def run(argv, capsys):
 
 
 def test_esposito_via_the_cli(capsys):
-    # Esposito, Fluid Power with Applications (Pearson), car-crusher accumulator (from
-    # memory): 45.9 gal, printed to three digits.
+    # sources.ESPOSITO_2009, car-crusher accumulator (from memory): 45.9 gal, printed to three
+    # digits.
     code, out, err = run([*ESPOSITO, "--json"], capsys)
     assert code == 0 and err == ""
     data = json.loads(out)

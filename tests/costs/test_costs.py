@@ -38,9 +38,9 @@ from stowflow.units import si_factor
 KWH = si_factor("kWh", "energy")  # J per kWh
 HOUR = si_factor("h", "time")  # s per hour
 
-# Esposito prints three significant digits for the motor input (14.8 kW): half a unit in the
-# last digit, 0.05 kW.  The yearly cost ($4,884) is the rounded 14.8 kW × 3000 h × 0.11 $/kWh,
-# so the rounding of 14.8 kW carries into it: 0.05 kW × 3000 h × 0.11 $/kWh = 16.5 $.
+# sources.ESPOSITO_2009 prints three significant digits for the motor input (14.8 kW): half a
+# unit in the last digit, 0.05 kW.  The yearly cost ($4,884) is the rounded 14.8 kW × 3000 h ×
+# 0.11 $/kWh, so the rounding of 14.8 kW carries into it: 0.05 kW × 3000 h × 0.11 $/kWh = 16.5 $.
 ESPOSITO_POWER_TOL_KW = 0.05
 ESPOSITO_COST_TOL = 0.05 * 3000 * 0.11
 # Present-value tables print the annuity factor to four decimals.
@@ -48,19 +48,19 @@ PV_TABLE_TOL = 5e-5
 REL = 1e-12  # for our own arithmetic
 
 
-# -- Esposito, Fluid Power with Applications, example 5-10 ----------------------------------
+# -- sources.ESPOSITO_2009, example 5-10 ------------------------------------------------------
 
 
 def test_esposito_5_10_motor_input_power():
-    # Esposito, Fluid Power with Applications (Pearson), example 5-10 (from memory): the pump
-    # of example 5-9 takes 12.57 kW; with a motor of 85 % efficiency the motor input is 14.8 kW.
+    # sources.ESPOSITO_2009, example 5-10 (from memory): the pump of example 5-9 takes
+    # 12.57 kW; with a motor of 85 % efficiency the motor input is 14.8 kW.
     p_el = electrical_power(12.57e3, 0.85)
     assert p_el / 1e3 == pytest.approx(14.8, abs=ESPOSITO_POWER_TOL_KW)
 
 
 def test_esposito_5_10_yearly_energy_cost():
-    # Esposito, Fluid Power with Applications (Pearson), example 5-10 (from memory): 3000 h a
-    # year at 0.11 $/kWh cost about $4,884 a year.
+    # sources.ESPOSITO_2009, example 5-10 (from memory): 3000 h a year at 0.11 $/kWh cost about
+    # $4,884 a year.
     s = CostSettings(energy_price=0.11 / KWH, operating_time=3000 * HOUR, currency="$")
     cost = annual_energy_cost(electrical_power(12.57e3, 0.85), s)
     assert cost == pytest.approx(4884.0, abs=ESPOSITO_COST_TOL)
@@ -84,17 +84,17 @@ def test_electrical_power_rejects_bad_efficiency():
 
 
 def test_annuity_factor_against_discounted_cash_flows():
-    # Brealey, Myers & Allen, Principles of Corporate Finance (McGraw-Hill), present value of
-    # an annuity: PV = C·[1/r − 1/(r(1+r)^t)].  Hand calculation as the sum of the discounted
-    # payments, C/(1+r) + C/(1+r)² + … + C/(1+r)^10, at r = 8 %.
+    # sources.BREALEY_MYERS_ALLEN, present value of an annuity (standard relation):
+    # PV = C·[1/r − 1/(r(1+r)^t)].  Hand calculation as the sum of the discounted payments,
+    # C/(1+r) + C/(1+r)² + … + C/(1+r)^10, at r = 8 %.
     r, n, c = 0.08, 10, 1000.0
     by_hand = sum(c / (1 + r) ** t for t in range(1, n + 1))
     assert present_value(c, r, n) == pytest.approx(by_hand, rel=REL)
 
 
 def test_annuity_factor_against_printed_table():
-    # Present-value-of-annuity tables (e.g. the appendix of Brealey, Myers & Allen, Principles
-    # of Corporate Finance, from memory): 10 years at 8 % → 6.7101; 5 years at 5 % → 4.3295.
+    # Present-value-of-annuity tables (the appendix of sources.BREALEY_MYERS_ALLEN, from
+    # memory): 10 years at 8 % → 6.7101; 5 years at 5 % → 4.3295.
     assert annuity_factor(0.08, 10) == pytest.approx(6.7101, abs=PV_TABLE_TOL)
     assert annuity_factor(0.05, 5) == pytest.approx(4.3295, abs=PV_TABLE_TOL)
 
@@ -135,7 +135,7 @@ def test_payback_never_when_nothing_is_saved():
 
 def test_discounted_payback_solves_the_annuity_equation():
     # Extra capex equal to three years of discounted savings pays back in exactly 3 years
-    # (present value of an annuity, Brealey, Myers & Allen).
+    # (present value of an annuity, sources.BREALEY_MYERS_ALLEN).
     r, s = 0.07, 1000.0
     extra = s * (1 / 1.07 + 1 / 1.07**2 + 1 / 1.07**3)
     assert discounted_payback(extra, s, r) == pytest.approx(3.0, rel=1e-10)
@@ -238,7 +238,7 @@ def test_compare_by_hand():
     assert d.energy_per_year == pytest.approx(72e9, rel=REL)
     assert d.energy_cost_per_year == pytest.approx(4000.0, rel=REL)
     assert f.energy_cost_per_year == pytest.approx(20_000.0, rel=REL)
-    # TCO = capex + C·a(10 %, 5) with a = 3.790787 (Brealey, Myers & Allen formula)
+    # TCO = capex + C·a(10 %, 5) with a = 3.790787 (sources.BREALEY_MYERS_ALLEN formula)
     a = (1 - 1.1**-5) / 0.1
     assert d.tco == pytest.approx(4950.0 + 4000.0 * a, rel=REL)
     assert d.energy_source == "design schedule model (quasi-static)"

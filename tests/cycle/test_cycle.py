@@ -541,8 +541,8 @@ def test_absurdly_short_cycle_is_refused():
 
 
 def test_esposito_car_crusher_pump_flows():
-    # Esposito, Fluid Power with Applications (Pearson), accumulator chapter, car-crusher
-    # example (inputs and results from memory): a 6 in bore × 100 in stroke cylinder extends in
+    # sources.ESPOSITO_2009, accumulator chapter, car-crusher example (inputs and results from
+    # memory): a 6 in bore × 100 in stroke cylinder extends in
     # 10 s, one stroke every 5 min.  We read "every 5 min" as a 300 s cycle (10 s extend, 290 s
     # idle): that is what makes the printed 2.45 gpm (2827 in³ per 300 s).  Printed: 73.4 gpm
     # pump-only and 2.45 gpm with the accumulator.  The flow is written in in³/s from the
@@ -558,7 +558,7 @@ def test_esposito_car_crusher_pump_flows():
 
 
 def test_us_gallon_conversion_nist():
-    # NIST Handbook 44, Appendix C: 1 US gallon = 3.785 411 784 L exactly.  Checked through a
+    # sources.NIST_HB44, Appendix C: 1 US gallon = 3.785 411 784 L exactly.  Checked through a
     # CSV column, for both spellings the reader accepts.
     for unit in ("US gal/min", "gpm"):
         c = parse_cycle_text(f"duration [s], flow [{unit}]\n1, 1\n")
@@ -566,7 +566,7 @@ def test_us_gallon_conversion_nist():
 
 
 def test_psi_conversion_nist():
-    # NIST SP 811 (2008), Appendix B: 1 psi = 6.894 757 E+03 Pa; tolerance half a unit in the
+    # sources.NIST_SP811, Appendix B: 1 psi = 6.894 757 E+03 Pa; tolerance half a unit in the
     # last printed digit (0.0005 Pa).
     c = parse_cycle_text("duration [s], flow [L/min], pressure [psi]\n1, 1, 1\n")
     assert c.pressure[0] - P_AMBIENT == pytest.approx(6894.757, abs=0.0005)

@@ -1,4 +1,7 @@
-"""Duties beyond energy storage: Joukowsky/Korteweg, thermal expansion, emergency reserve."""
+"""Duties beyond energy storage: Joukowsky/Korteweg, thermal expansion, emergency reserve.
+
+Outside sources are named beside each check by their constant in tests/sources.py.
+"""
 
 from __future__ import annotations
 
@@ -9,6 +12,13 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy.integrate import quad
+from sources import (
+    API_MPMS_11_1,
+    DEL_GROSSO_MADER_1972,
+    MICHAUD_1878,
+    RECALLED,
+    WYLIE_STREETER_1993,
+)
 from stowflow.duties import (
     Motion,
     blocked_pressure_rise,
@@ -30,7 +40,7 @@ from stowflow.units import P_AMBIENT, T_REF
 
 BAR = 1e5
 LITRE = 1e-3
-G = 9.80665  # standard gravity, m/s² (CGPM 1901, exact)
+G = 9.80665  # standard gravity, m/s² (sources.CGPM_1901, exact)
 #: Our own closed forms are exact; the root search on ln m stops at 1e-12.
 CLOSED_FORM_RTOL = 1e-9
 #: Hand calculations are carried to five significant digits.
@@ -45,19 +55,22 @@ def gauge(bar: float) -> float:
 
 # --------------------------------------------------------------------------- shock
 def test_joukowsky_textbook_statement():
-    # Wylie & Streeter, Fluid Transients in Systems, Prentice Hall 1993, ISBN 0-13-322173-5,
-    # chapter 1 (from memory): with a ≈ 1000 m/s, a sudden 1 m/s change of velocity in water
-    # changes the head by a/g ≈ 100 m. "About 100 m" is one significant figure: 5 %.
+    # sources.WYLIE_STREETER_1993, chapter 1 (from memory): with a ≈ 1000 m/s, a sudden 1 m/s
+    # change of velocity in water changes the head by a/g ≈ 100 m. "About 100 m" is one
+    # significant figure: 5 %.
     dp = surge_pressure(1000.0, 1000.0, 1.0)
-    assert dp / (1000.0 * G) == pytest.approx(100.0, rel=0.05)
-    assert dp == pytest.approx(1.0e6, rel=1e-15)  # Δp = ρ·a·Δv exactly
+    assert dp / (1000.0 * G) == pytest.approx(100.0, rel=0.05), str(WYLIE_STREETER_1993)
+    assert dp == pytest.approx(1.0e6, rel=1e-15)  # Δp = ρ·a·Δv exactly (sources.JOUKOWSKY_1900)
 
 
 def test_korteweg_rigid_pipe_is_the_speed_of_sound_in_water():
-    # Water at 20 °C, K = 2.19 GPa and ρ = 998.2 kg/m³ (from memory, 3 and 4 digits); the
-    # speed of sound in water at 20 °C is 1482 m/s (Del Grosso & Mader 1972, from memory).
-    # K given to three digits: ±0.5 % on a (with margin).
-    assert wave_speed(2.19e9, 998.2) == pytest.approx(1482.0, rel=5e-3)
+    # Water at 20 °C, K = 2.19 GPa and ρ = 998.2 kg/m³ (sources.RECALLED, from memory, 3 and 4
+    # digits); the speed of sound in water at 20 °C is 1482 m/s (sources.DEL_GROSSO_MADER_1972,
+    # from memory).  K given to three digits: ±0.5 % on a (with margin).  The rigid-pipe limit
+    # of the sources.KORTEWEG_1878 wave speed is √(K/ρ).
+    assert wave_speed(2.19e9, 998.2) == pytest.approx(1482.0, rel=5e-3), (
+        f"{RECALLED}, {DEL_GROSSO_MADER_1972}"
+    )
     # A very thick wall tends to the rigid pipe.
     assert wave_speed(2.19e9, 998.2, 0.1, 1e3) == pytest.approx(wave_speed(2.19e9, 998.2))
 
@@ -74,7 +87,7 @@ def test_oil_in_steel_pipe_hand_calculation():
 
 
 def test_anchoring_stiffens_the_pipe():
-    # Constraint factors (Wylie & Streeter 1993, from memory): 1 free to move,
+    # Constraint factors (sources.WYLIE_STREETER_1993, from memory): 1 free to move,
     # 1 − ν² anchored throughout; a smaller c1 means a stiffer pipe and a faster wave.
     free = wave_speed(1.7e9, 870.0, 0.025, 0.003, constraint=1.0)
     anchored = wave_speed(1.7e9, 870.0, 0.025, 0.003, constraint=1 - STEEL_POISSON**2)
@@ -84,10 +97,11 @@ def test_anchoring_stiffens_the_pipe():
 
 
 def test_michaud_slow_closure_hand_calculation():
-    # Michaud (1878, from memory): t_c > 2L/a gives Δp ≈ 2ρLv/t_c.
+    # sources.MICHAUD_1878 (from memory): t_c > 2L/a gives Δp ≈ 2ρLv/t_c.
     # Hand: 2 · 870 · 20 · 4 / 0.5 = 278 400 Pa. 2L/a = 40/1353 = 29.6 ms < 0.5 s.
     a = wave_speed(1.7e9, 870.0, 0.025, 0.003)
-    assert surge_pressure(870.0, a, 4.0, 20.0, 0.5) == pytest.approx(278_400.0, rel=1e-12)
+    slow = surge_pressure(870.0, a, 4.0, 20.0, 0.5)
+    assert slow == pytest.approx(278_400.0, rel=1e-12), str(MICHAUD_1878)
     # A closure within 2L/a is sudden: the full Joukowsky rise.
     assert surge_pressure(870.0, a, 4.0, 20.0, 0.01) == surge_pressure(870.0, a, 4.0)
 
@@ -124,8 +138,9 @@ def test_shock_real_gas_energy_is_the_p_dv_integral():
 
 
 def test_shock_real_gas_needs_more_than_ideal_and_reports_no_need():
-    # The real gas is stiffer than κ = 1.4 at 150 bar (REFERENCES.md isentropic table: real
-    # V2/V0 = 0.6195 > ideal 0.5653), so it absorbs less per volume.
+    # The real gas is stiffer than κ = 1.4 at 150 bar (sources.SPAN_2000 computed with
+    # sources.COOLPROP 8.0.0, isentrope 90 → 200 bar abs: real V2/V0 = 0.6195 > ideal 0.5653),
+    # so it absorbs less per volume.
     kw = dict(precharge=gauge(130))
     real = size_shock(20.0, 0.025, 0.003, 4.0, gauge(150), gauge(180), **kw)
     ideal = size_shock(20.0, 0.025, 0.003, 4.0, gauge(150), gauge(180), model="ideal", **kw)
@@ -158,10 +173,10 @@ def test_shock_refuses_impossible_input(kw, match):
 
 # --------------------------------------------------------------------------- thermal expansion
 def test_oil_expansion_coefficient_against_the_petroleum_tables():
-    # API MPMS 11.1 / ASTM D1250 volume correction for lubricating oils (from memory):
+    # sources.API_MPMS_11_1 volume correction for lubricating oils (from memory):
     # α15 = K1/ρ15 with K1 = 0.6278 kg/(m³·K): 7.22e-4 1/K at 870 kg/m³. Our default,
     # 7.0e-4 1/K (from memory), must agree within the spread of recalled values, 5 %.
-    assert OIL_EXPANSION == pytest.approx(0.6278 / 870.0, rel=0.05)
+    assert OIL_EXPANSION == pytest.approx(0.6278 / 870.0, rel=0.05), str(API_MPMS_11_1)
 
 
 def test_thermal_expansion_hand_calculation():
@@ -198,7 +213,7 @@ def test_thermal_empty_accumulator_at_start_and_limits():
         dv / (1 - gauge(20) * 333.15 / T_REF / gauge(200)), rel=CLOSED_FORM_RTOL
     )
     assert any("starts empty" in n for n in r.notes)
-    # The bladder's 4:1 ratio (common practice) is broken at 50 → 200 bar with p0 = 0.9·p1.
+    # The bladder's 4:1 ratio (sources.COMMON_PRACTICE) is broken at 50 → 200 bar with p0 = 0.9·p1.
     assert not size_thermal(20 * LITRE, 293.15, 333.15, gauge(50), gauge(200)).limits["admissible"]
 
 
@@ -228,7 +243,7 @@ MOTIONS = (
 
 
 def test_reserve_isothermal_ideal_is_boyle_with_leakage():
-    # Boyle's law, absolute pressures (REFERENCES.md, n = 1): motion i is met when
+    # Boyle's law, absolute pressures (sources.CENGEL_BOLES_2015, n = 1): motion i is met when
     #   Q·t_sb + Σ_{j≤i}(ΔV_j + Q·t_j) = V0·(p0/p_min,i − p0/p_c)
     p0, pc, q, t_sb = gauge(80), gauge(180), 0.1 * LITRE / 60, 600.0
     r = size_reserve(
@@ -241,7 +256,7 @@ def test_reserve_isothermal_ideal_is_boyle_with_leakage():
 
 def test_reserve_adiabatic_after_settled_charge_closed_form():
     # Isothermal charge p0·V0 = p_c·V_c, adiabatic discharge p_c·V_c^κ = p_i·V_i^κ
-    # (REFERENCES.md polytropic law), so V0 = ΔV_i / [(p0/p_c)·((p_c/p_i)^(1/κ) − 1)].
+    # (polytropic law, sources.CENGEL_BOLES_2015), so V0 = ΔV_i / [(p0/p_c)·((p_c/p_i)^(1/κ) − 1)].
     p0, pc = gauge(80), gauge(180)
     for proc, n in (("adiabatic", KAPPA), ("polytropic:1.2", 1.2)):
         r = size_reserve(MOTIONS, pc, precharge=p0, process=proc, model="ideal")

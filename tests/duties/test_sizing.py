@@ -8,6 +8,7 @@ import numpy as np
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from sources import COOLPROP, ESPOSITO_2009, SPAN_2000
 from stowflow.duties.sizing import size_accumulator
 from stowflow.errors import SizingError
 from stowflow.physics.gas import precharge_at
@@ -18,26 +19,28 @@ LITRE = 1e-3
 PSI = parse_quantity("1psi", "pressure")
 GALLON = parse_quantity("1gal", "volume")  # US liquid gallon
 IN3 = parse_quantity("1in3", "volume")
-# Esposito prints 45.9 gal: three significant digits, so ±0.05 gal.
+# sources.ESPOSITO_2009 prints 45.9 gal: three significant digits, so ±0.05 gal.
 ESPOSITO_GAL_ATOL = 0.05
 
 
 def test_esposito_car_crusher_accumulator():
-    # Esposito, Fluid Power with Applications (Pearson), accumulator chapter, car-crusher
-    # press (inputs and result from memory): precharge 1200 psia, 1800–3000 psia, ΔV =
-    # 2827 in³, isothermal, ideal gas → 45.9 gal.
+    # sources.ESPOSITO_2009, accumulator chapter, car-crusher press (inputs and result from
+    # memory): precharge 1200 psia, 1800–3000 psia, ΔV = 2827 in³, isothermal, ideal gas →
+    # 45.9 gal.
     r = size_accumulator(
         2827 * IN3, 1800 * PSI, 3000 * PSI, precharge=1200 * PSI,
         process="isothermal", model="ideal",
     )  # fmt: skip
-    assert r.required_gas_volume / GALLON == pytest.approx(45.9, abs=ESPOSITO_GAL_ATOL)
-    # Boyle's law, computed: V0 = ΔV / (p0/p1 − p0/p2).
+    assert r.required_gas_volume / GALLON == pytest.approx(45.9, abs=ESPOSITO_GAL_ATOL), str(
+        ESPOSITO_2009
+    )
+    # Boyle's law (sources.CENGEL_BOLES_2015), computed: V0 = ΔV / (p0/p1 − p0/p2).
     assert r.required_gas_volume == pytest.approx(2827 * IN3 / (1200 / 1800 - 1200 / 3000))
     assert r.rejected_types.keys() == {"gas-over-oil"}  # 3000 psi > 60 bar
 
 
 def test_esposito_duty_real_gas_adiabatic_needs_more():
-    # Same duty, adiabatic: the real gas (Span et al. 2000) needs more than κ = 1.4 predicts.
+    # Same duty, adiabatic: the real gas (sources.SPAN_2000) needs more than κ = 1.4 predicts.
     kw = dict(precharge=1200 * PSI, process="adiabatic")
     real = size_accumulator(2827 * IN3, 1800 * PSI, 3000 * PSI, model="real", **kw)
     ideal = size_accumulator(2827 * IN3, 1800 * PSI, 3000 * PSI, model="ideal", **kw)
@@ -47,7 +50,8 @@ def test_esposito_duty_real_gas_adiabatic_needs_more():
 
 
 def test_polytropic_closed_form_at_20c():
-    # Polytropic law, absolute pressures (REFERENCES.md): ΔV = V0·[(p0/p1)^(1/n) − (p0/p2)^(1/n)].
+    # Polytropic law, absolute pressures (sources.CENGEL_BOLES_2015):
+    # ΔV = V0·[(p0/p1)^(1/n) − (p0/p2)^(1/n)].
     r = size_accumulator(
         5 * LITRE, 100 * BAR, 200 * BAR, precharge=90 * BAR,
         process="polytropic:1.3", model="ideal",
@@ -57,12 +61,13 @@ def test_polytropic_closed_form_at_20c():
 
 
 def test_real_isothermal_reference_case():
-    # REFERENCES.md: V0 = 10 L, 90/100/200 bar abs, 293.15 K, isothermal real → ΔV 4.281 L.
-    # Printed to 0.001 L, so V0 to 10 L × 0.0005/4.281.
+    # sources.SPAN_2000 computed with sources.COOLPROP 8.0.0: V0 = 10 L, 90/100/200 bar abs,
+    # 293.15 K, isothermal real → ΔV 4.281 L.  Pinned to 0.001 L, so V0 to 10 L × 0.0005/4.281.
     r = size_accumulator(
         4.281 * LITRE, 100 * BAR, 200 * BAR, precharge=90 * BAR, process="isothermal"
     )
-    assert r.required_gas_volume / LITRE == pytest.approx(10.0, abs=10 * 0.0005 / 4.281)
+    v0_l = r.required_gas_volume / LITRE
+    assert v0_l == pytest.approx(10.0, abs=10 * 0.0005 / 4.281), f"{SPAN_2000} via {COOLPROP}"
 
 
 def test_worst_temperature_is_the_cold_end_for_the_ideal_gas():
@@ -86,7 +91,7 @@ def test_precharge_by_rule_meets_the_rule_at_the_hot_end():
     r = size_accumulator(5 * LITRE, 100 * BAR, 200 * BAR, T_min=263.15, T_max=323.15)
     by_type = {c.type.value: c for c in r.cases}
     bladder, piston = by_type["bladder"], by_type["piston"]
-    # Common practice, no published source: bladder p0(T_max) = 0.9·p1, piston p1 − 5 bar.
+    # sources.COMMON_PRACTICE, no published source: bladder p0(T_max) = 0.9·p1, piston p1 − 5 bar.
     assert precharge_at(bladder.precharge_ref, 323.15) == pytest.approx(90 * BAR, rel=1e-12)
     assert precharge_at(piston.precharge_ref, 323.15) == pytest.approx(95 * BAR, rel=1e-12)
     assert bladder.admissible and piston.admissible
@@ -100,7 +105,7 @@ def test_type_screening_reasons():
         5 * LITRE, 44.9 * BAR, 200 * BAR, precharge=37.4 * BAR, T_min=253.15, T_max=313.15
     )
     rejected = r.rejected_types
-    assert "exceeds 4" in rejected["bladder"]  # ratio at −20 °C, common practice
+    assert "exceeds 4" in rejected["bladder"]  # ratio at −20 °C, sources.COMMON_PRACTICE
     assert "60 bar" in rejected["gas-over-oil"]
     assert "needs a minimum working pressure" in rejected["piston"]
     assert "needs a minimum working pressure" in rejected["piston-bottles"]
@@ -118,7 +123,8 @@ def test_result_as_dict_is_json_with_the_contract_keys():
                 "gas_model", "process", "pressure_equipment", "types"):  # fmt: skip
         assert key in d
     assert d["min_pressure_bar"] == pytest.approx(100.0)
-    assert d["pressure_equipment"]["category"] == "IV"  # 330 bar × ~19 L > 3000 bar·L
+    # sources.PED_2014_68_EU Annex II Table 2 (from memory): 330 bar × ~19 L > 3000 bar·L → IV.
+    assert d["pressure_equipment"]["category"] == "IV"
     assert "from memory" in d["pressure_equipment"]["note"]
 
 

@@ -6,6 +6,7 @@ import numpy as np
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from sources import COOLPROP, SPAN_2000
 from stowflow.errors import SizingError
 from stowflow.fill import (
     adiabatic_transfer,
@@ -27,7 +28,7 @@ MASS_RTOL = 1e-9
 CLOSED_FORM_RTOL = 1e-9
 #: Real-gas table against CoolProp directly (tests/benchmarks/bench_gas.py: 1e-6) with margin.
 TABLE_RTOL = 1e-5
-#: REFERENCES.md prints the isochore to two decimals of a bar.
+#: sources.COOLPROP's pinned isochore has two decimals of a bar.
 REFERENCE_ATOL_BAR = 0.005
 
 
@@ -98,7 +99,8 @@ def test_adiabatic_equalisation_conserves_energy(model):
 
 
 def test_real_adiabatic_equalisation_against_coolprop():
-    # The same balance solved with CoolProp's own functions (Span et al. 2000 in CoolProp):
+    # The same balance solved live with CoolProp's own functions (sources.SPAN_2000 via
+    # sources.COOLPROP, the installed version):
     # 50 L at 1 atm filled from 50 L at 200 bar gauge, both at 15 °C.
     cp = pytest.importorskip("CoolProp.CoolProp")
     from scipy.optimize import brentq
@@ -265,12 +267,15 @@ def test_plan_refuses_impossible_input(kw, match):
 
 
 def test_precharge_table_against_references():
-    # REFERENCES.md, constant volume from 100 bar abs at 20 °C (C, CoolProp 8.0.0): real gas
-    # 112.58 / 91.58 / 83.12 bar abs at 50 / 0 / −20 °C; ideal 110.23 / 93.18 / 86.36.
+    # Constant volume from 100 bar abs at 20 °C: real gas (sources.SPAN_2000 computed with
+    # sources.COOLPROP 8.0.0) 112.58 / 91.58 / 83.12 bar abs at 50 / 0 / −20 °C; ideal gas
+    # (p·T/T_ref, sources.CENGEL_BOLES_2015) 110.23 / 93.18 / 86.36.
     ts = [323.15, 273.15, 253.15]
     real = precharge_table(100 * BAR, ts, "real")["precharge_absolute [bar]"]
     ideal = precharge_table(100 * BAR, ts, "ideal")["precharge_absolute [bar]"]
-    np.testing.assert_allclose(real, [112.58, 91.58, 83.12], atol=REFERENCE_ATOL_BAR)
+    np.testing.assert_allclose(
+        real, [112.58, 91.58, 83.12], atol=REFERENCE_ATOL_BAR, err_msg=f"{SPAN_2000} via {COOLPROP}"
+    )
     np.testing.assert_allclose(ideal, [110.23, 93.18, 86.36], atol=REFERENCE_ATOL_BAR)
     # Ideal gas exactly p·T/T_ref (absolute).
     np.testing.assert_allclose(ideal, [100 * t / T_REF for t in ts], rtol=1e-12)

@@ -1,7 +1,9 @@
 """Accumulator types and their limits.
 
-Every numeric limit checked here is a default of DEFAULT_RULES: common practice, no published
-source.  The tests pin that the rule does what it says, not that the trade value is right.
+Every numeric limit checked here is a default of DEFAULT_RULES: sources.COMMON_PRACTICE (common
+practice, no published source).  The tests pin that the rule does what it says, not that the
+trade value is right.  The pressure-equipment categories are sources.PED_2014_68_EU (from
+memory).
 """
 
 from __future__ import annotations
@@ -171,13 +173,13 @@ def test_rules_for_merges_catalogue_overrides():
 
 
 def test_pressure_equipment_worked_classifications():
-    # EU 2014/68/EU Annex II Table 2, group 2 gases: values from memory (REFERENCES.md).
+    # sources.PED_2014_68_EU Annex II Table 2, group 2 gases: values from memory.
     assert pressure_equipment_category(330, 0.5)[0] == "SEP"  # "none": V ≤ 1 L, PS ≤ 1000 bar
     assert pressure_equipment_category(350, 4)[0] == "III"  # PS·V = 1400 bar·L
     assert pressure_equipment_category(350, 10)[0] == "IV"  # PS·V = 3500 bar·L
-    # REFERENCES.md lists "1 L × 350 → II", but its own table (and Article 4(1)(a)(i) of the
-    # directive, from memory: "volume greater than 1 L") puts V ≤ 1 L, PS ≤ 1000 bar under
-    # sound engineering practice.  We follow the table and flag the discrepancy.
+    # A worked example recalled as "1 L × 350 → II" disagrees with the table itself (and with
+    # Article 4(1)(a)(i) of the directive, from memory: "volume greater than 1 L"), which puts
+    # V ≤ 1 L, PS ≤ 1000 bar under sound engineering practice.  We follow the table.
     assert pressure_equipment_category(350, 1.0)[0] == "SEP"
     assert pressure_equipment_category(350, 1.5)[0] == "II"  # PS·V = 525 bar·L
     assert pressure_equipment_category(100, 1.5)[0] == "I"  # 150 bar·L

@@ -8,8 +8,10 @@ import sys
 import numpy as np
 import pytest
 import stowflow.physics.nitrogen as n2table
+from CoolProp.CoolProp import PropsSI
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from sources import COOLPROP, SPAN_2000
 from stowflow.errors import SettingsError, SizingError
 from stowflow.physics.gas import (
     ADIABATIC,
@@ -33,7 +35,7 @@ from stowflow.units import T_REF
 
 BAR = 1e5
 
-# REFERENCES.md prints ρ to 3 decimals and Z to 4: half a unit of the last printed digit.
+# sources.COOLPROP's pinned table has ρ to 3 decimals and Z to 4: half a unit of the last digit.
 RHO_PRINT_ATOL = 0.0005  # kg/m³
 Z_PRINT_ATOL = 0.00005
 # The table is held to 1e-5 relative, ten times its measured worst error over 0.5–500 bar and
@@ -42,7 +44,8 @@ TABLE_RTOL = 1e-5
 # Direct CoolProp calls reproduce CoolProp's own numbers to rounding.
 DIRECT_RTOL = 1e-9
 
-# CoolProp 8.0.0 / Span et al. (2000), REFERENCES.md: ρ and Z of nitrogen at 293.15 K.
+# sources.SPAN_2000 computed with sources.COOLPROP (CoolProp 8.0.0): ρ and Z of nitrogen at
+# 293.15 K.
 SPAN_293 = [  # p [bar abs], ρ [kg/m³], Z [-]
     (50, 57.815, 0.9940),
     (100, 114.842, 1.0008),
@@ -55,16 +58,17 @@ SPAN_293 = [  # p [bar abs], ρ [kg/m³], Z [-]
 @pytest.mark.parametrize(("p_bar", "rho_ref", "z_ref"), SPAN_293)
 @pytest.mark.parametrize("method", ["table", "direct"])
 def test_density_and_z_at_20c(p_bar, rho_ref, z_ref, method):
-    # CoolProp 8.0.0, Span et al. (2000) EOS: REFERENCES.md table "Density and Z at 293.15 K".
+    # sources.SPAN_2000 computed with sources.COOLPROP 8.0.0 (pinned, SPAN_293 above).
     rho = density(p_bar * BAR, T_REF, method=method)
-    assert rho == pytest.approx(rho_ref, abs=RHO_PRINT_ATOL)
+    assert rho == pytest.approx(rho_ref, abs=RHO_PRINT_ATOL), f"{SPAN_2000} via {COOLPROP}"
     assert compressibility(p_bar * BAR, T_REF, method=method) == pytest.approx(
         z_ref, abs=Z_PRINT_ATOL
-    )
+    ), f"{SPAN_2000} via {COOLPROP}"
 
 
 def test_table_agrees_with_direct_coolprop_over_the_range():
-    # Span et al. (2000) via CoolProp AbstractState: the table against direct calls.
+    # sources.SPAN_2000 via sources.COOLPROP (AbstractState, computed live with the installed
+    # CoolProp): the table against direct calls.
     rng = np.random.default_rng(7)
     p = np.exp(rng.uniform(np.log(0.5 * BAR), np.log(500 * BAR), 40))
     T = rng.uniform(233.15, 423.15, 40)
@@ -78,15 +82,16 @@ def test_table_agrees_with_direct_coolprop_over_the_range():
 
 
 def test_direct_path_reproduces_coolprop():
-    # CoolProp 8.0.0 PropsSI, the same EOS: 100 bar, 293.15 K → 114.84167763552414 kg/m³
-    # (computed here with CoolProp when REFERENCES.md was written).
-    assert density(100 * BAR, T_REF, method="direct") == pytest.approx(
-        114.84167763552414, rel=DIRECT_RTOL
-    )
+    # sources.SPAN_2000 via sources.COOLPROP: PropsSI, computed live with the installed CoolProp
+    # (8.0.0 gives 114.84167763552414 kg/m³ at 100 bar abs, 293.15 K).
+    ref = PropsSI("D", "P", 100 * BAR, "T", T_REF, "Nitrogen")
+    assert ref == pytest.approx(114.84167763552414, rel=1e-6)  # the version has not moved it
+    assert density(100 * BAR, T_REF, method="direct") == pytest.approx(ref, rel=DIRECT_RTOL)
 
 
 def test_points_outside_the_table_use_coolprop(monkeypatch):
-    # 0.1 bar lies below the table (0.4 bar): the value must still be CoolProp's.
+    # 0.1 bar lies below the table (0.4 bar): the value must still be CoolProp's
+    # (sources.COOLPROP, called live through stowflow.physics.nitrogen.direct).
     rho = density(np.array([0.1 * BAR, 100 * BAR]), T_REF)
     ref = direct("PT", np.array([0.1 * BAR, 100 * BAR]), T_REF, ("rho",))[0]
     assert rho == pytest.approx(ref, rel=TABLE_RTOL)
@@ -97,8 +102,9 @@ def test_points_outside_the_table_use_coolprop(monkeypatch):
 
 
 def test_table_records_its_build():
+    # The table was built with the CoolProp version that computed the pinned values.
     meta = load_table().meta
-    assert meta["coolprop_version"] == "8.0.0"
+    assert meta["coolprop_version"] == COOLPROP.version == "8.0.0"
     assert "grid_pT" in meta and "grid_rhoT" in meta
 
 
@@ -118,8 +124,9 @@ def test_fast_path_does_not_import_coolprop():
     [(50, 112.58, 110.23), (0, 91.58, 93.18), (-20, 83.12, 86.36)],
 )
 def test_isochoric_precharge_shift(t_c, real_bar, ideal_bar):
-    # REFERENCES.md, constant volume from 100 bar abs at 20 °C (CoolProp 8.0.0 and
-    # p·T_ref/T); printed to 0.01 bar, so half a unit: 0.005 bar.
+    # Constant volume from 100 bar abs at 20 °C: real gas sources.SPAN_2000 computed with
+    # sources.COOLPROP 8.0.0, ideal gas p·T/T_ref (sources.CENGEL_BOLES_2015); pinned to
+    # 0.01 bar, so half a unit: 0.005 bar.
     T = t_c + 273.15
     assert precharge_at(100 * BAR, T) / BAR == pytest.approx(real_bar, abs=0.005)
     assert precharge_at(100 * BAR, T, "ideal") / BAR == pytest.approx(ideal_bar, abs=0.005)
@@ -128,8 +135,9 @@ def test_isochoric_precharge_shift(t_c, real_bar, ideal_bar):
 
 @pytest.mark.parametrize(("model", "dv_ref"), [("real", 4.281), ("ideal", 4.500)])
 def test_isothermal_oil_exchange(model, dv_ref):
-    # REFERENCES.md: 293.15 K, V0 = 10 L, p0/p1/p2 = 90/100/200 bar abs → 4.281 L real,
-    # 4.500 L ideal; printed to 0.001 L.
+    # sources.SPAN_2000 computed with sources.COOLPROP 8.0.0 (real) and Boyle's law
+    # (sources.CENGEL_BOLES_2015, ideal): 293.15 K, V0 = 10 L, p0/p1/p2 = 90/100/200 bar abs
+    # → 4.281 L real, 4.500 L ideal; pinned to 0.001 L.
     f = oil_fraction(np.array([100, 200]) * BAR, 90 * BAR, T_REF, ISOTHERMAL, model)
     assert 10 * (f[1] - f[0]) == pytest.approx(dv_ref, abs=0.0005)
 
@@ -138,8 +146,9 @@ def test_isothermal_oil_exchange(model, dv_ref):
     ("model", "ratio_ref", "t_ref"), [("real", 0.6195, 370.6), ("ideal", 0.5653, 368.3)]
 )
 def test_isentropic_compression_end_state(model, ratio_ref, t_ref):
-    # REFERENCES.md, isentropic 90 → 200 bar abs from 293.15 K: V2/V0 printed to 4 decimals,
-    # T to 0.1 K (CoolProp 8.0.0 for the real gas; κ = 1.4 for the ideal gas).
+    # Isentropic 90 → 200 bar abs from 293.15 K: V2/V0 pinned to 4 decimals, T to 0.1 K
+    # (real gas: sources.SPAN_2000 computed with sources.COOLPROP 8.0.0; ideal gas: κ = 1.4,
+    # sources.CENGEL_BOLES_2015).
     assert gas_volume_ratio(200 * BAR, 90 * BAR, T_REF, ADIABATIC, model) == pytest.approx(
         ratio_ref, abs=0.00005
     )
@@ -149,7 +158,7 @@ def test_isentropic_compression_end_state(model, ratio_ref, t_ref):
 
 
 def test_polytropic_closed_form():
-    # Polytropic law p·V^n = const (REFERENCES.md, standard thermodynamics), ideal gas.
+    # Polytropic law p·V^n = const, ideal gas (sources.CENGEL_BOLES_2015, standard relation).
     p = np.array([120.0, 250.0]) * BAR
     got = gas_volume_ratio(p, 90 * BAR, T_REF, "polytropic:1.3", "ideal")
     assert got == pytest.approx((90 * BAR / p) ** (1 / 1.3), rel=1e-14)
@@ -245,8 +254,8 @@ def test_pressure_at_oil_fraction_inverts_oil_fraction(p0, T, proc, model, s):
 @settings(max_examples=30, deadline=None)
 @given(p0=st.floats(0.5, 2.0), k=st.floats(1.05, 3.0), T=temps)
 def test_real_gas_tends_to_ideal_at_low_pressure(p0, k, T):
-    # Virial limit: Z − 1 ≈ B·p/(R·T); for N₂ |B| < 25 cm³/mol over −40…150 °C (Span et al.
-    # 2000 second virial coefficient, from memory), so |Z − 1| < 1.3e-3 per bar here.
+    # Virial limit: Z − 1 ≈ B·p/(R·T); for N₂ |B| < 25 cm³/mol over −40…150 °C
+    # (sources.SPAN_2000 second virial coefficient, from memory), so |Z − 1| < 1.3e-3 per bar.
     p = p0 * k
     bound = 1.3e-3 * p
     r_real = gas_volume_ratio(p * BAR, p0 * BAR, T, "isothermal", "real")

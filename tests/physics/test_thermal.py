@@ -1,4 +1,4 @@
-"""Thermal time-constant model (Otis & Pourmovahed 1985; Pourmovahed & Otis 1990)."""
+"""Thermal time-constant model (sources.OTIS_POURMOVAHED_1985, sources.POURMOVAHED_OTIS_1990)."""
 
 from __future__ import annotations
 
@@ -6,7 +6,9 @@ import math
 
 import numpy as np
 import pytest
+from CoolProp.CoolProp import PropsSI
 from scipy.integrate import solve_ivp
+from sources import CODATA_2018, COOLPROP, POURMOVAHED_OTIS_1990, SPAN_2000
 from stowflow.errors import SettingsError, SizingError
 from stowflow.physics.gas import KAPPA, density
 from stowflow.physics.nitrogen import direct
@@ -29,7 +31,8 @@ TABLE_RTOL = 1e-5
 
 
 def test_adiabatic_limit_ideal_gas_follows_p_v_kappa():
-    # Mathematics (REFERENCES.md): τ → ∞ gives p·V^γ = const.
+    # Mathematics of the sources.OTIS_POURMOVAHED_1985 energy equation: τ → ∞ gives
+    # p·V^γ = const.
     n = effective_polytropic_index(np.array([0.5, 3.0, 40.0]), math.inf, np.array([2.0, 3.0, 0.5]))
     assert n == pytest.approx(KAPPA, rel=1e-12)
     T2, p2 = linear_volume_change(2.0, math.inf, 1.0, 0.5, 1.0, T_REF, "ideal")
@@ -39,23 +42,29 @@ def test_adiabatic_limit_ideal_gas_follows_p_v_kappa():
 
 def test_adiabatic_limit_real_gas_follows_the_coolprop_isentrope():
     # Mathematics: with τ → ∞ the energy equation is ds = 0, so the end state is the real
-    # isentrope (CoolProp 8.0.0, Span et al. 2000) at the end density.
+    # isentrope (sources.SPAN_2000 via sources.COOLPROP) at the end density.
     rho1 = density(90 * BAR, T_REF)
-    v2 = 0.6195285215639427  # REFERENCES.md isentrope 90 → 200 bar abs (V2/V0 = 0.6195)
+    # V2/V0 of the isentrope 90 → 200 bar abs from 293.15 K, computed live with the installed
+    # CoolProp (8.0.0 gives 0.6195285215639427; pinned to 0.6195 in sources.COOLPROP).
+    s_start = PropsSI("S", "P", 90 * BAR, "T", T_REF, "Nitrogen")
+    v2 = PropsSI("D", "P", 90 * BAR, "T", T_REF, "Nitrogen") / PropsSI(
+        "D", "P", 200 * BAR, "S", s_start, "Nitrogen"
+    )
+    assert v2 == pytest.approx(0.6195, abs=0.00005), f"{SPAN_2000} via {COOLPROP}"
     T2, p2 = linear_volume_change(1.0, math.inf, 1.0, v2, rho1, T_REF, "real")
     s1 = direct("PT", 90 * BAR, T_REF, ("s",))[0]
     p_ref, t_ref = direct("DS", rho1 / v2, s1, ("p", "T"))
     assert p2 == pytest.approx(float(p_ref), rel=TABLE_RTOL)
     assert T2 == pytest.approx(float(t_ref), rel=TABLE_RTOL)
-    # REFERENCES.md printed values: 200 bar abs (V2/V0 to 4 decimals → ±0.02 bar), 370.6 K.
+    # sources.COOLPROP pinned values: 200 bar abs (V2/V0 to 4 decimals → ±0.02 bar), 370.6 K.
     assert p2 / BAR == pytest.approx(200.0, abs=0.02)
     assert T2 == pytest.approx(370.6, abs=0.05)
 
 
 def test_real_gas_isentropic_expansion_from_reference():
-    # REFERENCES.md, isentropic expansion 200 → 100 bar abs from 293.15 K: V2/V1 = 1.464,
-    # T2 = 239.4 K (CoolProp 8.0.0).  V2/V1 printed to 3 decimals (±0.0005, i.e. ±3.4e-4
-    # relative, about ±0.06 bar at n ≈ 1.8); T to 0.1 K.
+    # sources.SPAN_2000 computed with sources.COOLPROP 8.0.0, isentropic expansion 200 → 100
+    # bar abs from 293.15 K: V2/V1 = 1.464, T2 = 239.4 K.  V2/V1 pinned to 3 decimals
+    # (±0.0005, i.e. ±3.4e-4 relative, about ±0.06 bar at n ≈ 1.8); T to 0.1 K.
     rho1 = density(200 * BAR, T_REF)
     T2, p2 = linear_volume_change(1.0, math.inf, 1.0, 1.464, rho1, T_REF, "real")
     assert p2 / BAR == pytest.approx(100.0, abs=0.06)
@@ -79,8 +88,8 @@ def test_isothermal_limit():
 
 @pytest.mark.parametrize("model", ["ideal", "real"])
 def test_exponential_relaxation_after_a_step(model):
-    # Mathematics (REFERENCES.md): after a step compression at fixed volume,
-    # T − Tw decays as e^(−t/τ).
+    # Mathematics of the sources.OTIS_POURMOVAHED_1985 energy equation: after a step
+    # compression at fixed volume, T − Tw decays as e^(−t/τ).
     tau, t_wall, t0 = 3.0, T_REF, 360.0
     mass, vol = charge_mass(150 * BAR, 1e-3), 0.6e-3
     times = np.array([0.5, 3.0, 9.0])
@@ -115,7 +124,7 @@ def test_effective_index_falls_from_kappa_to_one_with_duration():
 
 def test_real_gas_rate_matches_ideal_at_low_density():
     # Ideal-gas limit of (T/cv)(∂p/∂T)_v dv/dt = (κ−1)·T·dV/V, within the N₂ ideal-gas
-    # c_p/c_v − 1.4 difference at 300 K (about 1e-3, Span et al. 2000, from memory).
+    # c_p/c_v − 1.4 difference at 300 K (about 1e-3, sources.SPAN_2000, from memory).
     mass, vol = 1e-5, 1e-2  # 1e-3 kg/m³
     real = temperature_rate(300.0, vol, -1e-3, 300.0, 5.0, mass, "real")
     ideal = temperature_rate(300.0, vol, -1e-3, 300.0, 5.0, mass, "ideal")
@@ -125,14 +134,16 @@ def test_real_gas_rate_matches_ideal_at_low_density():
 def test_gas_pressure_and_mass():
     m = charge_mass(90 * BAR, 10e-3)
     assert gas_pressure(m, 10e-3, T_REF) == pytest.approx(90 * BAR, rel=TABLE_RTOL)
+    # R/M = 8.314462618 / 0.02801348 J/(kg·K): sources.CODATA_2018 R, sources.SPAN_2000 M.
     assert gas_pressure(m, 10e-3, T_REF, "ideal") == pytest.approx(
-        m / 10e-3 * 296.8022044387202 * T_REF, rel=1e-12
-    )
+        m / 10e-3 * (8.314462618 / 0.02801348) * T_REF, rel=1e-12
+    ), f"{CODATA_2018}, {SPAN_2000}"
 
 
 def test_default_time_constant_is_in_the_recalled_range():
-    # REFERENCES.md (from memory): typical τ for litre-size gas volumes is about 1–10 s.
-    assert 1.0 <= DEFAULT_TIME_CONSTANT <= 10.0
+    # sources.POURMOVAHED_OTIS_1990 (from memory): typical τ for litre-size gas volumes is
+    # about 1–10 s.
+    assert 1.0 <= DEFAULT_TIME_CONSTANT <= 10.0, str(POURMOVAHED_OTIS_1990)
 
 
 def test_bad_inputs():

@@ -30,6 +30,8 @@ PRINT_TOL_BAR = 0.01
 #: Largest report we accept for a demo cycle, [MB] (plotly.js alone is about 4.8 MB).
 MAX_REPORT_MB = 8.0
 
+#: The cautions every report must carry: paraphrases of sources.ISO_4413 (from memory) and the
+#: caveats of the pressure-equipment hint (sources.PED_2014_68_EU, from memory).
 SAFETY_PHRASES = (
     "nitrogen only, never with air or oxygen",
     "Discharge the accumulator automatically, or isolate it positively",
@@ -125,9 +127,10 @@ def test_precharge_table_for_commissioning():
     # the report prints 0.1 bar; the tabulated gas path reproduces 20 °C to about 1e-6
     assert row20 == pytest.approx((r.design.bank.precharge / 1e5) - p_amb, abs=PRINT_TOL_BAR)
     assert np.all(np.diff(p) > 0)
-    # REFERENCES.md (C, CoolProp): at constant volume from 100 bar abs, 20 → 50 °C gives
-    # 112.58 bar abs for real nitrogen against 110.23 ideal: the real gas rises faster than
-    # T/T_ref near these pressures, so the 50 °C row must lie above the ideal-gas value.
+    # sources.SPAN_2000 computed with sources.COOLPROP 8.0.0: at constant volume from 100 bar
+    # abs, 20 → 50 °C gives 112.58 bar abs for real nitrogen against 110.23 ideal: the real
+    # gas rises faster than T/T_ref near these pressures, so the 50 °C row must lie above the
+    # ideal-gas value.
     p50_abs = p[temps == 50.0][0] + p_amb
     ideal = (row20 + p_amb) * (323.15 / T_REF)
     assert p50_abs > ideal
@@ -135,6 +138,7 @@ def test_precharge_table_for_commissioning():
 
 
 def test_safety_cautions_are_in_every_report(page):
+    # The cautions paraphrase sources.ISO_4413 (from memory); the check is that they are there.
     for phrase in SAFETY_PHRASES:
         assert phrase in html.unescape(page), phrase
     bad = html.unescape(render_html(infeasible()))
@@ -144,7 +148,7 @@ def test_safety_cautions_are_in_every_report(page):
 
 def test_pressure_equipment_hint_of_the_bank(page):
     cat, note, ps, shell_l = spec.category_hint(forming_press())
-    # REFERENCES.md (R, from memory): Directive 2014/68/EU Annex II Table 2, PS·V > 3000 bar·L
+    # sources.PED_2014_68_EU (from memory): Annex II Table 2, PS·V > 3000 bar·L
     # is category IV; the demo press uses 125 L units at PS 350 bar (43,750 bar·L).
     assert ps * shell_l > 3000 and cat == "IV"
     assert "from memory" in note

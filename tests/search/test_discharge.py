@@ -1,14 +1,16 @@
 """The design's quasi-static store: charged at rest, discharged from the top, warm after a charge.
 
 Sources of truth:
-* CoolProp (Span et al. 2000 for nitrogen, the reference library from the registry): the real
+* sources.SPAN_2000 via sources.COOLPROP (computed live with the installed CoolProp): the real
   isotherm and isentrope through a start state, called directly;
-* mathematics: Boyle's law and the polytropic law p·V^n = const (closed forms below), and the
-  Otis & Pourmovahed energy equation integrated numerically
+* mathematics: Boyle's law and the polytropic law p·V^n = const (sources.CENGEL_BOLES_2015,
+  closed forms below), and the sources.OTIS_POURMOVAHED_1985 energy equation integrated
+  numerically
   (:func:`stowflow.physics.thermal.linear_volume_change`) for the warm gas after a charge;
 * the accumulator sizing law for an isothermal charge and a polytropic discharge,
-  V0 = ΔV·(p2/p0) / ((p2/p1)^(1/n) − 1) for an ideal gas (from memory: the usual handbook form;
-  it follows from Boyle's law and p·V^n = const, which is what the test checks).
+  V0 = ΔV·(p2/p0) / ((p2/p1)^(1/n) − 1) for an ideal gas (sources.CENGEL_BOLES_2015; the
+  handbook form itself from memory; it follows from Boyle's law and p·V^n = const, which is
+  what the test checks).
 """
 
 from __future__ import annotations
@@ -45,7 +47,8 @@ def _problem(process="auto", model="real", tau=5.0):
 
 @pytest.mark.parametrize("p_bar", [120.0, 180.0, 229.0])
 def test_real_expansion_follows_coolprop_isentrope_and_isotherm(p_bar):
-    # CoolProp, Span et al. (2000): V/Vs = ρ(ps, Ts) / ρ(p, T2), T2 on the isentrope or Ts.
+    # sources.SPAN_2000 via sources.COOLPROP, computed live: V/Vs = ρ(ps, Ts) / ρ(p, T2), T2 on
+    # the isentrope or Ts.
     ps, ts, p = 230 * BAR, T10, p_bar * BAR
     rho_s = PropsSI("D", "P", ps, "T", ts, "Nitrogen")
     s0 = PropsSI("S", "P", ps, "T", ts, "Nitrogen")

@@ -1,8 +1,9 @@
 """Time-domain verification (stowflow.simulation: verify, _integrator, _loop, controllers).
 
 Checks, each with its source beside it:
-* the thermal time-constant model's limits (REFERENCES.md: CoolProp isentrope and isotherm of
-  nitrogen; p·V^κ for the ideal gas; exponential wall relaxation - mathematics);
+* the thermal time-constant model's limits (sources.OTIS_POURMOVAHED_1985): the isentrope and
+  isotherm of nitrogen (sources.SPAN_2000 computed with sources.COOLPROP); p·V^κ for the ideal
+  gas; exponential wall relaxation (mathematics);
 * the integrator against scipy's solve_ivp on the same equations;
 * the first law over a steady cycle (pump work = machine + relief + heat to the wall + Δ stored);
 * agreement with the stowflow's quasi-static trace on slow cycles, within the thermal-lag
@@ -18,7 +19,9 @@ import math
 import numpy as np
 import pandas as pd
 import pytest
+from CoolProp.CoolProp import PropsSI
 from scipy.integrate import solve_ivp
+from sources import COOLPROP, SPAN_2000
 from stowflow.catalogue import (
     AccumulatorOption,
     MotorOption,
@@ -41,13 +44,19 @@ from stowflow.units import P_AMBIENT, T_REF
 
 BAR = 1e5
 LPM = 1e-3 / 60.0
-# REFERENCES.md isentrope 90 → 200 bar abs from 293.15 K (CoolProp 8.0.0): V2/V0 = 0.6195 and
-# 370.6 K.  V2/V0 printed to 4 decimals: ±0.00005 → about ±0.02 bar at n ≈ 1.8; T to 0.1 K.
-ISENTROPE_RATIO = 0.6195285215639427  # the full-precision volume ratio test_thermal.py pins
+# sources.SPAN_2000 computed with sources.COOLPROP 8.0.0: the isentrope 90 → 200 bar abs from
+# 293.15 K ends at V2/V0 = 0.6195 and 370.6 K.  V2/V0 pinned to 4 decimals: ±0.00005 → about
+# ±0.02 bar at n ≈ 1.8; T to 0.1 K.  The full-precision ratio is computed live with the
+# installed CoolProp (8.0.0 gives 0.6195285215639427).
+_S_90 = PropsSI("S", "P", 90 * BAR, "T", T_REF, "Nitrogen")
+ISENTROPE_RATIO = PropsSI("D", "P", 90 * BAR, "T", T_REF, "Nitrogen") / PropsSI(
+    "D", "P", 200 * BAR, "S", _S_90, "Nitrogen"
+)
 ISENTROPE_P_TOL_BAR = 0.02
 ISENTROPE_T_TOL_K = 0.05
-# REFERENCES.md isotherm 293.15 K, 10 L at 90 bar abs, 100 → 200 bar abs: ΔV = 4.281 L (real),
-# 4.500 L (ideal).  Printed to 3 decimals: ±0.0005 L.
+# Isotherm 293.15 K, 10 L at 90 bar abs, 100 → 200 bar abs: ΔV = 4.281 L (real: sources.SPAN_2000
+# computed with sources.COOLPROP 8.0.0), 4.500 L (ideal: Boyle).  Pinned to 3 decimals:
+# ±0.0005 L.
 ISOTHERM_DV_TOL_L = 0.0005
 # Mathematics (exact for the scheme): relative tolerance of closed forms.
 EXACT_RTOL = 1e-9
@@ -115,16 +124,18 @@ def _compress(plant, S_end, T0=T_REF):
 
 # --------------------------------------------------------------------------- thermal limits
 def test_adiabatic_limit_real_gas_follows_the_isentrope():
-    # REFERENCES.md (CoolProp 8.0.0, Span et al. 2000): isentropic compression 90 → 200 bar
-    # abs from 293.15 K ends at V2/V0 = 0.6195 and 370.6 K.
+    # sources.SPAN_2000 computed with sources.COOLPROP 8.0.0: isentropic compression 90 → 200
+    # bar abs from 293.15 K ends at V2/V0 = 0.6195 and 370.6 K.
     plant = _plant("real", tau=math.inf, n=200)
     _, _, end = _compress(plant, (1 - ISENTROPE_RATIO) * plant.volume)
-    assert end.p / BAR == pytest.approx(200.0, abs=ISENTROPE_P_TOL_BAR)
-    assert end.T == pytest.approx(370.6, abs=ISENTROPE_T_TOL_K)
+    source = f"{SPAN_2000} via {COOLPROP}"
+    assert end.p / BAR == pytest.approx(200.0, abs=ISENTROPE_P_TOL_BAR), source
+    assert end.T == pytest.approx(370.6, abs=ISENTROPE_T_TOL_K), source
 
 
 def test_adiabatic_limit_ideal_gas_keeps_p_v_kappa():
-    # Mathematics (REFERENCES.md): τ → ∞, ideal gas: p·V^κ = const along the whole stroke.
+    # Mathematics of the energy equation (sources.OTIS_POURMOVAHED_1985): τ → ∞, ideal gas:
+    # p·V^κ = const along the whole stroke.
     plant = _plant("ideal", tau=math.inf, n=50)
     pl, rec, _ = _compress(plant, 0.5 * plant.volume)
     V = pl.volume - rec.S
@@ -135,8 +146,9 @@ def test_adiabatic_limit_ideal_gas_keeps_p_v_kappa():
 
 @pytest.mark.parametrize(("model", "expected_l"), [("real", 4.281), ("ideal", 4.500)])
 def test_isothermal_limit_follows_the_isotherm(model, expected_l):
-    # REFERENCES.md: isothermal at 293.15 K, V0 = 10 L precharged to 90 bar abs; from 100 to
-    # 200 bar abs the gas gives up 4.281 L (real) / 4.500 L (ideal).
+    # Isothermal at 293.15 K, V0 = 10 L precharged to 90 bar abs; from 100 to 200 bar abs the
+    # gas gives up 4.281 L (real: sources.SPAN_2000 computed with sources.COOLPROP 8.0.0) /
+    # 4.500 L (ideal: Boyle's law, sources.CENGEL_BOLES_2015).
     plant = _plant(model, tau=1e-9, n=2000)
     _, rec, _ = _compress(plant, 0.6 * plant.volume)
     assert np.max(np.abs(rec.T - T_REF)) < 1e-6
@@ -145,8 +157,8 @@ def test_isothermal_limit_follows_the_isotherm(model, expected_l):
 
 
 def test_wall_relaxation_at_fixed_volume_is_exponential():
-    # Mathematics (REFERENCES.md): after a step compression at fixed volume, T − Tw decays as
-    # e^(−t/τ).
+    # Mathematics of the energy equation (sources.OTIS_POURMOVAHED_1985): after a step
+    # compression at fixed volume, T − Tw decays as e^(−t/τ).
     tau, Tw = 2.5, 300.0
     plant = _plant("real", tau=tau, T_wall=Tw, n=400, dt=0.025)
     st = start_state(plant, 0.003, Tw + 60.0, 0)
@@ -509,7 +521,7 @@ def test_relief_valve_takes_what_a_loaded_pump_cannot_store():
 
 # --------------------------------------------------------------------------- failures
 def test_discharge_rate_violation_is_caught_and_named():
-    # A single 1 L diaphragm unit (default limit 6 L/s, common practice) asked for 20 L/s.
+    # A single 1 L diaphragm unit (default limit 6 L/s, sources.COMMON_PRACTICE) asked for 20 L/s.
     d = _toy_design(
         acc_type="diaphragm", volume=0.001, precharge=80 * BAR + P_AMBIENT, pump_lpm=30.0
     )
@@ -534,10 +546,10 @@ def test_empty_bank_is_a_named_failure_with_a_shortfall():
     assert v.shortfall is not None and v.shortfall.max() > 0
 
 
-def test_heat_exchange_failure_gives_a_usable_shortfall():
+def test_heat_exchange_failure_gives_a_shortfall_whose_redesign_passes():
     # Designed isothermal, run fast (τ = 30 s): the discharge cools the gas, the pressure
     # falls below the isothermal estimate.  The shortfall names those steps; raising their
-    # requirement by it (as the pipeline does) gives a design that passes.
+    # requirement by it plus 0.5 bar (as the pipeline does) gives a design that passes.
     cat = parse_catalogue_text(_AGREE_CATALOGUE)
     s = DesignSettings(
         process="isothermal", time_constant=30.0, allow_pump_only=False, t_min=T_REF, t_max=T_REF
@@ -554,7 +566,8 @@ def test_heat_exchange_failure_gives_a_usable_shortfall():
     assert run.gas_temperature_min < T_REF - 1.0  # expansion cooling is the cause
     d2 = design(c, cat, s, extra_pressure=np.where(short, v.shortfall + 0.5 * BAR, 0.0))
     v2 = verify(d2, c, s)
-    assert v2.min_margin > v.min_margin
+    assert v2.passed, v2.reason
+    assert v2.min_margin >= 0 and v2.min_margin > v.min_margin
 
 
 def test_schedule_that_does_not_balance_is_refused():
@@ -648,23 +661,36 @@ def test_position_switch_on_a_piston_bank():
     assert oil.max() <= sp["unload_above_stroke"] + 1e-3
 
 
+#: What the derived pressure switch gives on the first design of each demo cycle (before the
+#: pipeline tightens anything).  test_rig_pulse repeats every 4 s, 900 times an hour: its first
+#: design leaves a pressure switch no band that keeps 360 load events an hour, so the widest
+#: band is reported failing, with a pressure shortfall the pipeline raises the requirement by.
+DEMO_SWITCH_PASSES = {
+    "die_casting_shot": True,
+    "forming_press": True,
+    "injection_moulding": True,
+    "test_rig_pulse": False,
+}
+
+
 @pytest.mark.slow
-@pytest.mark.parametrize(
-    "name", ["die_casting_shot", "forming_press", "injection_moulding", "test_rig_pulse"]
-)
+@pytest.mark.parametrize("name", sorted(DEMO_SWITCH_PASSES))
 def test_pressure_switch_rule_on_the_demo_cycles(repo_root, name):
     # The derived pressure switch on the stowflow's design of each demo cycle:
     # * unload at the design's maximum working pressure (capped by the motor's rating);
     # * load at the highest point that keeps the switching limits at both temperatures: one
-    #   bisection step higher breaks them; or, when even the widest band (load at the highest
-    #   requirement) breaks them, that widest band is reported as failing;
-    # * where the limits hold and no pressure falls short, the verdict is a pass.
+    #   bisection step higher breaks them; the design then passes at both temperatures;
+    # * when even the widest band (load at the highest requirement) breaks them, that widest
+    #   band is reported as failing with a usable shortfall, and the pipeline's tightening
+    #   (raise the requirement by the shortfall, design again) ends with a passing design.
     from stowflow.catalogue import default_catalogue_path, load_catalogue
     from stowflow.cycle.duty import load_cycle
+    from stowflow.pipeline import Study, run
     from stowflow.simulation._assess import limits_ok
     from stowflow.simulation._setup import plant_for, pressure_search
 
-    c = load_cycle(repo_root / "duty_cycles" / f"{name}.csv")
+    path = repo_root / "duty_cycles" / f"{name}.csv"
+    c = load_cycle(path)
     s = DesignSettings()
     d = design(c, load_catalogue(default_catalogue_path()), s)
     assert d.feasible and d.bank is not None
@@ -679,7 +705,8 @@ def test_pressure_switch_rule_on_the_demo_cycles(repo_root, name):
         return limits_ok(r.load_events_per_hour, r.min_loaded_dwell, r.min_unloaded_dwell, s)
 
     widest = float(np.max(c.pressure)) + s.line_loss
-    if all(keeps(r) for r in runs):
+    if DEMO_SWITCH_PASSES[name]:
+        assert all(keeps(r) for r in runs)
         assert all(r.load_events_per_hour <= s.max_load_events_per_hour for r in runs)
         assert all(min(r.min_loaded_dwell, r.min_unloaded_dwell) >= 1.0 for r in runs)
         search = pressure_search(d, s, plant_for(d, c, s, s.t_min))
@@ -695,10 +722,19 @@ def test_pressure_switch_rule_on_the_demo_cycles(repo_root, name):
                 },
             )
             assert not all(keeps(r) for r in higher.runs)
-        assert v.passed == all(r.min_margin >= 0 and r.passed for r in runs)
+        assert all(r.min_margin >= 0 and r.passed for r in runs)
+        assert v.passed
     else:
         assert on == pytest.approx(widest, rel=1e-12)
         assert not v.passed
+        assert not any(keeps(r) for r in runs)
+        assert all(
+            any("load events per hour exceed the limit 360/h" in f for f in r.failures)
+            for r in runs
+        )
+        assert v.shortfall is not None and np.any(v.shortfall > 0)
+        res = run(Study(cycle=path))
+        assert len(res.attempts) > 1 and res.verification.passed
     # (its run time is measured by tests/benchmarks/bench_simulate.py, not asserted here)
 
 
