@@ -62,8 +62,8 @@ overall_efficiency = 0.85
 price = 900
 name = "-big pump"
 [[motor]]
-rated_kw = 7.5
-efficiency = 0.904
+rated_kw = 11
+efficiency = 0.914
 price = 180
 name = "@motor"
 [[motor]]

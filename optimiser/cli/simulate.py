@@ -6,7 +6,7 @@ row matches the numbers, otherwise from the JSON with stated defaults - and runs
 time-domain verification (:func:`stowflow.simulation.verify.verify`) at the coldest and the hottest
 temperature.  Prints the verdict (table or ``--json``) and, with ``--out DIR``, writes
 ``simulation.csv``: one long table, one block of rows per controller × temperature (columns
-``controller`` and ``temperature [°C]``), and ``verification.json``.
+``controller``, ``temperature [°C]`` and ``pump_flow_state``), and ``verification.json``.
 
 Exit code 0 when the design passes, 1 when it fails verification (a result), 2 for bad input.
 """
@@ -19,8 +19,6 @@ import math
 from dataclasses import replace
 from pathlib import Path
 
-import numpy as np
-import pandas as pd
 from stowflow.catalogue import (
     default_catalogue_path,
     load_catalogue,
@@ -34,6 +32,7 @@ from stowflow.io.quantities import (
     parse_pressure_difference,
     parse_temperature_range,
 )
+from stowflow.report.exports import traces_frame
 from stowflow.search.settings import DesignSettings
 from stowflow.simulation.verify import CONTROLLERS, verify
 from stowflow.units import kelvin_to_celsius, to_unit
@@ -113,45 +112,6 @@ def register(subparsers, common: argparse.ArgumentParser) -> None:
 
 
 # --------------------------------------------------------------------------- output
-def _frames(v, pa: float) -> pd.DataFrame:
-    """simulation.csv: every run's trace in trade units, one block per run."""
-    rows = []
-    for r in v.runs:
-        tr = r.trace
-
-        def g(col: str, tr=tr) -> np.ndarray:
-            return to_unit(tr[col].to_numpy() - pa, "bar", "pressure")
-
-        rows.append(
-            pd.DataFrame(
-                {
-                    "controller": r.controller,
-                    "temperature [°C]": round(kelvin_to_celsius(r.temperature), 3),
-                    "time [s]": tr.index.to_numpy(float),
-                    "pressure [bar]": g("pressure [Pa]"),
-                    "pressure_min [bar]": g("pressure_min [Pa]"),
-                    "required_pressure [bar]": g("required_pressure [Pa]"),
-                    "gas_temperature [°C]": kelvin_to_celsius(tr["gas_temperature [K]"].to_numpy()),
-                    "accumulator_oil [L]": to_unit(
-                        tr["accumulator_oil [m³]"].to_numpy(), "L", "volume"
-                    ),
-                    "pump_loaded": tr["pump_loaded [-]"].to_numpy(),
-                    "pump_flow [L/min]": to_unit(
-                        tr["pump_flow [m³/s]"].to_numpy(), "L/min", "flow"
-                    ),
-                    "relief_flow [L/min]": to_unit(
-                        tr["relief_flow [m³/s]"].to_numpy(), "L/min", "flow"
-                    ),
-                    "demand [L/min]": to_unit(tr["demand [m³/s]"].to_numpy(), "L/min", "flow"),
-                    "bank_flow [L/min]": to_unit(
-                        tr["bank_flow [m³/s]"].to_numpy(), "L/min", "flow"
-                    ),
-                }
-            )
-        )
-    return pd.concat(rows, ignore_index=True)
-
-
 def _record(v, pa: float, notes: list[str]) -> dict:
     """The verdict as JSON-ready dict (bar gauge, °C, kJ, L)."""
 
@@ -170,6 +130,7 @@ def _record(v, pa: float, notes: list[str]) -> dict:
             {
                 "controller": r.controller,
                 "temperature_c": round(kelvin_to_celsius(r.temperature), 3),
+                "pump_flow": "worn" if r.worn else "catalogue",
                 "passed": r.passed,
                 "reason": r.reason,
                 "failures": list(r.failures),
@@ -250,7 +211,7 @@ def run(args: argparse.Namespace) -> int:
     if args.out:
         out = Path(args.out)
         out.mkdir(parents=True, exist_ok=True)
-        _frames(v, pa).to_csv(out / "simulation.csv", index=False, float_format="%.6g")
+        traces_frame(v, pa).to_csv(out / "simulation.csv", index=False, float_format="%.6g")
         (out / "verification.json").write_text(
             json.dumps(record, indent=2, ensure_ascii=False, allow_nan=False) + "\n",
             encoding="utf-8",
@@ -275,6 +236,7 @@ def _print(v, record: dict, out) -> None:
             (
                 r["controller"],
                 f"{r['temperature_c']:.0f}",
+                r["pump_flow"],
                 "pass" if r["passed"] else "FAIL",
                 f"{r['min_margin_bar']:.2f}",
                 f"{r['peak_pressure_bar']:.1f}",
@@ -292,6 +254,7 @@ def _print(v, record: dict, out) -> None:
         headers=(
             "controller",
             "T [°C]",
+            "pump flow",
             "verdict",
             "margin [bar]",
             "peak [bar]",

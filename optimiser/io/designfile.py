@@ -432,7 +432,10 @@ def _schedule(csv, cycle, pump, bank, notes) -> pd.DataFrame:
             f"{to_unit(pump.flow, 'L/min', 'flow'):.6g} L/min; schedule controller skipped"
         )
         return pd.DataFrame()
-    fraction = np.clip(fraction, 0.0, 1.0)
+    # A loaded or unloaded step whose fraction the export's rounding moved off 1 or 0 is
+    # loaded or unloaded: a sliver would count as a load event of its own.
+    fraction = np.where(np.abs(fraction - 1.0) <= tol, 1.0, fraction)
+    fraction = np.clip(np.where(np.abs(fraction) <= tol, 0.0, fraction), 0.0, 1.0)
     return pd.DataFrame(
         {
             "demand [m³/s]": d,

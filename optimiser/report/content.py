@@ -314,7 +314,7 @@ def setpoints_bar(result) -> dict:
 
 
 def verification_rows(result) -> list[dict]:
-    """Every simulated controller × temperature, in trade units."""
+    """Every simulated controller × temperature × pump flow, in trade units."""
     v = result.verification
     if v is None:
         return []
@@ -325,6 +325,10 @@ def verification_rows(result) -> list[dict]:
                 "controller": r.controller,
                 "recommended": r.controller == v.controller,
                 "temperature_c": kelvin_to_celsius(r.temperature),
+                "pump_flow": "worn" if r.worn else "catalogue",
+                "pump_flow_lpm": to_unit(float(r.trace["pump_flow [m³/s]"].max()), "L/min", "flow")
+                if r.trace is not None and len(r.trace)
+                else None,
                 "passed": bool(r.passed),
                 "min_margin_bar": bar_delta(r.min_margin),
                 "min_margin_time_s": r.min_margin_time,

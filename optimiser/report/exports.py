@@ -409,7 +409,8 @@ def traces_frame(verification, p_ambient: float) -> pd.DataFrame:
     -------
     pandas.DataFrame
         The columns of ``simulation.csv`` (``stowflow simulate --out``): ``controller``,
-        ``temperature [°C]`` (the run's), ``time [s]`` (step start), ``pressure [bar]``,
+        ``temperature [°C]`` (the run's), ``pump_flow_state`` (``catalogue`` or ``worn``),
+        ``time [s]`` (step start), ``pressure [bar]``,
         ``pressure_min [bar]``, ``required_pressure [bar]`` (gauge, line loss included),
         ``gas_temperature [°C]``, ``accumulator_oil [L]``, ``pump_loaded`` (loaded fraction of
         the step, [-]), ``pump_flow [L/min]``, ``relief_flow [L/min]``, ``demand [L/min]``,
@@ -430,6 +431,7 @@ def traces_frame(verification, p_ambient: float) -> pd.DataFrame:
                 {
                     "controller": r.controller,
                     "temperature [°C]": round(kelvin_to_celsius(r.temperature), 3),
+                    "pump_flow_state": "worn" if r.worn else "catalogue",
                     "time [s]": tr.index.to_numpy(float),
                     "pressure [bar]": bar("pressure [Pa]"),
                     "pressure_min [bar]": bar("pressure_min [Pa]"),

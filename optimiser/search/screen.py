@@ -133,9 +133,14 @@ def pump_unload_limit(pump: PumpOption, motor: MotorOption, s: DesignSettings) -
     """Highest unload pressure at which the motor covers the pump's shaft power, [Pa abs].
 
     Shaft power :math:`P = Q_p\\,(p - p_{amb}) / \\eta_o`; the motor covers it when
-    :math:`P \\le P_m`.  The pump's own maximum pressure must also carry the relief setting.
+    :math:`P \\le P_m`.  With ``motor_sizing = "relief"`` (the default) ``p`` is the relief
+    setting of the unload pressure: a stuck unloading valve sends the full flow over the
+    relief valve, and the motor must carry that (shaft power at the cracking pressure, common
+    practice); with ``"working"`` it is the unload pressure itself.  The pump's own maximum
+    pressure must also carry the relief setting.
     """
-    by_motor = s.p_ambient + motor.rated_power * pump.overall_efficiency / pump.flow
+    p_motor = s.p_ambient + motor.rated_power * pump.overall_efficiency / pump.flow
+    by_motor = s.max_unload_for_relief(p_motor) if s.motor_sizing == "relief" else p_motor
     by_pump = s.max_unload_for_relief(pump.max_pressure)
     return min(by_motor, by_pump)
 
@@ -234,7 +239,9 @@ class _Screen:
         n_of = [int(np.count_nonzero(self.full_grid.p0 < p)) for p in limits]
         head = self.full_grid.head(max(n_of))
         r = self.rules[acc_type]
-        up, pm = bank_upper(problem, acc_type, head, np.array(limits), levels, r)
+        # Sized from the switch's load point: the least a switched store holds when a
+        # draw begins (the schedule model may still fill it to the unload pressure).
+        up, pm = bank_upper(problem, acc_type, head, np.array(limits), levels, r, level="load")
         lo = bank_lower(problem, acc_type, head, levels, r, None, pm)
         heat = np.stack([charge_heating(problem, pm, t_k) for t_k in problem.temperatures])
         for a, (p_a, n) in enumerate(zip(limits, n_of, strict=True)):

@@ -9,11 +9,17 @@ from __future__ import annotations
 import math
 from dataclasses import asdict, dataclass, field, replace
 
+import numpy as np
 from stowflow.catalogue import ACCUMULATOR_TYPES
 from stowflow.errors import SettingsError
+from stowflow.physics.valves import switch_band
 from stowflow.units import BAR, P_AMBIENT, celsius_to_kelvin, kelvin_to_celsius
 
-__all__ = ["ACCUMULATOR_TYPES", "DEFAULT_SETTINGS", "DesignSettings"]
+__all__ = ["ACCUMULATOR_TYPES", "DEFAULT_SETTINGS", "MOTOR_SIZING", "DesignSettings"]
+
+#: How the motor is sized: at the relief setting (full flow over the relief valve) or at the
+#: working (unload) pressure.
+MOTOR_SIZING: tuple[str, ...] = ("relief", "working")
 
 
 @dataclass(frozen=True)
@@ -54,7 +60,27 @@ class DesignSettings:
     flow_margin : float
         Share of the pump's catalogue flow the design must do without, [-]: the cycle must
         still be met when wear has cut the delivery by this much (the pump-only baselines
-        get the same margin).  Default 0.10 (common practice, no published source).
+        get the same margin), and the verification runs the design at the worn flow too.
+        Default 0.10 (common practice, no published source).
+    switch_differential : float
+        Least differential of the pressure switch (or accumulator charging valve) that loads
+        and unloads the pump, as a fraction of its cut-out gauge pressure, [-].  Default 0.10:
+        about the least a pressure switch or charging valve holds in practice (common
+        practice, from memory).  The search plans the store from the load point this leaves,
+        and the verification never derives a narrower band.
+    switch_differential_min : float
+        Least differential in absolute terms, [Pa] (the larger of the two applies).
+        Default 0.
+    switch_tolerance : float
+        Repeatability of the switch's settings, as a fraction of each setting (gauge), [-]:
+        the verification runs the switch with both settings this much low (the store's
+        worst case) and checks that the unload setting this much high stays below the relief
+        setting.  Default 0.01 (±1 %, from memory).
+    motor_sizing : str
+        ``"relief"`` (default): the motor drives the pump at full flow at the relief setting,
+        so a stuck unloading valve cannot overload it (shaft power at the cracking pressure,
+        common practice).  ``"working"``: at the unload pressure only; the report then carries
+        a caution.
     max_count : int
         Most accumulators of one size in a bank, [-].  Default 8.
     precharge_step : float
@@ -87,6 +113,10 @@ class DesignSettings:
     min_unloaded_dwell: float = 1.0
     max_load_events_per_hour: float | None = 360.0
     flow_margin: float = 0.10
+    switch_differential: float = 0.10
+    switch_differential_min: float = 0.0
+    switch_tolerance: float = 0.01
+    motor_sizing: str = "relief"
     max_count: int = 8
     precharge_step: float = 1 * BAR
     types: tuple[str, ...] = ACCUMULATOR_TYPES
@@ -137,6 +167,19 @@ class DesignSettings:
                 raise bad(f"{name} must be ≥ 0, got {v!r}")
         if self.max_load_events_per_hour is not None and not (self.max_load_events_per_hour >= 1):
             raise bad("max load events per hour must be ≥ 1 (or None for no limit)")
+        if not (0 <= self.switch_differential < 0.5):
+            raise bad(
+                f"switch differential must be 0 … 50 % of the cut-out pressure, got "
+                f"{self.switch_differential:.0%}"
+            )
+        if not (math.isfinite(self.switch_differential_min) and self.switch_differential_min >= 0):
+            raise bad(f"switch_differential_min must be ≥ 0, got {self.switch_differential_min!r}")
+        if not (0 <= self.switch_tolerance < 0.1):
+            raise bad(
+                f"switch tolerance must be 0 … 10 % of the setting, got {self.switch_tolerance:.1%}"
+            )
+        if self.motor_sizing not in MOTOR_SIZING:
+            raise bad(f"motor sizing '{self.motor_sizing}' is not one of {', '.join(MOTOR_SIZING)}")
         if not (0 <= self.flow_margin < 0.5):
             raise bad(f"flow margin must be 0 … 50 %, got {self.flow_margin:.0%}")
         if not (1 <= int(self.max_count) <= 64):
@@ -173,6 +216,10 @@ class DesignSettings:
             "min_unloaded_dwell_s": self.min_unloaded_dwell,
             "max_load_events_per_hour": self.max_load_events_per_hour,
             "flow_margin": self.flow_margin,
+            "switch_differential": self.switch_differential,
+            "switch_differential_min_bar": self.switch_differential_min / BAR,
+            "switch_tolerance": self.switch_tolerance,
+            "motor_sizing": self.motor_sizing,
             "max_count": self.max_count,
             "precharge_step_bar": self.precharge_step / BAR,
             "types": list(self.types),
@@ -182,6 +229,43 @@ class DesignSettings:
             "ambient_pressure_bar": self.p_ambient / BAR,
         }
         return out
+
+    def switch_band(self, p_unload):
+        """Least pressure-switch differential below an unload (cut-out) pressure.
+
+        Parameters
+        ----------
+        p_unload : float or array_like
+            Unload pressure, absolute, [Pa].
+
+        Returns
+        -------
+        float or numpy.ndarray
+            ``max(switch_differential · gauge, switch_differential_min)``, [Pa]
+            (:func:`stowflow.physics.valves.switch_band`).
+        """
+        return switch_band(
+            np.asarray(p_unload, float) - self.p_ambient,
+            self.switch_differential,
+            self.switch_differential_min,
+        )
+
+    def worst_setting(self, p_setting):
+        """A switch setting at the low end of its repeatability, absolute, [Pa].
+
+        Parameters
+        ----------
+        p_setting : float or array_like
+            Nominal setting, absolute, [Pa].
+
+        Returns
+        -------
+        float or numpy.ndarray
+            ``p_amb + (1 − switch_tolerance)·(p_setting − p_amb)``, [Pa].
+        """
+        return self.p_ambient + (1.0 - self.switch_tolerance) * (
+            np.asarray(p_setting, float) - self.p_ambient
+        )
 
     def relief_setting(self, p_unload: float) -> float:
         """Relief cracking pressure for an unload pressure.

@@ -17,7 +17,6 @@ from dataclasses import dataclass
 import numpy as np
 from stowflow.physics import accumulator as acc
 from stowflow.physics import gas
-from stowflow.physics.valves import narrowest_band
 from stowflow.search.problem import Problem
 from stowflow.search.settings import DesignSettings
 from stowflow.units import T_REF
@@ -36,12 +35,13 @@ __all__ = [
 def top_pressure(settings: DesignSettings, p_max) -> np.ndarray | float:
     """Where a discharge starts under an unload pressure, absolute, [Pa].
 
-    The load point of the narrowest pressure-switch band below ``p_max``
-    (:func:`stowflow.physics.valves.narrowest_band`): a switched pump lets the store drift down
-    to it before loading again, so the machine may start drawing there.
+    The pressure switch's load point below ``p_max`` (its differential,
+    :meth:`DesignSettings.switch_band`), taken at the low end of its repeatability
+    (:meth:`DesignSettings.worst_setting`): a switched pump lets the store drift down to it
+    before loading again, so the machine may start drawing there.
     """
     p_max = np.asarray(p_max, float)
-    return _out(p_max - narrowest_band(p_max - settings.p_ambient))
+    return _out(settings.worst_setting(p_max - settings.switch_band(p_max)))
 
 
 def _out(a: np.ndarray):
@@ -278,6 +278,8 @@ def bank_upper(
     p_levels: np.ndarray,
     rules,
     temperatures: tuple[float, ...] | None = None,
+    *,
+    level: str = "unload",
 ) -> tuple[np.ndarray, np.ndarray]:
     """Most oil fraction of a bank at its unload pressure (gas at rest), at each temperature.
 
@@ -288,6 +290,11 @@ def bank_upper(
     p_allowed : float or numpy.ndarray
         Highest unload pressure the pump, motor, relief and shell allow, absolute, [Pa];
         shape (A,) for several at once.
+    level : str
+        ``"unload"``: the oil at the unload pressure, the most a schedule may store.
+        ``"load"``: the oil at the pressure switch's load point (:func:`top_pressure`), the
+        least a switched store is sure to hold when a draw begins: a pressure switch keeps
+        the store anywhere between its two settings, so the sizing counts from the lower.
 
     Returns
     -------
@@ -307,7 +314,8 @@ def bank_upper(
         p_max = p_max.reshape(p_type.shape)
     ok = (p_max >= p_levels.max() - 1e-6) & (p_max > p0_cold)
     upper = np.empty((len(temps), *p_max.shape))
+    p_full = p_max if level == "unload" else np.asarray(top_pressure(s, p_max), float)
     for i, t_k in enumerate(temps):
-        frac = 1.0 - _iso_ratio(p_max, grid.rho, t_k, s.gas_model)
+        frac = 1.0 - _iso_ratio(p_full, grid.rho, t_k, s.gas_model)
         upper[i] = np.where(ok, frac, -np.inf)
     return upper, p_max

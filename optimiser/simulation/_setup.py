@@ -224,7 +224,8 @@ def pressure_search(design: Design, settings: DesignSettings, plant: Plant) -> S
             ),
         )
     lowest = float(np.max(plant.required))
-    highest = off - narrowest_band(off - s.p_ambient)
+    band = max(float(s.switch_band(off)), float(narrowest_band(off - s.p_ambient)))
+    highest = off - band
     return SwitchSearch(
         off, min(lowest, highest), highest, max(_PRESSURE_RESOLUTION, (highest - lowest) / 32)
     )

@@ -77,15 +77,21 @@ class HysteresisController(Controller):
         ``"pressure"`` (gas = line pressure, absolute [Pa]) or ``"stroke"`` (stored oil over
         the oil of the full piston stroke, [-]).
     on, off : float
-        Load below ``on``, unload above ``off``, in the signal's unit.
+        Load below ``on``, unload above ``off``, in the signal's unit: where the switch acts.
+    nominal : tuple of float, optional
+        The settings as stated (``(on, off)``), when the switch acts elsewhere within its
+        repeatability; :meth:`setpoints` reports these.  Default: ``(on, off)``.
     """
 
-    def __init__(self, name: str, signal: str, on: float, off: float) -> None:
+    def __init__(
+        self, name: str, signal: str, on: float, off: float, nominal: tuple | None = None
+    ) -> None:
         if signal not in ("pressure", "stroke"):
             raise ValueError(f"signal '{signal}' is not 'pressure' or 'stroke'")
         if not on < off:
             raise ValueError(f"switch band is empty: load below {on:g} ≥ unload above {off:g}")
         self.name, self.signal, self.on, self.off = name, signal, float(on), float(off)
+        self.nominal = (self.on, self.off) if nominal is None else tuple(map(float, nominal))
 
     def initial_u(self) -> int:
         """Start just unloaded, with the store full (see :func:`~.verify.verify`)."""
@@ -121,10 +127,11 @@ class HysteresisController(Controller):
         return (st.u == 1 and y >= self.off) or (st.u == 0 and y <= self.on)
 
     def setpoints(self) -> dict:
-        """``load_below``/``unload_above`` [Pa] or ``*_stroke`` [-]."""
+        """``load_below``/``unload_above`` [Pa] or ``*_stroke`` [-], as stated."""
+        on, off = self.nominal
         if self.signal == "pressure":
-            return {"load_below": self.on, "unload_above": self.off}
-        return {"load_below_stroke": self.on, "unload_above_stroke": self.off}
+            return {"load_below": on, "unload_above": off}
+        return {"load_below_stroke": on, "unload_above_stroke": off}
 
 
 @dataclass(frozen=True)

@@ -70,7 +70,7 @@ from stowflow.simulation.controllers import (
     SwitchSearch,
     derive_switch,
 )
-from stowflow.units import to_unit
+from stowflow.units import BAR, ZERO_CELSIUS, bar_text, to_unit
 
 __all__ = [
     "CONTROLLERS",
@@ -80,7 +80,9 @@ __all__ = [
     "plant_for",
     "schedule_fraction",
     "simulate",
+    "switch_controller",
     "verify",
+    "worn_design",
 ]
 # plant_for and schedule_fraction (from stowflow.simulation._setup) are part of this module's API.
 
@@ -160,6 +162,9 @@ class ControllerRun:
         Stored oil [m³] and gas temperature [K] at the start of the trace's cycle.
     shortfall : numpy.ndarray | None
         Per step, how far the pressure fell below the requirement, [Pa].
+    worn : bool
+        True for a run at the worn pump's flow (catalogue flow × (1 − flow margin)), False
+        at the catalogue flow.
     """
 
     controller: str
@@ -191,6 +196,13 @@ class ControllerRun:
     work: dict = field(default_factory=dict)
     start: tuple[float, float] = (math.nan, math.nan)
     shortfall: np.ndarray | None = field(default=None, repr=False)
+    worn: bool = False
+
+    @property
+    def condition(self) -> str:
+        """``"10 °C, catalogue flow"``: the temperature and the pump's state of the run."""
+        pump = "worn" if self.worn else "catalogue"
+        return f"{self.temperature - ZERO_CELSIUS:.4g} °C, {pump} flow"
 
 
 @dataclass(frozen=True)
@@ -201,7 +213,7 @@ class Verification:
     ----------
     passed : bool
         True when the recommended controller passes at the coldest and the hottest
-        temperature.
+        temperature, at the pump's catalogue flow and at its worn flow.
     controller : str
         The recommended controller: the first that passes in the order of
         :data:`RECOMMENDATION_ORDER` (pressure switch, schedule, position switch); when none
@@ -214,7 +226,8 @@ class Verification:
         the pressure switch; for piston types also ``load_below_stroke [-]`` and
         ``unload_above_stroke [-]`` (fractions of the piston stroke) for the position switch.
     runs : tuple[ControllerRun, ...]
-        Every controller at every temperature simulated.
+        Every controller at every temperature simulated, at catalogue flow and (with a flow
+        margin) at worn flow.
     min_margin : float
         Least pressure margin of the recommended controller over both temperatures, [Pa].
     shortfall : numpy.ndarray | None
@@ -245,9 +258,10 @@ class Verification:
     elapsed: float = 0.0
     notes: tuple[str, ...] = ()
 
-    def run(self, controller: str, which: str) -> ControllerRun | None:
-        """The run of ``controller`` at the ``"cold"`` or ``"hot"`` end, if simulated."""
-        runs = [r for r in self.runs if r.controller == controller]
+    def run(self, controller: str, which: str, worn: bool = False) -> ControllerRun | None:
+        """The run of ``controller`` at the ``"cold"`` or ``"hot"`` end, if simulated (at
+        catalogue flow, or at worn flow with ``worn``)."""
+        runs = [r for r in self.runs if r.controller == controller and r.worn == worn]
         if not runs:
             return None
         return (
@@ -276,8 +290,8 @@ def _make_controller(name, design, cycle, settings, setpoints):
             )
         return ScheduleController(f)
     if name == "pressure-switch":
-        return HysteresisController(
-            name, "pressure", setpoints["load_below"], setpoints["unload_above"]
+        return switch_controller(
+            name, "pressure", setpoints["load_below"], setpoints["unload_above"], settings
         )
     if name == "position-switch":
         if not design.bank.option.has_piston:
@@ -307,6 +321,7 @@ def simulate(
     setpoints: dict | None = None,
     limits: dict | None = None,
     estimate_error: bool = True,
+    worn: bool = False,
 ) -> ControllerRun:
     """Simulate one controller at one temperature to the periodic steady state.
 
@@ -330,6 +345,8 @@ def simulate(
         The catalogue's ``[limits.<type>]`` overrides for the discharge limit.
     estimate_error : bool
         Repeat the final cycle with half the substep to estimate the integration error.
+    worn : bool
+        Run the pump at its worn flow (:func:`worn_design`).
 
     Returns
     -------
@@ -338,57 +355,101 @@ def simulate(
     s = settings or DesignSettings()
     _check_design(design)
     T = float(s.t_min if temperature is None else temperature)
-    if design.bank is None:
-        return ControllerRun(**pump_only(design, cycle, s, T))
     if controller in ("pressure-switch", "position-switch") and not setpoints:
         v = verify(design, cycle, s, controllers=(controller,), limits=limits)
         setpoints = v.setpoints
+    if worn:
+        design = worn_design(design, s)
+    if design.bank is None:
+        return ControllerRun(**pump_only(design, cycle, s, T), worn=worn)
     plant = plant_for(design, cycle, s, T)
     ctrl = _make_controller(controller, design, cycle, s, setpoints or {})
     st = start_state(plant, start_oil(design, s, plant, ctrl), T, ctrl.initial_u())
     orbit = run_periodic(plant, ctrl, st)
-    run = ControllerRun(**assess(plant, orbit, controller, design, s, ctrl.setpoints(), limits))
+    fields = assess(plant, orbit, controller, design, s, ctrl.setpoints(), limits)
+    run = ControllerRun(**fields, worn=worn)
     if estimate_error:
         run = replace(run, integration_error=_estimate_error(plant, ctrl, orbit))
     return run
 
 
 # --------------------------------------------------------------------------- verify
+def worn_design(design: Design, settings: DesignSettings) -> Design:
+    """The design with its pump worn by the flow margin.
+
+    Wear is internal leakage: the delivery falls to catalogue × (1 − flow margin) while the
+    shaft power at a pressure stays as it was, so the volumetric and the overall efficiency
+    both fall by that factor.
+    """
+    keep = 1.0 - settings.flow_margin
+    pump = design.pump
+    worn = replace(
+        pump,
+        volumetric_efficiency=pump.volumetric_efficiency * keep,
+        overall_efficiency=pump.overall_efficiency * keep,
+    )
+    return replace(design, pump=worn)
+
+
+def switch_controller(
+    name: str, signal: str, on: float, off: float, settings: DesignSettings
+) -> HysteresisController:
+    """A hysteresis switch with stated settings ``on``/``off``; a pressure switch acts at
+    the low end of its repeatability (:meth:`DesignSettings.worst_setting`), the store's
+    worst case."""
+    if signal != "pressure" or settings.switch_tolerance == 0:
+        return HysteresisController(name, signal, on, off)
+    return HysteresisController(
+        name,
+        signal,
+        float(settings.worst_setting(on)),
+        float(settings.worst_setting(off)),
+        nominal=(on, off),
+    )
+
+
 class _Runner:
-    """Runs controllers at the operating temperatures, warm-starting from earlier runs."""
+    """Runs controllers at the operating temperatures, at catalogue and at worn pump flow,
+    warm-starting from earlier runs."""
 
     def __init__(self, design, cycle, settings, limits):
         self.design, self.cycle, self.s, self.limits = design, cycle, settings, limits
         temps = sorted({float(settings.t_min), float(settings.t_max)})
-        self.plants = {T: plant_for(design, cycle, settings, T) for T in temps}
+        wear = (False, True) if settings.flow_margin > 0 else (False,)
+        self.designs = {w: worn_design(design, settings) if w else design for w in wear}
+        #: (temperature [K], worn) → plant: every condition the design must pass.
+        self.plants = {
+            (T, w): plant_for(self.designs[w], cycle, settings, T) for w in wear for T in temps
+        }
         self.warm: dict = {}
         self.orbits: dict = {}
 
-    def run(self, name: str, ctrl, T: float, warm_key: str) -> ControllerRun:
-        plant = self.plants[T]
-        w = self.warm.get((warm_key, T))
+    def run(self, name: str, ctrl, cond: tuple[float, bool], warm_key: str) -> ControllerRun:
+        T, worn = cond
+        plant, design = self.plants[cond], self.designs[worn]
+        w = self.warm.get((warm_key, cond))
         if w is None:
-            S0 = start_oil(self.design, self.s, plant, ctrl)
+            S0 = start_oil(design, self.s, plant, ctrl)
             st, guess = start_state(plant, S0, T, ctrl.initial_u()), None
         else:
             st, guess = w
         orbit = run_periodic(plant, ctrl, st, guess)
-        self.warm[(warm_key, T)] = (orbit.end, orbit.records[-1].T)
-        fields = assess(plant, orbit, name, self.design, self.s, ctrl.setpoints(), self.limits)
-        run = ControllerRun(**fields)
+        self.warm[(warm_key, cond)] = (orbit.end, orbit.records[-1].T)
+        fields = assess(plant, orbit, name, design, self.s, ctrl.setpoints(), self.limits)
+        run = ControllerRun(**fields, worn=worn)
         self.orbits[id(run)] = (plant, ctrl, orbit)
         return run
 
     def switch(self, name, signal, search: SwitchSearch, report) -> tuple[list, list[str]]:
-        """Derive a hysteresis switch's load point; return its runs at every temperature."""
-        temps = list(self.plants)
+        """Derive a hysteresis switch's load point; return its runs in every condition."""
+        conds = list(self.plants)
 
         def evaluate(on: float):
-            ctrl = HysteresisController(name, signal, on, search.off)
+            ctrl = switch_controller(name, signal, on, search.off, self.s)
             runs = []
-            for T in temps:
+            for cond in conds:
                 report(f"{name}: trying load point {on:.6g}")
-                r = self.run(name, ctrl, T, name)
+                r = self.run(name, ctrl, cond, name)
                 runs.append(r)
                 if not limits_ok(
                     r.load_events_per_hour, r.min_loaded_dwell, r.min_unloaded_dwell, self.s
@@ -397,9 +458,9 @@ class _Runner:
             return True, runs
 
         on, runs, notes = derive_switch(search, evaluate)
-        done = {r.temperature for r in runs}
-        ctrl = HysteresisController(name, signal, on, search.off)
-        runs = list(runs) + [self.run(name, ctrl, T, name) for T in temps if T not in done]
+        done = {(r.temperature, r.worn) for r in runs}
+        ctrl = switch_controller(name, signal, on, search.off, self.s)
+        runs = list(runs) + [self.run(name, ctrl, c, name) for c in conds if c not in done]
         return runs, notes
 
 
@@ -462,9 +523,9 @@ def _schedule_runs(runner: _Runner, tick: _Progress, notes: list[str]) -> list[C
         return []
     ctrl = ScheduleController(f)
     runs = []
-    for T in runner.plants:
+    for cond in runner.plants:
         tick("schedule")
-        runs.append(runner.run("schedule", ctrl, T, "schedule"))
+        runs.append(runner.run("schedule", ctrl, cond, "schedule"))
     return runs
 
 
@@ -473,16 +534,16 @@ def _switch_runs(
 ) -> tuple[list[ControllerRun], dict]:
     """The hysteresis switches at every temperature, with the settings given or derived;
     returns the runs and the settings."""
-    design, temps = runner.design, list(runner.plants)
-    first_plant = runner.plants[temps[0]]
+    design, conds = runner.design, list(runner.plants)
+    first_plant = runner.plants[conds[0]]
     runs: list[ControllerRun] = []
     derived: dict = {}
     for name, signal, keys, make_search in _SWITCHES:
         if name not in wanted or (signal == "stroke" and not design.bank.option.has_piston):
             continue
         if all(k in given for k in keys):
-            ctrl = HysteresisController(name, signal, given[keys[0]], given[keys[1]])
-            sw_runs = [runner.run(name, ctrl, T, name) for T in temps]
+            ctrl = switch_controller(name, signal, given[keys[0]], given[keys[1]], runner.s)
+            sw_runs = [runner.run(name, ctrl, c, name) for c in conds]
             sw_notes = ["settings given, not derived"]
         else:
             search = make_search(design, runner.s, first_plant)
@@ -491,6 +552,39 @@ def _switch_runs(
         derived |= sw_runs[0].setpoints
         notes += [f"{name}: {n}" for n in sw_notes]
     return runs, derived
+
+
+#: How far a switch setting read back from design.json may lie from the one derived (it is
+#: written to 0.001 bar), [Pa].
+_SETTING_ROUNDING = 200.0
+
+
+def _check_switch_settings(runs: list, setpoints: dict, design: Design, s: DesignSettings) -> list:
+    """Add the pressure switch's static checks to its runs: the differential at least the
+    least a switch holds (:meth:`DesignSettings.switch_band`), and the unload setting at the
+    high end of its repeatability still below the relief setting."""
+    on, off = setpoints["load_below"], setpoints["unload_above"]
+    pa, fails = s.p_ambient, []
+    band = float(s.switch_band(off))
+    if off - on < band - _SETTING_ROUNDING:
+        fails.append(
+            f"pressure-switch differential {(off - on) / BAR:.3g} bar is narrower than the "
+            f"least {band / BAR:.3g} bar a switch holds (--switch-differential)"
+        )
+    high = pa + (1 + s.switch_tolerance) * (off - pa)
+    if high >= design.relief:
+        fails.append(
+            f"unload setting {bar_text(off, pa)} at +{s.switch_tolerance:.0%} repeatability "
+            f"reaches the relief setting {bar_text(design.relief, pa)}"
+        )
+    if not fails:
+        return runs
+    return [
+        replace(r, passed=False, failures=(*r.failures, *fails), reason=r.reason or fails[0])
+        if r.controller == "pressure-switch"
+        else r
+        for r in runs
+    ]
 
 
 def _bank_runs(
@@ -506,6 +600,8 @@ def _bank_runs(
     for i, r in enumerate(runs):
         plant, ctrl, orbit = runner.orbits[id(r)]
         runs[i] = replace(r, integration_error=_estimate_error(plant, ctrl, orbit))
+    if "load_below" in derived:
+        runs = _check_switch_settings(runs, derived, runner.design, runner.s)
     err = max(r.integration_error for r in runs)
     first_plant = next(iter(runner.plants.values()))
     notes.append(
@@ -609,7 +705,12 @@ def verify(
     ]
     if design.bank is None:
         temps = sorted({float(s.t_min), float(s.t_max)})
-        runs = [ControllerRun(**pump_only(design, cycle, s, T)) for T in temps]
+        wear = (False, True) if s.flow_margin > 0 else (False,)
+        runs = [
+            ControllerRun(**pump_only(worn_design(design, s) if w else design, cycle, s, T), worn=w)
+            for w in wear
+            for T in temps
+        ]
         derived: dict = {}
         notes.append("pump-only supply: always loaded against the relief valve (no switching)")
     else:

@@ -45,6 +45,12 @@ TEXTBOOK = DesignSettings(
     min_unloaded_dwell=0.0,
     max_load_events_per_hour=None,
     types=("bladder",),
+    # The hand-worked cases size the motor at the unload pressure with an ideal pressure
+    # switch (no differential, no tolerance: the store counts from the unload pressure); the
+    # defaults have their own hand case below and the brute force.
+    motor_sizing="working",
+    switch_differential=0.0,
+    switch_tolerance=0.0,
 )
 
 
@@ -132,6 +138,33 @@ def test_hand_worked_optimum(eta_motor):
     assert d.energy_per_cycle == pytest.approx(by_hand, rel=1e-9)
 
 
+def test_motor_sized_at_the_relief_setting_by_hand():
+    """The hand case above with the motor sized at the relief setting (the default).
+
+    Relief setting = unload + max(10 % of it, 5 bar) (gauge).  With 4 kW the 20 L/min pump
+    (η = 1) may see at most 4 kW / 20 L/min = 120 bar: the unload pressure u satisfies
+    1.1·u ≤ 120 bar, u ≤ 109.09 bar gauge, still above the 100 bar required, so 4 kW stays
+    the least installed power, and the shaft power at the relief setting stays within the
+    rating (common practice, no published source).
+    """
+    cat = Catalogue(
+        accumulators=(_bladder(10, 500), _bladder(20, 800), _bladder(40, 1300)),
+        pumps=(_pump(10, 100), _pump(20, 200), _pump(30, 300), _pump(70, 700)),
+        motors=tuple(_motor(k, 100 * k) for k in (2.2, 4, 5.5, 7.5, 11)),
+    )
+    flow = np.array([0, 0, 60, 0]) * LPM
+    cyc = cycle_from_arrays(10.0, flow, np.full(4, 100 * BAR + P_AMBIENT))
+    d = design(cyc, cat, TEXTBOOK.with_(motor_sizing="relief"))
+    assert d.status == "optimal" and d.motor.rated_power == pytest.approx(4e3)
+    assert d.pump.flow == pytest.approx(20 * LPM)
+    # The unload pressure may sit lower (the bladder's pressure ratio for the precharge
+    # chosen), never higher: its relief setting stays within the motor's 120 bar.
+    assert d.p_max <= 120 / 1.1 * BAR + P_AMBIENT + 1e-6
+    assert d.relief == pytest.approx(d.p_max + 0.1 * (d.p_max - P_AMBIENT), rel=1e-12)
+    shaft = d.pump.flow * (d.relief - P_AMBIENT) / d.pump.overall_efficiency
+    assert shaft <= d.motor.rated_power * (1 + 1e-9)
+
+
 # --------------------------------------------------------------------------- brute force
 
 
@@ -161,7 +194,10 @@ def _brute_force(cyc, cat: Catalogue, s: DesignSettings):
                     options.append((key, pump, motor, opt, count))
     options.sort(key=lambda o: o[0])
     for key, pump, motor, opt, count in options:
-        shaft_limit = s.p_ambient + motor.rated_power * pump.overall_efficiency / pump.flow
+        # The motor drives the pump at full flow at the unload pressure, or (the default
+        # motor sizing) at that pressure's relief setting: invert relief(u) ≤ p_motor.
+        p_motor = s.p_ambient + motor.rated_power * pump.overall_efficiency / pump.flow
+        shaft_limit = s.max_unload_for_relief(p_motor) if s.motor_sizing == "relief" else p_motor
         p_pump = s.max_unload_for_relief(pump.max_pressure)
         if opt is None:
             relief = s.relief_setting(p_end.max())
@@ -189,19 +225,30 @@ def _brute_force(cyc, cat: Catalogue, s: DesignSettings):
     return None
 
 
+def _load_point(s, p_max):
+    """Where a pressure switch loads the pump, at the low end of its repeatability, [Pa]:
+    the differential (a fraction of the cut-out gauge pressure, at least a stated minimum)
+    below the unload pressure, then the tolerance low (the store's worst case)."""
+    g = p_max - s.p_ambient
+    band = max(s.switch_differential * g, s.switch_differential_min)
+    return s.p_ambient + (1 - s.switch_tolerance) * (g - band)
+
+
 def _store_model(problem, s, v0, p0, p_max, t_k, p_end, floor, proc):
-    """(need per step, top) [m³] of a bank, and its gas's heating factor [-]: with the
-    ``auto`` process the store is charged at rest and discharged from the switch's load
-    point and the gas a refill warmed withholds oil (stowflow.search.store's store model);
-    otherwise the gas follows ``proc`` from the precharge."""
+    """(need per step, top) [m³] of a bank, and its gas's heating factor [-].  A switched
+    store is sure to hold only the oil of the switch's load point when a draw begins (top);
+    with the ``auto`` process it is charged at rest and discharged from there and the gas a
+    refill warmed withholds oil (stowflow.search.store's store model); otherwise the gas
+    follows ``proc`` from the precharge."""
+    p_load = _load_point(s, p_max)
     if s.process != "auto":
         need = v0 * gas.oil_fraction(np.maximum(p_end, floor), p0, t_k, proc, s.gas_model)
-        top = v0 * float(gas.oil_fraction(p_max, p0, t_k, proc, s.gas_model))
+        top = v0 * float(gas.oil_fraction(p_load, p0, t_k, proc, s.gas_model))
         return need, top, 0.0
-    from stowflow.search.store import charge_heating, stored_fraction, top_pressure
+    from stowflow.search.store import charge_heating, stored_fraction
 
-    need = v0 * stored_fraction(problem, np.maximum(p_end, floor), p0, t_k, top_pressure(s, p_max))
-    top = v0 * float(gas.oil_fraction(p_max, p0, t_k, "isothermal", s.gas_model))
+    need = v0 * stored_fraction(problem, np.maximum(p_end, floor), p0, t_k, p_load)
+    top = v0 * float(gas.oil_fraction(p_load, p0, t_k, "isothermal", s.gas_model))
     return need, top, float(charge_heating(problem, p_max, t_k))
 
 

@@ -551,8 +551,15 @@ def test_heat_exchange_failure_gives_a_shortfall_whose_redesign_passes():
     # falls below the isothermal estimate.  The shortfall names those steps; raising their
     # requirement by it plus 0.5 bar (as the pipeline does) gives a design that passes.
     cat = parse_catalogue_text(_AGREE_CATALOGUE)
+    # An ideal pressure switch (no differential, no tolerance): the heat exchange alone.
     s = DesignSettings(
-        process="isothermal", time_constant=30.0, allow_pump_only=False, t_min=T_REF, t_max=T_REF
+        process="isothermal",
+        time_constant=30.0,
+        allow_pump_only=False,
+        t_min=T_REF,
+        t_max=T_REF,
+        switch_differential=0.0,
+        switch_tolerance=0.0,
     )
     flow = np.concatenate([np.full(10, 120.0), np.zeros(90)]) * LPM  # 1 s shot, 9 s rest
     req = np.full(flow.size, 100 * BAR + P_AMBIENT)
@@ -616,7 +623,7 @@ def test_pump_only_design_holds_the_relief_setting():
 
 # --------------------------------------------------------------------------- switches
 def test_hysteresis_switches_at_its_thresholds():
-    s = DesignSettings()
+    s = DesignSettings(switch_tolerance=0.0)
     d = _toy_design()
     c = _press_cycle()
     on, off = 150 * BAR + P_AMBIENT, 190 * BAR + P_AMBIENT
@@ -630,6 +637,47 @@ def test_hysteresis_switches_at_its_thresholds():
     # Unloaded steps (fully) never start below the load point.
     p_start = np.concatenate(([tr["pressure [Pa]"].iloc[-1]], tr["pressure [Pa]"].iloc[:-1]))
     assert np.all(p_start[loaded == 0] > on - 0.05 * BAR)
+
+
+def test_pressure_switch_acts_at_the_low_end_of_its_repeatability():
+    # ±1 % repeatability (from memory): the verification runs the switch with both settings
+    # 1 % of their gauge value low, the store's worst case, and reports the stated settings.
+    s = DesignSettings(switch_tolerance=0.01)
+    d, c = _toy_design(), _press_cycle()
+    on, off = 150 * BAR + P_AMBIENT, 190 * BAR + P_AMBIENT
+    run = simulate(
+        d, c, s, "pressure-switch", s.t_min, setpoints={"load_below": on, "unload_above": off}
+    )
+    assert run.trace["pressure_max [Pa]"].max() == pytest.approx(
+        P_AMBIENT + 0.99 * 190 * BAR, abs=0.05 * BAR
+    )
+    assert run.setpoints == {"load_below": on, "unload_above": off}
+
+
+def test_a_switch_narrower_than_the_differential_fails_with_the_reason():
+    d, c = _toy_design(), _press_cycle()
+    sp = {"load_below": 185 * BAR + P_AMBIENT, "unload_above": 190 * BAR + P_AMBIENT}
+    v = verify(d, c, DesignSettings(), controllers=("pressure-switch",), setpoints=sp)
+    assert not v.passed
+    assert any(
+        "narrower than the least 19 bar a switch holds" in f for r in v.runs for f in r.failures
+    )
+
+
+def test_worn_pump_runs_beside_the_catalogue_runs():
+    # Flow margin 10 %: every controller runs at catalogue flow and at 90 % of it, at both
+    # temperature ends; the worn pump's delivery is 0.9 × the catalogue's.
+    d, c = _toy_design(), _press_cycle()
+    s = DesignSettings()
+    v = verify(d, c, s, controllers=("pressure-switch",))
+    conds = sorted((r.temperature, r.worn) for r in v.runs)
+    assert conds == sorted((t, w) for t in (s.t_min, s.t_max) for w in (False, True))
+    flows = {r.worn: r.trace["pump_flow [m³/s]"].max() for r in v.runs}
+    assert flows[True] == pytest.approx(0.9 * d.pump.flow, rel=1e-9)
+    assert flows[False] == pytest.approx(d.pump.flow, rel=1e-9)
+    # Without a flow margin there is nothing to wear: catalogue flow only.
+    v0 = verify(d, c, s.with_(flow_margin=0.0), controllers=("pressure-switch",))
+    assert not any(r.worn for r in v0.runs)
 
 
 def test_position_switch_needs_a_piston():
@@ -661,80 +709,52 @@ def test_position_switch_on_a_piston_bank():
     assert oil.max() <= sp["unload_above_stroke"] + 1e-3
 
 
-#: What the derived pressure switch gives on the first design of each demo cycle (before the
-#: pipeline tightens anything).  test_rig_pulse repeats every 4 s, 900 times an hour: its first
-#: design leaves a pressure switch no band that keeps 360 load events an hour, so the widest
-#: band is reported failing, with a pressure shortfall the pipeline raises the requirement by.
-DEMO_SWITCH_PASSES = {
-    "die_casting_shot": True,
+#: Whether the first design of each demo cycle passes the verification as it stands (before the
+#: pipeline raises anything): a regression record of how well the search's store model
+#: foresees the pressure switch.  With a 10 % switch differential the die-casting shot and the
+#: injection moulder fall 1-2 bar short at the cold end at first, and one raise cures that;
+#: the test rig (900 cycles an hour) passes at once with the pump kept loaded.
+DEMO_FIRST_PASS = {
+    "die_casting_shot": False,
     "forming_press": True,
-    "injection_moulding": True,
-    "test_rig_pulse": False,
+    "injection_moulding": False,
+    "test_rig_pulse": True,
 }
 
 
 @pytest.mark.slow
-@pytest.mark.parametrize("name", sorted(DEMO_SWITCH_PASSES))
+@pytest.mark.parametrize("name", sorted(DEMO_FIRST_PASS))
 def test_pressure_switch_rule_on_the_demo_cycles(repo_root, name):
     # The derived pressure switch on the stowflow's design of each demo cycle:
     # * unload at the design's maximum working pressure (capped by the motor's rating);
-    # * load at the highest point that keeps the switching limits at both temperatures: one
-    #   bisection step higher breaks them; the design then passes at both temperatures;
-    # * when even the widest band (load at the highest requirement) breaks them, that widest
-    #   band is reported as failing with a usable shortfall, and the pipeline's tightening
-    #   (raise the requirement by the shortfall, design again) ends with a passing design.
+    # * a differential of at least 10 % of the cut-out gauge pressure (the default
+    #   --switch-differential, common practice, from memory);
+    # * the pipeline's closed loop ends with a design whose recommended controller passes at
+    #   both temperature ends, at catalogue and at worn pump flow.
     from stowflow.catalogue import default_catalogue_path, load_catalogue
     from stowflow.cycle.duty import load_cycle
     from stowflow.pipeline import Study, run
-    from stowflow.simulation._assess import limits_ok
-    from stowflow.simulation._setup import plant_for, pressure_search
 
     path = repo_root / "duty_cycles" / f"{name}.csv"
     c = load_cycle(path)
     s = DesignSettings()
     d = design(c, load_catalogue(default_catalogue_path()), s)
     assert d.feasible and d.bank is not None
-    v = verify(d, c, s, controllers=("pressure-switch",))
+    v = verify(d, c, s)
     on, off = v.setpoints["load_below"], v.setpoints["unload_above"]
     motor = P_AMBIENT + d.motor.rated_power * d.pump.overall_efficiency / d.pump.flow
     assert off == pytest.approx(min(d.p_max, motor), rel=1e-12)
+    assert off - on >= 0.10 * (off - P_AMBIENT) * (1 - 1e-9)
     assert on < off < d.relief
-    runs = [v.run("pressure-switch", "cold"), v.run("pressure-switch", "hot")]
-
-    def keeps(r):
-        return limits_ok(r.load_events_per_hour, r.min_loaded_dwell, r.min_unloaded_dwell, s)
-
-    widest = float(np.max(c.pressure)) + s.line_loss
-    if DEMO_SWITCH_PASSES[name]:
-        assert all(keeps(r) for r in runs)
-        assert all(r.load_events_per_hour <= s.max_load_events_per_hour for r in runs)
-        assert all(min(r.min_loaded_dwell, r.min_unloaded_dwell) >= 1.0 for r in runs)
-        search = pressure_search(d, s, plant_for(d, c, s, s.t_min))
-        if on < search.highest:
-            higher = verify(
-                d,
-                c,
-                s,
-                controllers=("pressure-switch",),
-                setpoints={
-                    "load_below": min(on + 1.01 * search.resolution, search.highest),
-                    "unload_above": off,
-                },
-            )
-            assert not all(keeps(r) for r in higher.runs)
-        assert all(r.min_margin >= 0 and r.passed for r in runs)
-        assert v.passed
-    else:
-        assert on == pytest.approx(widest, rel=1e-12)
-        assert not v.passed
-        assert not any(keeps(r) for r in runs)
-        assert all(
-            any("load events per hour exceed the limit 360/h" in f for f in r.failures)
-            for r in runs
-        )
-        assert v.shortfall is not None and np.any(v.shortfall > 0)
-        res = run(Study(cycle=path))
-        assert len(res.attempts) > 1 and res.verification.passed
+    assert v.passed == DEMO_FIRST_PASS[name], v.reason
+    res = run(Study(cycle=path))
+    final = res.verification
+    assert final.passed
+    mine = [r for r in final.runs if r.controller == final.controller]
+    assert {(r.temperature, r.worn) for r in mine} == {
+        (t, w) for t in (s.t_min, s.t_max) for w in (False, True)
+    }
+    assert all(r.passed and r.min_margin >= 0 for r in mine)
     # (its run time is measured by tests/benchmarks/bench_simulate.py, not asserted here)
 
 
