@@ -907,6 +907,7 @@ def size(
     absolute: bool = False,
     max_allowable_pressure: str | float | None = None,
     types: Iterable[str] | None = None,
+    charge: str = "slow",
 ) -> pd.Series:
     """Size an accumulator for one oil volume and pressure window, as ``stowflow size`` does.
 
@@ -926,8 +927,8 @@ def size(
     temperature : str, float or tuple of float
         Operating temperatures: ``"10..50"`` or ``"20"`` in °C, or one or two values in [K].
     process : str
-        ``"adiabatic"`` (default, the conservative choice for fast strokes),
-        ``"isothermal"`` or ``"polytropic:N"``.
+        The process of the discharge: ``"adiabatic"`` (default, a fast discharge of a gas at
+        rest), ``"isothermal"`` or ``"polytropic:N"``.
     gas : str
         Nitrogen model, ``"real"`` (Span et al. 2000 EOS) or ``"ideal"``.
     absolute : bool
@@ -937,6 +938,10 @@ def size(
         pressure-equipment category hint.
     types : iterable of str, optional
         Accumulator types to consider (default: all).
+    charge : str
+        ``"slow"`` (default: the pump charges the gas to the maximum pressure at rest at the
+        oil temperature, isothermal, the usual duty and the one :func:`design` models) or
+        ``"fast"`` (the charge follows ``process`` from the precharge like the discharge).
 
     Returns
     -------
@@ -945,7 +950,7 @@ def size(
         ``precharge_bar`` (gauge at 20 °C), ``precharge_by_rule``, ``worst_temperature_c``,
         ``shell_volume_l``, ``oil_volume_l``, ``min_pressure_bar``, ``max_pressure_bar``
         (gauge), ``temperature_min_c``, ``temperature_max_c``, ``gas_model``, ``process``,
-        ``polytropic_index``, ``admissible_types`` (comma-separated), and with PS
+        ``polytropic_index``, ``charge``, ``admissible_types`` (comma-separated), and with PS
         ``pressure_equipment_category``.
 
     Raises
@@ -960,10 +965,10 @@ def size(
     >>> import stowflow
     >>> s = stowflow.size("5L", "100bar", "200bar", temperature="10..50")
     >>> s["governing_type"], round(s["required_gas_volume_l"], 1), s["admissible_types"]
-    ('piston', 17.0, 'bladder, diaphragm, piston, piston-bottles')
+    ('piston', 25.9, 'bladder, diaphragm, piston, piston-bottles')
     >>> si = stowflow.size(5e-3, 100e5, 200e5, temperature=(283.15, 323.15))  # m³, Pa, K
     >>> round(si["required_gas_volume_l"], 1)
-    17.0
+    25.9
     """
     from stowflow.duties.sizing import size_accumulator
     from stowflow.io.quantities import parse_temperature_range
@@ -991,6 +996,7 @@ def size(
         T_max=t_max,
         types=list(types) if types is not None else None,
         max_allowable_pressure=None if ps is None else gauge_to_abs(ps),
+        charge=charge,
     )
     return _sizing_series(result)
 
@@ -1015,6 +1021,7 @@ def _sizing_series(result) -> pd.Series:
         "gas_model": d["gas_model"],
         "process": d["process"],
         "polytropic_index": d["polytropic_index"],
+        "charge": d["charge"],
         "admissible_types": ", ".join(d["admissible_types"]),
     }
     if d["pressure_equipment"] is not None:

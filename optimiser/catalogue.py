@@ -8,7 +8,7 @@ The catalogue is a TOML file with one table per purchasable item (see DESIGN.md)
 
     [[accumulator]]
     type = "bladder"            # bladder | diaphragm | piston | piston-bottles | gas-over-oil
-    nominal_volume_l = 10       # gas volume at precharge, L
+    nominal_volume_l = 10       # gas volume at precharge (gas-over-oil: the vessel), L
     max_pressure_bar = 330      # maximum allowable pressure PS, bar gauge
     price = 1200
     max_flow_lps = 20           # optional: discharge limit of one unit, L/s
@@ -88,7 +88,9 @@ class AccumulatorOption:
     type : str
         One of :data:`ACCUMULATOR_TYPES`.
     nominal_volume : float
-        Gas volume at precharge (for ``piston-bottles`` including the bottles), [m³].
+        Gas volume at precharge (for ``piston-bottles`` including the bottles); for
+        ``gas-over-oil`` the vessel's volume, of which the gas fills
+        :func:`stowflow.physics.accumulator.gas_share`, [m³].
     max_pressure : float
         Maximum allowable pressure PS, **absolute**, [Pa].
     bore : float

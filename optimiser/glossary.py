@@ -112,7 +112,8 @@ _TERMS = (
         "L",
         "m³",
         "volume",
-        "Gas-side volume of an accumulator at precharge (its nominal size).",
+        "Gas-side volume of an accumulator at precharge (its nominal size); for gas-over-oil "
+        "the vessel's volume, whose residual oil (10 % by default) never leaves.",
         (0.01, 5_000.0),
     ),
     Term(

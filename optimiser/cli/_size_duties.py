@@ -38,7 +38,7 @@ DUTIES: tuple[str, ...] = ("storage", "reserve", "shock", "thermal")
 
 # Option destinations each duty owns (None default means "not given").
 _OWN: dict[str, tuple[str, ...]] = {
-    "storage": ("volume", "min_pressure", "max_pressure"),
+    "storage": ("volume", "min_pressure", "max_pressure", "charge"),
     "reserve": ("motions", "motion", "charge_pressure", "leakage", "standby"),
     "shock": (
         "pipe_length",

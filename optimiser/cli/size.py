@@ -52,6 +52,15 @@ example:
 
 Pressures are gauge unless --absolute is given; PS is always gauge (as on the nameplate).
 The precharge is stated at 20 °C. Type limits are common practice, no published source.
+
+Storage models the usual duty, the one `stowflow design` models: the pump charges the
+accumulator slowly, so the gas reaches p2 at rest at the oil temperature (isothermal), and the
+machine draws the oil fast, the gas following --process from p2 down to p1 (adiabatic by
+default). Ideal gas, polytropic index n:  V0 = dV / ((p0/p2)·((p2/p1)^(1/n) − 1)).  This
+needs more gas than compressing along the same adiabat from the precharge (about 16 % more
+for 126 bar precharge, 140 → 210 bar): the gas at rest at p2 is cooler and smaller, so the
+same expansion gives back less oil. --charge fast keeps that older model, both strokes along
+--process from the precharge, for a charge as fast as the discharge.
 Oil and steel defaults are from memory (see optimiser/duties/properties.py).
 """
 
@@ -115,8 +124,16 @@ def add_condition_options(parser: argparse.ArgumentParser) -> None:
     g.add_argument(
         "--process",
         metavar="PROC",
-        help="storage, reserve: isothermal | adiabatic | polytropic:N (default adiabatic, the "
-        "conservative choice for fast strokes)",
+        help="storage, reserve: the process of the discharge: isothermal | adiabatic | "
+        "polytropic:N (default adiabatic: a fast discharge of a gas at rest; storage charges "
+        "it slowly, isothermal, unless --charge fast)",
+    )
+    g.add_argument(
+        "--charge",
+        choices=("slow", "fast"),
+        help="storage: slow (default: the pump charges the gas to p2 at rest at the oil "
+        "temperature, the usual duty and the one `stowflow design` models) or fast (the "
+        "charge follows --process from the precharge like the discharge)",
     )
     g.add_argument(
         "--gas",
@@ -165,6 +182,7 @@ def storage_inputs(args: argparse.Namespace) -> dict:
         "model": args.gas,
         "T_min": t_min,
         "T_max": t_max,
+        "charge": args.charge or "slow",
     }
     if args.ps is not None:
         kwargs["max_allowable_pressure"] = parse_pressure(args.ps, "--ps")
@@ -192,6 +210,10 @@ def run(args: argparse.Namespace) -> int:
     return 0
 
 
+#: How the human table names the charge.
+_CHARGE_TEXT = {"slow": "slow (isothermal)", "fast": "fast (along the process)"}
+
+
 def _fmt(x: float, digits: int = 4) -> str:
     return f"{x:.{digits}g}"
 
@@ -203,7 +225,11 @@ def _print_human(result, data: dict) -> None:
         ("oil volume to exchange", _fmt(data["oil_volume_l"]), "L"),
         ("minimum working pressure p1", bar(result.p_min), "bar gauge"),
         ("maximum working pressure p2", bar(result.p_max), "bar gauge"),
-        ("gas model / process", f"{data['gas_model']} / {result.process}", ""),
+        (
+            "gas model / charge / discharge",
+            f"{data['gas_model']} / {_CHARGE_TEXT[result.charge]} / {result.process}",
+            "",
+        ),
         (
             "temperature range",
             f"{data['temperature_c']['min']:g} … {data['temperature_c']['max']:g}",
@@ -229,6 +255,7 @@ def _print_human(result, data: dict) -> None:
         "exchange [L]",
         "V0 needed [L]",
         "gas T at p2 [°C]",
+        "gas T at p1 [°C]",
     )
     keys = (
         "temperature_c",
@@ -238,6 +265,7 @@ def _print_human(result, data: dict) -> None:
         "oil_exchange_l",
         "required_gas_volume_l",
         "gas_temperature_at_max_pressure_c",
+        "gas_temperature_at_min_pressure_c",
     )
     table = [[_fmt(r[k]) for k in keys] for r in data["temperatures"]]
     print_table(

@@ -1,17 +1,32 @@
 """Single-point sizing: the gas volume that exchanges a given oil volume across the temperatures.
 
 For a precharge :math:`p_{0,ref}` at 20 °C, the oil fraction stored at pressure p and operating
-temperature T is :math:`f(p, T) = 1 - V/V_0` (:func:`stowflow.physics.gas.oil_fraction`).  The gas
-volume that exchanges the oil volume ΔV between the minimum and maximum working pressures is
+temperature T is :math:`f(p, T) = 1 - V/V_0`.  The gas volume that exchanges the oil volume ΔV
+between the minimum and maximum working pressures is
 
 .. math::
     V_0 = \\max_{T \\in [T_{min}, T_{max}]}
           \\frac{\\Delta V}{f(p_{max}, T) - f(p_{min}, T)}
 
-which for the ideal gas and the polytropic process is the textbook law
-:math:`\\Delta V = V_0 [(p_0/p_1)^{1/n} - (p_0/p_2)^{1/n}]` with :math:`p_0 = p_0(T)`.  The cold
-end lowers the precharge (and so the stored oil); the hot end raises it towards the minimum
-working pressure (the precharge rule).  Every type's limits are checked
+The default duty (``charge="slow"``) is the usual one and the one ``stowflow design`` models:
+the pump charges the accumulator slowly, so the gas reaches :math:`p_2` at rest at the wall
+temperature (isothermal, :func:`stowflow.physics.gas.oil_fraction`), and the machine then
+draws the oil fast, the gas following the chosen process from :math:`p_2` down to
+:math:`p_1` (:func:`stowflow.physics.gas.expansion_ratio`).  For the ideal gas and a
+polytropic discharge:
+
+.. math::
+    \\Delta V = V_0 \\frac{p_0}{p_2}\\Big[\\Big(\\frac{p_2}{p_1}\\Big)^{1/n} - 1\\Big]
+            = V_0 \\Big[\\Big(\\frac{p_0}{p_1}\\Big)^{1/n}
+              \\Big(\\frac{p_0}{p_2}\\Big)^{1 - 1/n} - \\frac{p_0}{p_2}\\Big]
+
+with :math:`p_0 = p_0(T)`.  An adiabatic discharge gives back less oil than Boyle's law, and
+less than a gas compressed along the same adiabat from the precharge would (that gas is hot
+and larger at :math:`p_2`): ``charge="fast"`` keeps that model, both strokes along the process
+from the precharge, the textbook law :math:`\\Delta V = V_0 [(p_0/p_1)^{1/n} - (p_0/p_2)^{1/n}]`,
+for duties whose charge is as fast as their discharge.  The cold end lowers the precharge (and
+so the stored oil); the hot end raises it towards the minimum working pressure (the precharge
+rule).  Every type's limits are checked
 (:func:`stowflow.physics.accumulator.check_limits`).  Without a given precharge each type gets the
 highest precharge its rule allows at the hottest temperature.
 
@@ -27,6 +42,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import NamedTuple
 
 import numpy as np
 from stowflow.errors import SizingError
@@ -42,17 +58,26 @@ from stowflow.physics.accumulator import (
     shell_volume,
 )
 from stowflow.physics.gas import (
+    ISOTHERMAL,
     Process,
+    density,
     end_temperature,
+    expansion_ratio,
+    gas_volume_ratio,
     oil_fraction,
     parse_process,
     precharge_at,
     reference_precharge,
+    temperature_from_density,
 )
 from stowflow.units import P_AMBIENT, T_REF, bar_gauge, kelvin_to_celsius, to_unit
 
-__all__ = ["SizingResult", "TypeSizing", "size_accumulator"]
+__all__ = ["CHARGES", "SizingResult", "TypeSizing", "size_accumulator"]
 
+#: How the accumulator is charged: ``slow`` (the pump fills it, the gas reaches the maximum
+#: working pressure at rest at the wall temperature; the usual duty) or ``fast`` (the charge
+#: follows the process from the precharge like the discharge), [-].
+CHARGES: tuple[str, ...] = ("slow", "fast")
 #: Temperatures evaluated across the range (plus 20 °C when inside it), [-].
 N_TEMPERATURES = 21
 _GOLDEN = (math.sqrt(5.0) - 1.0) / 2.0
@@ -87,7 +112,10 @@ class TypeSizing:
     fraction_at_min, fraction_at_max : numpy.ndarray
         Oil fraction stored at p_min and p_max at each temperature, [-].
     gas_temperature_at_max : numpy.ndarray
-        Gas temperature at p_max after the process from each temperature, [K].
+        Gas temperature at p_max at each temperature, [K]: the wall temperature after a slow
+        charge, the end of the process from the precharge after a fast one.
+    gas_temperature_at_min : numpy.ndarray
+        Gas temperature at p_min after the discharge along the process, [K].
     required_at_T : numpy.ndarray
         Gas volume that each temperature alone would need, [m³].
     violations : tuple of Violation
@@ -107,6 +135,7 @@ class TypeSizing:
     fraction_at_min: np.ndarray = field(repr=False)
     fraction_at_max: np.ndarray = field(repr=False)
     gas_temperature_at_max: np.ndarray = field(repr=False)
+    gas_temperature_at_min: np.ndarray = field(repr=False)
     required_at_T: np.ndarray = field(repr=False)
     violations: tuple[Violation, ...] = ()
     notes: tuple[str, ...] = ()
@@ -128,13 +157,15 @@ class TypeSizing:
                 "oil_exchange_l": _litre(v0 * float(fmax - fmin)),
                 "required_gas_volume_l": _litre(float(need)),
                 "gas_temperature_at_max_pressure_c": kelvin_to_celsius(float(tg)),
+                "gas_temperature_at_min_pressure_c": kelvin_to_celsius(float(tg1)),
             }
-            for t, p0, fmin, fmax, tg, need in zip(
+            for t, p0, fmin, fmax, tg, tg1, need in zip(
                 self.temperatures,
                 self.precharge_at_T,
                 self.fraction_at_min,
                 self.fraction_at_max,
                 self.gas_temperature_at_max,
+                self.gas_temperature_at_min,
                 self.required_at_T,
                 strict=True,
             )
@@ -167,9 +198,12 @@ class SizingResult:
     T_min, T_max : float
         Operating temperature range, [K].
     process : Process
-        Gas process.
+        Gas process of the discharge (and of the charge when ``charge`` is ``"fast"``).
     model : str
         Gas model, ``"real"`` or ``"ideal"``.
+    charge : str
+        ``"slow"`` (isothermal charge) or ``"fast"`` (charge along the process), see
+        :data:`CHARGES`.
     precharge : float or None
         Given precharge at 20 °C, absolute, [Pa]; None when set by each type's rule.
     max_allowable_pressure : float or None
@@ -187,6 +221,7 @@ class SizingResult:
     T_max: float
     process: Process
     model: str
+    charge: str
     precharge: float | None
     max_allowable_pressure: float | None
     cases: tuple[TypeSizing, ...]
@@ -229,6 +264,7 @@ class SizingResult:
             "gas_model": self.model,
             "process": self.process.kind,
             "polytropic_index": None if real_isentrope else self.process.n,
+            "charge": self.charge,
             "temperature_c": {
                 "min": kelvin_to_celsius(self.T_min),
                 "max": kelvin_to_celsius(self.T_max),
@@ -306,16 +342,53 @@ def _worst(df_of_T, ts: np.ndarray, df: np.ndarray) -> tuple[float, float]:
     return (t_best, f_best) if f_best < df[k] else (float(ts[k]), float(df[k]))
 
 
-def _physics(p0_ref: float, ctx: tuple) -> dict:
+class _Duty(NamedTuple):
+    """The duty every type is sized for (SI, absolute pressures)."""
+
+    oil_volume: float
+    p_min: float
+    p_max: float
+    T_min: float
+    T_max: float
+    process: Process
+    model: str
+    ps: float | None
+    charge: str
+
+
+def _fractions(p_min: float, p_max: float, p0_ref: float, T, ctx: _Duty) -> tuple:
+    """Oil fractions at p_min and p_max and gas temperatures there [K], broadcast over T.
+
+    Slow charge: the gas is charged at rest to p_max at T (the isotherm), then discharged
+    along the process (:func:`stowflow.physics.gas.expansion_ratio`), never beyond V0.  Fast
+    charge: both pressures on the process from the precharge.
+    """
+    proc, model = ctx.process, ctx.model
+    if ctx.charge == "fast":
+        f = oil_fraction(np.array([[p_min], [p_max]]), p0_ref, T, proc, model)
+        t = end_temperature(np.array([[p_min], [p_max]]), p0_ref, T, proc, model)
+        return f[0], f[1], t[0], t[1]
+    T = np.asarray(T, float)
+    v_top = np.asarray(gas_volume_ratio(p_max, p0_ref, T, ISOTHERMAL, model), float)
+    r = np.asarray(expansion_ratio(p_min, p_max, T, proc, model), float)
+    v_low = np.minimum(v_top * r, 1.0)
+    rho_low = np.asarray(density(p_max, T, model), float) / r
+    t_low = np.asarray(temperature_from_density(rho_low, p_min, model), float)
+    return 1.0 - v_low, 1.0 - v_top, t_low, np.broadcast_to(T, v_top.shape)
+
+
+def _physics(p0_ref: float, ctx: _Duty) -> dict:
     """Fractions, worst temperature and V0 for one precharge (shared by the types)."""
-    oil_volume, p_min, p_max, T_min, T_max, proc, model, _ = ctx
+    oil_volume, p_min, p_max, T_min, T_max = ctx[:5]
+    model = ctx.model
     ts = _temperature_grid(T_min, T_max)
-    f = oil_fraction(np.array([[p_min], [p_max]]), p0_ref, ts[None, :], proc, model)
-    fmin, fmax = np.atleast_1d(f[0]), np.atleast_1d(f[1])
+    fmin, fmax, t_min_gas, t_max_gas = (
+        np.atleast_1d(np.asarray(a, float)) for a in _fractions(p_min, p_max, p0_ref, ts, ctx)
+    )
 
     def df_of_T(t):
-        pair = oil_fraction(np.array([p_min, p_max]), p0_ref, t, proc, model)
-        return float(pair[1] - pair[0])
+        f1, f2, _, _ = _fractions(p_min, p_max, p0_ref, t, ctx)
+        return float(f2 - f1)
 
     t_worst, df_worst = _worst(df_of_T, ts, fmax - fmin)
     if not df_worst > 0:
@@ -335,12 +408,14 @@ def _physics(p0_ref: float, ctx: tuple) -> dict:
         "required_gas_volume": float(oil_volume / df_worst),
         "required_at_T": need,
         "precharge_at_T": np.atleast_1d(precharge_at(p0_ref, ts, model)),
-        "gas_temperature_at_max": np.atleast_1d(end_temperature(p_max, p0_ref, ts, proc, model)),
+        "gas_temperature_at_max": t_max_gas.copy(),
+        "gas_temperature_at_min": t_min_gas,
     }
 
 
-def _size_one(acc_type, p0_ref, by_rule, rules, phys, ctx) -> TypeSizing:
-    _, p_min, p_max, T_min, T_max, _, model, ps = ctx
+def _size_one(acc_type, p0_ref, by_rule, rules, phys, ctx: _Duty) -> TypeSizing:
+    _, p_min, p_max, T_min, T_max = ctx[:5]
+    model, ps = ctx.model, ctx.ps
     violations = tuple(
         check_limits(
             acc_type,
@@ -388,11 +463,16 @@ def size_accumulator(
     types: list[str] | None = None,
     overrides: dict[str, dict] | None = None,
     max_allowable_pressure: float | None = None,
+    charge: str = "slow",
 ) -> SizingResult:
     """Gas volume, precharge and admissible types for one energy-storage duty.
 
     .. math::
         V_0 = \\max_T \\frac{\\Delta V}{f(p_{max}, T) - f(p_{min}, T)}
+
+    By default (``charge="slow"``) the pump charges the accumulator slowly, so the gas sits at
+    p_max at the wall temperature (isothermal), and the machine draws the oil along
+    ``process``: the usual duty, and the one ``stowflow design`` models.
 
     Parameters
     ----------
@@ -404,7 +484,8 @@ def size_accumulator(
         Precharge at 20 °C, absolute, [Pa]; by default each type's rule sets it at the
         hottest temperature.
     process : Process or str
-        Gas process (``"isothermal"``, ``"adiabatic"``, ``"polytropic:1.3"``).
+        Gas process of the discharge (``"adiabatic"``: a fast one; ``"isothermal"``,
+        ``"polytropic:1.3"``), and of the charge too when ``charge="fast"``.
     model : {"real", "ideal"}
         Gas model.
     T_min : float
@@ -418,6 +499,10 @@ def size_accumulator(
         :func:`stowflow.physics.accumulator.rules_for`).
     max_allowable_pressure : float, optional
         Vessel PS, absolute, [Pa]: checked, and used for the category hint.
+    charge : {"slow", "fast"}
+        ``"slow"``: isothermal charge to p_max, then the discharge along ``process``;
+        ``"fast"``: both strokes along ``process`` from the precharge (a charge as fast as
+        the discharge).
 
     Returns
     -------
@@ -429,14 +514,17 @@ def size_accumulator(
     ------
     SizingError
         Impossible input (precharge ≥ p_min, p_max ≤ p_min, ΔV ≤ 0, pressures not above
-        ambient) or no type admissible (the message gives every type's reason).
+        ambient, an unknown charge) or no type admissible (the message gives every type's
+        reason).
     """
     T_max = T_min if T_max is None else T_max
+    if charge not in CHARGES:
+        raise SizingError(f"charge '{charge}' is unknown; use one of {', '.join(CHARGES)}")
     _validate(oil_volume, p_min, p_max, precharge, T_min, T_max)
     proc = parse_process(process)
     chosen = [parse_type(t) for t in types] if types else list(AccumulatorType)
     overrides = overrides or {}
-    ctx = (oil_volume, p_min, p_max, T_min, T_max, proc, model, max_allowable_pressure)
+    ctx = _Duty(oil_volume, p_min, p_max, T_min, T_max, proc, model, max_allowable_pressure, charge)
     cases, cache = [], {}
     for t in chosen:
         rules: TypeRules = rules_for(t, overrides.get(t.value))
@@ -465,6 +553,7 @@ def size_accumulator(
         T_max=float(T_max),
         process=proc,
         model=model,
+        charge=charge,
         precharge=None if precharge is None else float(precharge),
         max_allowable_pressure=max_allowable_pressure,
         cases=tuple(cases),

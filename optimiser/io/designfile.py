@@ -25,6 +25,7 @@ from stowflow.catalogue import (
     PumpOption,
 )
 from stowflow.errors import DesignFileError
+from stowflow.physics.accumulator import rules_for
 from stowflow.search.settings import DesignSettings
 from stowflow.search.solution import Bank, Design
 from stowflow.units import celsius_to_kelvin, si_factor, to_unit
@@ -222,7 +223,8 @@ def _read_bank(r: _Reader, catalogue: Catalogue, notes: list) -> tuple:
                 "accumulator not in the catalogue: built from design.json"
                 + (" (no PS given: not checked)" if ps is None else "")
             )
-        bank = Bank(opt, int(count), p0)
+        rules = rules_for(typ, (catalogue.limits or {}).get(typ))
+        bank = Bank(opt, int(count), p0, rules)
     return bank, p_min, p_max
 
 

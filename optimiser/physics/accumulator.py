@@ -42,9 +42,11 @@ __all__ = [
     "TypeRules",
     "Violation",
     "check_limits",
+    "gas_share",
     "max_precharge_for_min_pressure",
     "max_pressure_for_precharge",
     "min_working_pressure_for_precharge",
+    "nominal_gas_volume",
     "parse_type",
     "pressure_equipment_category",
     "rules_for",
@@ -228,12 +230,48 @@ def rules_for(acc_type: str | AccumulatorType, overrides: dict | None = None) ->
     return replace(rules, **changes) if changes else rules
 
 
+def gas_share(acc_type: str | AccumulatorType, rules: TypeRules | None = None) -> float:
+    """Share of an accumulator's shell that its gas fills at precharge: the residual-oil rule.
+
+    .. math:: V_0 / V_{shell} = 1 - f_{res}
+
+    A gas-over-oil vessel has no separator, so a share :math:`f_{res}` of its shell stays oil
+    at the lowest pressure (the gas must never reach the outlet); every other type's gas fills
+    its whole nominal volume.  :func:`shell_volume` (``stowflow size``) and
+    :func:`nominal_gas_volume` (the design search and its verification) both apply the rule
+    through this function.
+
+    Parameters
+    ----------
+    acc_type : str or AccumulatorType
+        Accumulator type.
+    rules : TypeRules, optional
+        Rules; default the type's defaults.
+
+    Returns
+    -------
+    float
+        :math:`1 - f_{res}` in (0, 1], [-].
+
+    Examples
+    --------
+    Gas-over-oil keeps 10 % of its shell as oil (common practice, no published source):
+
+    >>> gas_share("gas-over-oil"), gas_share("bladder")
+    (0.9, 1.0)
+    """
+    rules = rules or rules_for(acc_type)
+    return 1.0 - rules.residual_oil_fraction
+
+
 def shell_volume(
     acc_type: str | AccumulatorType, gas_volume: float, rules: TypeRules | None = None
 ) -> float:
     """Shell volume needed for a usable gas volume (gas-over-oil keeps its residual oil).
 
     .. math:: V_{shell} = V_0 / (1 - f_{res})
+
+    The inverse of :func:`nominal_gas_volume` (both through :func:`gas_share`).
 
     Parameters
     ----------
@@ -258,8 +296,46 @@ def shell_volume(
     >>> print(f"{shell_volume('gas-over-oil', 9 * LITRE) / LITRE:.2f} L")
     10.00 L
     """
-    rules = rules or rules_for(acc_type)
-    return gas_volume / (1.0 - rules.residual_oil_fraction)
+    return gas_volume / gas_share(acc_type, rules)
+
+
+def nominal_gas_volume(
+    acc_type: str | AccumulatorType, nominal_volume: float, rules: TypeRules | None = None
+) -> float:
+    """Gas volume at precharge of one catalogue unit of a nominal volume.
+
+    .. math:: V_0 = (1 - f_{res})\\, V_{nom}
+
+    A catalogue row's nominal volume is the gas volume at precharge for the separator types
+    and the vessel's (shell) volume for gas-over-oil, whose residual oil never leaves: the
+    same rule as :func:`shell_volume`, inverted (both through :func:`gas_share`).
+
+    Parameters
+    ----------
+    acc_type : str or AccumulatorType
+        Accumulator type.
+    nominal_volume : float
+        Nominal volume of the unit, [m³].
+    rules : TypeRules, optional
+        Rules; default the type's defaults.
+
+    Returns
+    -------
+    float
+        Gas volume at precharge, [m³] (the nominal volume for the separator types).
+
+    Examples
+    --------
+    A 100 L gas-over-oil vessel holds 90 L of gas at precharge and 10 L of oil that never
+    leaves (common practice, no published source); a 50 L bladder holds 50 L of gas:
+
+    >>> from stowflow.units import LITRE
+    >>> print(f"{nominal_gas_volume('gas-over-oil', 100 * LITRE) / LITRE:.2f} L")
+    90.00 L
+    >>> print(f"{nominal_gas_volume('bladder', 50 * LITRE) / LITRE:.2f} L")
+    50.00 L
+    """
+    return nominal_volume * gas_share(acc_type, rules)
 
 
 def unit_flow_limit(

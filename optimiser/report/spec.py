@@ -14,7 +14,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 from stowflow.fill.precharge import precharge_table as isochore_table
-from stowflow.physics.accumulator import pressure_equipment_category, rules_for, shell_volume
+from stowflow.physics.accumulator import pressure_equipment_category
 from stowflow.report.content import (
     bar_delta,
     bar_g,
@@ -70,8 +70,9 @@ def category_hint(result) -> tuple[str, str, float, float] | None:
     if bank is None:
         return None
     opt = bank.option
-    rules = rules_for(opt.type, result.catalogue.limits.get(opt.type))
-    shell_l = litres(shell_volume(opt.type, opt.nominal_volume, rules))
+    # The nominal volume is the shell: the gas volume at precharge of the separator types, the
+    # vessel of gas-over-oil (its gas fills only a share: Bank.gas_volume).
+    shell_l = litres(opt.nominal_volume)
     ps = float(bar_g(opt.max_pressure, result))
     cat, note = pressure_equipment_category(ps, shell_l)
     return cat, note, ps, shell_l
@@ -100,7 +101,12 @@ def _accumulator_item(result) -> SpecItem:
     p0 = bar_g(bank.precharge, result)
     details = [
         ("type", opt.type),
-        ("nominal volume (gas volume at precharge)", fmt(litres(opt.nominal_volume), "g", "L")),
+        (
+            "nominal volume (gas volume at precharge)"
+            if bank.gas_volume >= bank.count * opt.nominal_volume
+            else "nominal volume (vessel; residual oil stays in it)",
+            fmt(litres(opt.nominal_volume), "g", "L"),
+        ),
         ("count", f"{bank.count}"),
         ("total gas volume", fmt(litres(bank.gas_volume), "g", "L")),
         ("maximum allowable pressure PS", fmt(ps, ".0f", "bar")),

@@ -77,13 +77,15 @@ class Family:
     sp : ScheduleProblem
         The schedule model's data for it.
     volume : float
-        Bank gas volume, [m³].
+        Bank gas volume at precharge (gas-over-oil: less its residual oil), [m³].
     robust : bool
         True when one open-loop schedule holds at every temperature of the range; False when
         it is planned at the middle temperature.
     p_top : float
         Where a discharge starts on the quasi-static curve, absolute, [Pa]
         (:func:`stowflow.search.store.top_pressure`).
+    rules : TypeRules or None
+        The accumulator type's rules with the catalogue's overrides (None: the defaults).
     """
 
     candidate: Candidate
@@ -93,6 +95,7 @@ class Family:
     volume: float
     robust: bool = True
     p_top: float = math.nan
+    rules: acc.TypeRules | None = None
 
 
 def _dwell_steps(seconds: float, dt: float) -> int:
@@ -140,7 +143,8 @@ def family_problems(problem: Problem, cand: Candidate, p0s, p_maxs, catalogue) -
     up, pm = up[:, diag, diag], pm[diag, diag]  # each precharge with its own unload pressure
     lo = bank_lower(problem, opt.type, grid, levels, rules, temps, pm)
     p_top = np.asarray(top_pressure(s, pm), float)
-    volume = cand.count * opt.nominal_volume
+    nominal = cand.count * opt.nominal_volume  # the bounds' basis; the gas fills a share of it
+    volume = cand.count * acc.nominal_gas_volume(opt.type, opt.nominal_volume, rules)
     swept = cand.count * opt.swept_volume if opt.swept_volume else np.inf
     deficit = deficit_from_full((cand.pump.flow - problem.demand) * problem.dt)
     q_bank = cand.count * acc.unit_flow_limit(
@@ -154,12 +158,12 @@ def family_problems(problem: Problem, cand: Candidate, p0s, p_maxs, catalogue) -
         # (the store then keeps the coldest lower bound and the hottest upper bound);
         # otherwise the schedule is planned at the middle temperature and the pressure switch
         # adapts at the extremes (the screen has proven each temperature feasible on its own).
-        lower = volume * np.max(lo[:2, i, :], axis=0)[inverse]
-        upper = min(volume * float(np.min(up[:2, i])), swept)
+        lower = nominal * np.max(lo[:2, i, :], axis=0)[inverse]
+        upper = min(nominal * float(np.min(up[:2, i])), swept)
         robust = deficit is not None and bool(np.all(upper - lower >= deficit - 1e-12 * volume))
         if not robust:
-            lower = volume * lo[2, i, :][inverse]
-            upper = min(volume * float(up[2, i]), swept)
+            lower = nominal * lo[2, i, :][inverse]
+            upper = min(nominal * float(up[2, i]), swept)
         s_lo = float(max(lower.min(), 0.0))
         shape.append((lower, upper, robust, np.linspace(s_lo, upper, CHORDS + 1)))
     knots = np.array([k for *_, k in shape])
@@ -191,7 +195,8 @@ def family_problems(problem: Problem, cand: Candidate, p0s, p_maxs, catalogue) -
             min_down=_dwell_steps(s.min_unloaded_dwell, problem.dt),
             max_events_per_hour=s.max_load_events_per_hour,
         )
-        out.append(Family(cand, float(p0s[i]), float(pm[i]), sp, volume, robust, float(p_top[i])))
+        fam = Family(cand, float(p0s[i]), float(pm[i]), sp, volume, robust, float(p_top[i]), rules)
+        out.append(fam)
     return out
 
 
@@ -692,7 +697,7 @@ def _assemble(problem: Problem, fam: Family | None, cand: Candidate, u, oil, ret
         relief_flow = qp - problem.demand
     else:
         p_cold, p_hot = _pressures(problem, fam, oil)
-        bank = Bank(cand.option, cand.count, fam.precharge)
+        bank = Bank(cand.option, cand.count, fam.precharge, fam.rules)
         p_min = float(p_cold.min())
         # The plan's highest pressure, but never above the unload pressure the search checked
         # against the pump, the motor, the shell and the relief margin (a plan made at the

@@ -10,6 +10,7 @@ from dataclasses import dataclass, field
 
 import pandas as pd
 from stowflow.catalogue import AccumulatorOption, MotorOption, PumpOption
+from stowflow.physics.accumulator import TypeRules, nominal_gas_volume
 
 __all__ = ["Alternative", "Bank", "Baseline", "Design", "SearchStats"]
 
@@ -54,11 +55,15 @@ class Bank:
         Units in the bank, [-].
     precharge : float
         Nitrogen precharge at 20 °C, absolute, [Pa].
+    rules : TypeRules or None
+        The type's rules with the catalogue's overrides, for the residual oil of
+        gas-over-oil; None: the type's defaults.
     """
 
     option: AccumulatorOption
     count: int
     precharge: float
+    rules: TypeRules | None = None
 
     @property
     def type(self) -> str:
@@ -67,8 +72,9 @@ class Bank:
 
     @property
     def gas_volume(self) -> float:
-        """Total gas volume at precharge of the bank, [m³]."""
-        return self.count * self.option.nominal_volume
+        """Total gas volume at precharge of the bank, [m³]: the nominal volumes, less the
+        residual oil of gas-over-oil (:func:`stowflow.physics.accumulator.nominal_gas_volume`)."""
+        return self.count * nominal_gas_volume(self.type, self.option.nominal_volume, self.rules)
 
     @property
     def price(self) -> float:

@@ -5,9 +5,10 @@ the precharge fixes at 20 °C, is charged at rest to the top of the window
 (:func:`top_pressure`) at the wall temperature, then discharged along the problem's process
 (:func:`stored_fraction`, inverted by :func:`stored_pressure`).  The gas a refill warmed holds
 back oil (:func:`charge_heating`).  :func:`bank_lower` and :func:`bank_upper` give the least and
-the most oil fraction a bank may hold, per precharge of a :class:`PrechargeGrid`, at each
-temperature: the screen (:mod:`stowflow.search.screen`) and the schedule data
-(:mod:`stowflow.search.designer`) are both built on them.
+the most oil a bank may hold, as a fraction of its nominal volume (gas-over-oil keeps its
+residual oil), per precharge of a :class:`PrechargeGrid`, at each temperature: the screen
+(:mod:`stowflow.search.screen`) and the schedule data (:mod:`stowflow.search.designer`) are
+both built on them.
 """
 
 from __future__ import annotations
@@ -232,7 +233,10 @@ def bank_lower(
     the store must hold at least the oil that gives each required pressure after a
     discharge from the top of the window (:func:`stored_fraction`, :func:`top_pressure`)
     and at least the oil the type's precharge rule asks for (the working pressure must stay
-    above the precharge by the type's margin).
+    above the precharge by the type's margin).  The fraction is of the nominal volume: the
+    gas fills only :func:`stowflow.physics.accumulator.gas_share` of it (gas-over-oil keeps
+    its residual oil, the rule ``stowflow size`` applies), and the oil counted is the oil the
+    bank can give, above that residual.
 
     Parameters
     ----------
@@ -255,10 +259,11 @@ def bank_lower(
     Returns
     -------
     numpy.ndarray
-        (T, P, K), or (T, A, P, K), [-].
+        (T, P, K), or (T, A, P, K), oil over nominal volume, [-].
     """
     temps = temperatures or problem.temperatures
     grid = PrechargeGrid.of(problem, p0, temps)
+    share = acc.gas_share(acc_type, rules)
     top = np.asarray(top_pressure(problem.settings, p_max), float)[..., None]
     lower = np.empty((len(temps), *top.shape[:-1], p_levels.size))
     for i, t_k in enumerate(temps):
@@ -266,7 +271,9 @@ def bank_lower(
             acc_type, grid.precharge_at(problem, t_k), rules
         )
         need = np.maximum(p_levels[None, :], np.asarray(floor)[:, None])
-        lower[i] = stored_fraction(problem, need, grid.p0[:, None], t_k, top, grid.rho[:, None])
+        lower[i] = share * stored_fraction(
+            problem, need, grid.p0[:, None], t_k, top, grid.rho[:, None]
+        )
     return lower
 
 
@@ -282,6 +289,9 @@ def bank_upper(
     level: str = "unload",
 ) -> tuple[np.ndarray, np.ndarray]:
     """Most oil fraction of a bank at its unload pressure (gas at rest), at each temperature.
+
+    Of the nominal volume, like :func:`bank_lower` (the gas fills the type's
+    :func:`stowflow.physics.accumulator.gas_share` of it).
 
     Parameters
     ----------
@@ -299,10 +309,10 @@ def bank_upper(
     Returns
     -------
     (upper, p_max)
-        ``upper`` (T, P) or (T, A, P) [-]; ``p_max`` (P,) or (A, P): unload pressure after
-        the type's own limits (the pressure ratio counts at the coldest temperature, where
-        the precharge is lowest), [Pa].  Combinations the type rules out have
-        ``upper = -inf``.
+        ``upper`` (T, P) or (T, A, P), oil over nominal volume [-]; ``p_max`` (P,) or
+        (A, P): unload pressure after the type's own limits (the pressure ratio counts at the
+        coldest temperature, where the precharge is lowest), [Pa].  Combinations the type
+        rules out have ``upper = -inf``.
     """
     s = problem.settings
     temps = temperatures or problem.temperatures
@@ -315,7 +325,8 @@ def bank_upper(
     ok = (p_max >= p_levels.max() - 1e-6) & (p_max > p0_cold)
     upper = np.empty((len(temps), *p_max.shape))
     p_full = p_max if level == "unload" else np.asarray(top_pressure(s, p_max), float)
+    share = acc.gas_share(acc_type, rules)
     for i, t_k in enumerate(temps):
-        frac = 1.0 - _iso_ratio(p_full, grid.rho, t_k, s.gas_model)
+        frac = share * (1.0 - _iso_ratio(p_full, grid.rho, t_k, s.gas_model))
         upper[i] = np.where(ok, frac, -np.inf)
     return upper, p_max

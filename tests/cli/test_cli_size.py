@@ -114,3 +114,38 @@ def test_help_has_an_example(capsys):
         cli.main(["size", "--help"])
     assert exc.value.code == 0
     assert "stowflow size --volume 5L" in capsys.readouterr().out
+
+
+def test_slow_charge_is_the_default_and_fast_is_an_option(capsys):
+    # 3 L, 126 bar precharge, 140 → 210 bar gauge, ideal gas, adiabatic discharge: by hand,
+    # Boyle's law to p2 then pV^1.4 = const to p1 (sources.CENGEL_BOLES_2015):
+    # V0 = ΔV / [(p0/p2)·((p2/p1)^(1/1.4) − 1)] = 14.94 L (absolute pressures); both strokes
+    # along the adiabat from the precharge: ΔV / [(p0/p1)^(1/1.4) − (p0/p2)^(1/1.4)] = 12.92 L.
+    pa = 1.01325
+    p0, p1, p2 = 126 + pa, 140 + pa, 210 + pa
+    argv = ["size", "--volume", "3L", "--precharge", "126bar", "--min-pressure", "140bar",
+            "--max-pressure", "210bar", "--gas", "ideal", "--json"]  # fmt: skip
+    _, out, _ = run(argv, capsys)
+    slow = json.loads(out)
+    assert slow["charge"] == "slow" and slow["process"] == "adiabatic"
+    hand = 3 / ((p0 / p2) * ((p2 / p1) ** (1 / 1.4) - 1))
+    assert slow["required_gas_volume_l"] == pytest.approx(hand, rel=1e-9)
+    _, out, _ = run([*argv, "--charge", "fast"], capsys)
+    fast = json.loads(out)
+    assert fast["charge"] == "fast"
+    hand_fast = 3 / ((p0 / p1) ** (1 / 1.4) - (p0 / p2) ** (1 / 1.4))
+    assert fast["required_gas_volume_l"] == pytest.approx(hand_fast, rel=1e-9)
+
+
+def test_help_explains_the_charge(capsys):
+    with pytest.raises(SystemExit):
+        cli.main(["size", "--help"])
+    out = capsys.readouterr().out
+    assert "--charge {slow,fast}" in out and "isothermal" in out and "--charge fast" in out
+
+
+def test_charge_belongs_to_storage(capsys):
+    argv = ["size", "--duty", "reserve", "--motion", "a,1L,100bar,2s", "--charge-pressure",
+            "180bar", "--charge", "slow"]  # fmt: skip
+    code, _, err = run(argv, capsys)
+    assert code == 2 and "--charge belongs to --duty storage, not reserve" in err

@@ -1,4 +1,13 @@
-"""Single-point sizing: closed forms, Esposito's worked example, temperatures, types, errors."""
+"""Single-point sizing: closed forms, Esposito's worked example, temperatures, types, errors.
+
+Sources of the slow-charge, fast-discharge checks: Boyle's law for the charge and the
+polytropic relation :math:`pV^n` = const for the discharge, Y. A. Çengel, M. A. Boles,
+*Thermodynamics: An Engineering Approach*, 8th ed., McGraw-Hill (2015), ideal-gas and
+polytropic relations; the closed form that follows is the one fluid-power handbooks give in
+their accumulator-sizing chapters for an isothermal charge and an adiabatic discharge (from
+memory, no copy checked); the real gas from CoolProp 8.0.0 (Span et al. 2000 nitrogen EOS)
+called directly.
+"""
 
 from __future__ import annotations
 
@@ -40,8 +49,9 @@ def test_esposito_car_crusher_accumulator():
 
 
 def test_esposito_duty_real_gas_adiabatic_needs_more():
-    # Same duty, adiabatic: the real gas (sources.SPAN_2000) needs more than κ = 1.4 predicts.
-    kw = dict(precharge=1200 * PSI, process="adiabatic")
+    # Same duty, both strokes adiabatic from the precharge (charge="fast"): the real gas
+    # (sources.SPAN_2000) needs more than κ = 1.4 predicts.
+    kw = dict(precharge=1200 * PSI, process="adiabatic", charge="fast")
     real = size_accumulator(2827 * IN3, 1800 * PSI, 3000 * PSI, model="real", **kw)
     ideal = size_accumulator(2827 * IN3, 1800 * PSI, 3000 * PSI, model="ideal", **kw)
     closed = 2827 * IN3 / ((1200 / 1800) ** (1 / 1.4) - (1200 / 3000) ** (1 / 1.4))
@@ -50,11 +60,11 @@ def test_esposito_duty_real_gas_adiabatic_needs_more():
 
 
 def test_polytropic_closed_form_at_20c():
-    # Polytropic law, absolute pressures (sources.CENGEL_BOLES_2015):
-    # ΔV = V0·[(p0/p1)^(1/n) − (p0/p2)^(1/n)].
+    # Both strokes along one polytrope from the precharge (charge="fast"), absolute pressures
+    # (sources.CENGEL_BOLES_2015, polytropic relations): ΔV = V0·[(p0/p1)^(1/n) − (p0/p2)^(1/n)].
     r = size_accumulator(
         5 * LITRE, 100 * BAR, 200 * BAR, precharge=90 * BAR,
-        process="polytropic:1.3", model="ideal",
+        process="polytropic:1.3", model="ideal", charge="fast",
     )  # fmt: skip
     expected = 5 * LITRE / ((0.9) ** (1 / 1.3) - (0.45) ** (1 / 1.3))
     assert r.required_gas_volume == pytest.approx(expected, rel=1e-12)
@@ -129,13 +139,94 @@ def test_result_as_dict_is_json_with_the_contract_keys():
 
 
 def test_regression_pin_real_adiabatic_sizing():
-    # Our own full-precision value (regression check, not an outside source): 5 L between
-    # 100 and 200 bar gauge, −10…50 °C, real gas, adiabatic, precharge by rule (piston governs).
-    r = size_accumulator(
-        5 * LITRE, 100 * BAR + P_AMBIENT, 200 * BAR + P_AMBIENT, T_min=263.15, T_max=323.15
-    )
-    assert r.required_gas_volume / LITRE == pytest.approx(18.143295870257532, rel=1e-9)
+    # Our own full-precision values (regression check, not an outside source): 5 L between
+    # 100 and 200 bar gauge, −10…50 °C, real gas, adiabatic discharge, precharge by rule
+    # (piston governs); the slow charge (default) and the fast one.
+    args = (5 * LITRE, 100 * BAR + P_AMBIENT, 200 * BAR + P_AMBIENT)
+    r = size_accumulator(*args, T_min=263.15, T_max=323.15)
+    assert r.required_gas_volume / LITRE == pytest.approx(29.96703030682459, rel=1e-9)
     assert r.governing.precharge_ref / BAR == pytest.approx(85.52670458510977, rel=1e-9)
+    assert r.as_dict()["charge"] == "slow"
+    fast = size_accumulator(*args, T_min=263.15, T_max=323.15, charge="fast")
+    assert fast.required_gas_volume / LITRE == pytest.approx(18.143295870257532, rel=1e-9)
+
+
+# ----------------------------------------------------- slow charge, fast discharge (default)
+def _slow_fast_closed_form(dv, p0, p1, p2, n):
+    """V0 = ΔV / [(p0/p2)·((p2/p1)^(1/n) − 1)]: Boyle's law to p2, then pV^n = const to p1
+    (sources.CENGEL_BOLES_2015), the same as ΔV / [(p0/p1)^(1/n)·(p0/p2)^(1 − 1/n) − p0/p2]."""
+    return dv / ((p0 / p2) * ((p2 / p1) ** (1 / n) - 1))
+
+
+@pytest.mark.parametrize("process, n", [("adiabatic", 1.4), ("polytropic:1.3", 1.3)])
+def test_slow_charge_fast_discharge_closed_form(process, n):
+    # Ideal gas, absolute pressures, one temperature: the gas is charged at rest (Boyle) to
+    # p2 and discharged along pV^n = const to p1 (sources.CENGEL_BOLES_2015; the handbook form for
+    # an isothermal charge and a polytropic discharge, from memory).
+    r = size_accumulator(
+        5 * LITRE, 100 * BAR, 200 * BAR, precharge=90 * BAR, process=process, model="ideal"
+    )
+    closed = _slow_fast_closed_form(5 * LITRE, 90 * BAR, 100 * BAR, 200 * BAR, n)
+    assert r.required_gas_volume == pytest.approx(closed, rel=1e-12)
+    # The second form of the same law.
+    p0, p1, p2 = 90.0, 100.0, 200.0
+    other = 5 * LITRE / ((p0 / p1) ** (1 / n) * (p0 / p2) ** (1 - 1 / n) - p0 / p2)
+    assert r.required_gas_volume == pytest.approx(other, rel=1e-12)
+    # At rest at p2 (isothermal charge), cooled after the discharge: T·(p1/p2)^((n−1)/n).
+    row = r.as_dict()["temperatures"][0]
+    assert row["gas_temperature_at_max_pressure_c"] == pytest.approx(20.0, abs=1e-9)
+    t1 = T_REF * (p1 / p2) ** ((n - 1) / n) - T_REF + 20.0
+    assert row["gas_temperature_at_min_pressure_c"] == pytest.approx(t1, abs=1e-9)
+
+
+def test_slow_charge_hand_value_and_the_undersizing_of_a_fast_charge():
+    # 3 L between 140 and 210 bar with a 126 bar precharge, ideal gas, n = 1.4: by hand with
+    # the closed form above (sources.CENGEL_BOLES_2015), 14.94 L with the pressures read as gauge
+    # (+1.01325 bar) and 14.88 L with them read as absolute: 14.9 L to three digits either
+    # way.  Compressing along the adiabat from the precharge instead (charge="fast") gives
+    # 12.92 L (gauge) / 12.86 L (absolute): about 16 % too little for this duty.
+    pa = P_AMBIENT
+    for offset, hand in ((pa, 14.94), (0.0, 14.88)):
+        p0, p1, p2 = (126 * BAR + offset, 140 * BAR + offset, 210 * BAR + offset)
+        kw = dict(precharge=p0, model="ideal")
+        slow = size_accumulator(3 * LITRE, p1, p2, **kw).required_gas_volume
+        fast = size_accumulator(3 * LITRE, p1, p2, charge="fast", **kw).required_gas_volume
+        assert slow == pytest.approx(_slow_fast_closed_form(3 * LITRE, p0, p1, p2, 1.4))
+        assert slow / LITRE == pytest.approx(hand, abs=0.005)
+        assert round(slow / LITRE, 1) == 14.9
+        closed_fast = 3 * LITRE / ((p0 / p1) ** (1 / 1.4) - (p0 / p2) ** (1 / 1.4))
+        assert fast == pytest.approx(closed_fast, rel=1e-12)
+        assert 1.15 < slow / fast < 1.17
+
+
+def test_isothermal_discharge_is_boyle_whatever_the_charge():
+    # Boyle's law both ways (Esposito's car crusher duty, isothermal): slow = fast.
+    kw = dict(precharge=1200 * PSI, process="isothermal", model="ideal")
+    slow = size_accumulator(2827 * IN3, 1800 * PSI, 3000 * PSI, **kw)
+    fast = size_accumulator(2827 * IN3, 1800 * PSI, 3000 * PSI, charge="fast", **kw)
+    assert slow.required_gas_volume == pytest.approx(fast.required_gas_volume, rel=1e-12)
+
+
+@pytest.mark.parametrize("T", [283.15, 323.15])
+def test_slow_charge_real_gas_against_coolprop(T):
+    # sources.COOLPROP PropsSI, fluid "Nitrogen" (sources.SPAN_2000), called directly: precharge
+    # 80 bar abs at 20 °C fixes the density; at T the gas is charged at rest to 200 bar abs
+    # (isotherm), then expands isentropically to 100 bar abs.  ΔV/V0 = ρ0·(1/ρ1 − 1/ρ2).
+    CP = pytest.importorskip("CoolProp.CoolProp")
+    assert pytest.importorskip("CoolProp").__version__ == "8.0.0"
+    p0, p1, p2 = 80 * BAR, 100 * BAR, 200 * BAR
+    rho0 = CP.PropsSI("D", "P", p0, "T", T_REF, "Nitrogen")
+    rho2 = CP.PropsSI("D", "P", p2, "T", T, "Nitrogen")
+    s2 = CP.PropsSI("S", "P", p2, "T", T, "Nitrogen")
+    rho1 = CP.PropsSI("D", "P", p1, "S", s2, "Nitrogen")
+    t1 = CP.PropsSI("T", "P", p1, "S", s2, "Nitrogen")
+    v0 = 5 * LITRE / (rho0 * (1 / rho1 - 1 / rho2))
+    r = size_accumulator(5 * LITRE, p1, p2, precharge=p0, T_min=T, T_max=T)
+    # The project reads nitrogen from a table (density within about 1e-6 of CoolProp): 27.20 L
+    # at 10 °C and 21.70 L at 50 °C, both within 5e-7 here.
+    assert r.required_gas_volume == pytest.approx(v0, rel=2e-6)
+    row = r.as_dict()["temperatures"][0]
+    assert row["gas_temperature_at_min_pressure_c"] == pytest.approx(t1 - 273.15, abs=1e-3)
 
 
 @pytest.mark.parametrize(
@@ -174,8 +265,26 @@ def test_required_volume_is_monotone(dv, grow, p1, span, narrow, model, proc):
     p2 = (p1 + span) * BAR
     base = size_accumulator(dv * LITRE, p1 * BAR, p2, **kw).required_gas_volume
     more = size_accumulator(dv * grow * LITRE, p1 * BAR, p2, **kw).required_gas_volume
-    p2n = p2 - narrow * span * BAR  # narrower window, same p1
-    narrower = size_accumulator(dv * LITRE, p1 * BAR, p2n, **kw).required_gas_volume
     assert more >= base * (1 - 1e-12)
-    assert narrower >= base * (1 - 1e-12)
     assert np.isfinite(base)
+    # A narrower window (same p1) never needs less when both strokes follow one process.  After
+    # a slow charge it may: a gas charged at rest to a higher p2 is smaller, and past a pressure
+    # ratio ((n/(n − 1))^n = 5.8 for an ideal gas, n = 1.4; lower for the stiffer real gas) the
+    # longer adiabatic expansion no longer makes up for it.
+    p2n = p2 - narrow * span * BAR
+    for charge in ("fast", "slow") if proc == "isothermal" else ("fast",):
+        wide = size_accumulator(dv * LITRE, p1 * BAR, p2, charge=charge, **kw)
+        narrower = size_accumulator(dv * LITRE, p1 * BAR, p2n, charge=charge, **kw)
+        assert narrower.required_gas_volume >= wide.required_gas_volume * (1 - 1e-12)
+
+
+def test_slow_charge_has_a_best_maximum_pressure():
+    # Ideal gas, n = 1.4: ΔV/V0 = (p0/p2)·((p2/p1)^(1/n) − 1) is largest at
+    # p2/p1 = (n/(n − 1))^n (calculus on the closed form of sources.CENGEL_BOLES_2015 relations).
+    x_best = (1.4 / 0.4) ** 1.4
+    kw = dict(precharge=10 * BAR, process="adiabatic", model="ideal", types=["piston"])
+    need = [
+        size_accumulator(LITRE, 20 * BAR, x * 20 * BAR, **kw).required_gas_volume
+        for x in (0.9 * x_best, x_best, 1.1 * x_best)
+    ]
+    assert need[1] < need[0] and need[1] < need[2]

@@ -18,9 +18,11 @@ from stowflow.physics.accumulator import (
     AccumulatorType,
     TypeRules,
     check_limits,
+    gas_share,
     max_precharge_for_min_pressure,
     max_pressure_for_precharge,
     min_working_pressure_for_precharge,
+    nominal_gas_volume,
     parse_type,
     pressure_equipment_category,
     rules_for,
@@ -96,6 +98,23 @@ def test_gas_over_oil_keeps_residual_oil():
     # Residual oil 10 % of the shell: common practice, no published source.
     assert shell_volume("gas-over-oil", 9 * LITRE) == pytest.approx(10 * LITRE)
     assert shell_volume("bladder", 9 * LITRE) == 9 * LITRE
+
+
+@pytest.mark.parametrize("acc_type", [t.value for t in AccumulatorType])
+def test_nominal_gas_volume_is_the_inverse_of_the_shell_volume(acc_type):
+    # One rule both ways: `stowflow size` turns gas into shell, the design search shell into gas.
+    assert shell_volume(acc_type, nominal_gas_volume(acc_type, 7 * LITRE)) == pytest.approx(
+        7 * LITRE, rel=1e-15
+    )
+    share = 0.9 if acc_type == "gas-over-oil" else 1.0  # common practice, no published source
+    assert gas_share(acc_type) == pytest.approx(share, rel=1e-15)
+    assert nominal_gas_volume(acc_type, 100 * LITRE) == pytest.approx(share * 100 * LITRE)
+
+
+def test_residual_oil_follows_the_catalogue_override():
+    rules = rules_for("gas-over-oil", {"residual_oil_fraction": 0.25})
+    assert nominal_gas_volume("gas-over-oil", 100 * LITRE, rules) == pytest.approx(75 * LITRE)
+    assert shell_volume("gas-over-oil", 75 * LITRE, rules) == pytest.approx(100 * LITRE)
 
 
 def test_precharge_rules():

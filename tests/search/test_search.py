@@ -483,3 +483,78 @@ def test_more_demand_never_needs_less():
         if key[0] == last[0]:
             assert key[1] >= last[1] - 1e-9
         last = key
+
+
+# --------------------------------------------------------------------------- gas-over-oil
+LOW = DesignSettings(
+    flow_margin=0.0,
+    t_min=T20,
+    t_max=T20,
+    gas_model="ideal",
+    process="isothermal",
+    line_loss=0.0,
+    min_loaded_dwell=0.0,
+    min_unloaded_dwell=0.0,
+    max_load_events_per_hour=None,
+    types=("gas-over-oil",),
+    max_count=8,
+)
+
+
+def _gas_over_oil(litres, price):
+    return AccumulatorOption(
+        "gas-over-oil", litres * L, 60 * BAR + P_AMBIENT, 0.0, price, f"vessel {litres:g} L"
+    )
+
+
+def test_gas_over_oil_bounds_keep_the_residual_oil():
+    """Ideal gas, isothermal, one temperature: a gas-over-oil vessel's gas fills 90 % of it
+    (10 % residual oil, common practice, no published source; the rule of ``stowflow size``),
+    so by Boyle's law the oil it gives above the residual is 0.9·(1 − p0/p) of its volume."""
+    from stowflow.search.store import bank_lower, bank_upper
+
+    problem = make_problem(
+        cycle_from_arrays(1.0, np.array([1.0, 0.0]) * LPM, np.full(2, 40 * BAR)), LOW
+    )
+    p0 = np.array([30.0, 35.0]) * BAR
+    levels = np.array([38.0, 40.0]) * BAR
+    rules = acc.rules_for("gas-over-oil")
+    up, pm = bank_upper(problem, "gas-over-oil", p0, 50 * BAR, levels, rules)
+    lo = bank_lower(problem, "gas-over-oil", p0, levels, rules, None, pm)
+    np.testing.assert_allclose(pm, 50 * BAR)
+    np.testing.assert_allclose(up[0], 0.9 * (1 - p0 / (50 * BAR)), rtol=1e-12)
+    np.testing.assert_allclose(lo[0], 0.9 * (1 - p0[:, None] / levels[None, :]), rtol=1e-12)
+    # Without the residual oil (a catalogue's override) the bounds are Boyle's law itself.
+    none = acc.rules_for("gas-over-oil", {"residual_oil_fraction": 0.0})
+    up0, _ = bank_upper(problem, "gas-over-oil", p0, 50 * BAR, levels, none)
+    np.testing.assert_allclose(up0[0], 1 - p0 / (50 * BAR), rtol=1e-12)
+
+
+def test_gas_over_oil_design_never_draws_the_residual_oil():
+    """A low-pressure cycle served by gas-over-oil vessels only: the bank's gas volume is 90 %
+    of the vessels (the residual-oil rule of ``stowflow size``), and by Boyle's law that gas
+    alone must hold the cycle's deficit between the requirement and the unload pressure.
+
+    Four 10 s steps drawing 0, 0, 60, 0 L/min at 40 bar gauge with a 20 L/min pump: the store
+    must give 10 − 20/60·10 = 6.667 L while the pump runs (hand arithmetic).  With the gas
+    volume V = 0.9·n·V_vessel, precharge p0 ≤ p_req (the type's rule) and unload pressure
+    p_max: 0.9·n·V_vessel·(p0/p_req − p0/p_max) ≥ 6.667 L (Boyle's law).
+    """
+    cat = Catalogue(
+        accumulators=(_gas_over_oil(10, 400), _gas_over_oil(25, 700)),
+        pumps=(_pump(20, 200),),
+        motors=(_motor(11, 1100),),
+    )
+    flow = np.array([0, 0, 60, 0]) * LPM
+    p_req = 40 * BAR + P_AMBIENT
+    cyc = cycle_from_arrays(10.0, flow, np.full(4, p_req))
+    d = design(cyc, cat, LOW)
+    assert d.feasible, d.reason
+    assert d.bank.type == "gas-over-oil"
+    vessels = d.bank.count * d.bank.option.nominal_volume
+    assert d.bank.gas_volume == pytest.approx(0.9 * vessels, rel=1e-12)
+    p0 = d.bank.precharge
+    assert p0 <= p_req * (1 + 1e-12)
+    given = d.bank.gas_volume * (p0 / p_req - p0 / d.p_max)
+    assert given >= (10 - 20 / 60 * 10) * L * (1 - 1e-9)
+    _assert_schedule_holds(d, cyc, LOW)
