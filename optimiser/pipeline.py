@@ -23,7 +23,7 @@ from stowflow.search.designer import design
 from stowflow.search.settings import DesignSettings
 from stowflow.search.solution import Design
 from stowflow.simulation.verify import Verification, verify
-from stowflow.units import BAR
+from stowflow.units import BAR, KW, LITRE
 
 __all__ = ["MAX_TIGHTENINGS", "Attempt", "Study", "StudyResult", "run"]
 
@@ -169,6 +169,8 @@ class _Loop:
     verification: Verification | None = None
     previous: Design | None = None
     stuck: int = 0  # passes in a row that left the design unchanged
+    notes: list[str] = field(default_factory=list)  # what the loop changed, for the reader
+    settings: DesignSettings | None = None  # the settings of the last pass
 
 
 def _raise_requirement(loop: _Loop, d: Design, shortfall: np.ndarray) -> None:
@@ -223,13 +225,94 @@ def _design_and_verify(study: Study, cycle: DutyCycle, catalogue: Catalogue, rep
         loop.result, loop.verification = d, v
         if v.passed:
             break
-        if v.shortfall is None or not np.any(v.shortfall > 0):
-            break  # nothing to tighten: the failure is not a pressure shortfall
-        _raise_requirement(loop, d, v.shortfall)
+        cure = _cure(d, v, settings)
+        if cure is None:
+            break  # nothing a redesign can cure: the failure is not storage or pressure
+        if isinstance(cure, DesignSettings):
+            settings = cure  # the bank ran empty: more gas, not more pressure
+            loop.notes.append(
+                f"a bank ran empty in the verification: the next pass asked for at least "
+                f"{settings.min_gas_volume / LITRE:.3g} L of gas"
+            )
+            loop.previous = d
+            continue
+        _raise_requirement(loop, d, cure)
+    loop.settings = settings
     return loop
 
 
-def _outcome(result: Design, verification: Verification | None, attempts: list) -> Design:
+#: Growth of the gas volume on top of what an empty bank lacked, [-] (a margin; the next
+#: verification checks the result).
+EMPTY_BANK_GROWTH = 1.1
+
+
+def _cure(d: Design, v: Verification, settings: DesignSettings):
+    """What the next pass changes after a failed verification, or None when a redesign
+    cannot cure the failure.
+
+    * a bank that ran empty (demand unmet) needs more gas, not more pressure: the settings
+      with a floor on the gas volume, grown by what the bank lacked over what it delivered;
+    * a pressure that fell short: the shortfall per step, by which the requirement is raised
+      where it fell short (and nowhere else).
+    """
+    mine = [r for r in v.runs if r.controller == v.controller and not r.passed]
+    empty = [r for r in mine if r.unmet_volume > 0]
+    if empty and d.bank is not None:
+        swing = max(float(np.ptp(r.trace["accumulator_oil [m³]"].to_numpy())) for r in empty)
+        lack = max(r.unmet_volume for r in empty)
+        grow = EMPTY_BANK_GROWTH * (1.0 + lack / max(swing, 1e-9 * d.bank.gas_volume))
+        floor = max(settings.min_gas_volume, d.bank.gas_volume * grow)
+        return settings.with_(min_gas_volume=floor)
+    if v.shortfall is None or not np.any(v.shortfall > 0):
+        return None
+    return v.shortfall
+
+
+def _pump_only_fallback(
+    study: Study, cycle: DutyCycle, catalogue: Catalogue, loop: _Loop, report
+) -> None:
+    """When no accumulator design passed, the pump-only supply, verified: a cycle a pump
+    alone serves is never reported as having no design."""
+    s = study.settings
+    if not (study.verify and s.allow_pump_only) or loop.result is None:
+        return
+    if loop.verification is not None and loop.verification.passed:
+        return
+    if loop.result.feasible and loop.result.bank is None:
+        return  # the pump-only supply itself was the design that failed
+    report(0.85, "checking a pump-only supply")
+    first = loop.result
+    t1 = time.perf_counter()
+    d = design(cycle, catalogue, s.with_(types=()))
+    loop.t_design += time.perf_counter() - t1
+    if not d.feasible:
+        loop.notes.append(f"a pump-only supply is not possible either: {d.reason}")
+        return
+    t1 = time.perf_counter()
+    v = verify(d, cycle, s)
+    loop.t_verify += time.perf_counter() - t1
+    loop.attempts.append(Attempt(0.0, d.status, v.passed, v.min_margin))
+    if not v.passed:
+        loop.notes.append(f"a pump-only supply fails the verification too: {v.reason}")
+        return
+    what = "no design" if not first.feasible else "no accumulator design"
+    loop.notes.append(
+        f"{what} passed the time-domain verification ({_failure(first, loop.verification)}); "
+        f"the pump-only supply does, with a {d.motor.rated_power / KW:g} kW motor"
+    )
+    loop.result, loop.verification = d, v
+
+
+def _failure(d: Design, v: Verification | None) -> str:
+    """Why the accumulator design failed, in a few words."""
+    if not d.feasible:
+        return d.reason or d.status
+    return v.reason if v is not None and v.reason else "failed"
+
+
+def _outcome(
+    result: Design, verification: Verification | None, attempts: list, notes: list[str]
+) -> Design:
     """The design as the loop leaves it: the window the recommended controller keeps, or
     infeasible when no pass verified; a note on the tightenings."""
     if verification is not None and verification.passed:
@@ -249,14 +332,15 @@ def _outcome(result: Design, verification: Verification | None, attempts: list) 
                 f"pass(es): {verification.reason}"
             ),
         )
-    notes = list(result.notes)
+    notes = [*result.notes, *notes]
     if len(attempts) > 1:
+        raised = max(a.extra_pressure_max for a in attempts)
         notes.append(
-            f"the verification raised the requirement {len(attempts) - 1} time(s), by up to "
-            f"{attempts[-1].extra_pressure_max / BAR:.1f} bar, before the design passed"
-            if verification is not None and verification.passed
-            else f"the verification raised the requirement {len(attempts) - 1} time(s)"
+            f"the design was repeated {len(attempts) - 1} time(s) after the verification"
+            + (f", the requirement raised by up to {raised / BAR:.1f} bar" if raised > 0 else "")
+            + (", before it passed" if verification is not None and verification.passed else "")
         )
+    if notes != list(result.notes):
         result = replace(result, notes=tuple(notes))
     return result
 
@@ -280,8 +364,9 @@ def run(study: Study, *, progress: Callable[[float, str], None] | None = None) -
     cycle, catalogue = _load(study)
     loop = _design_and_verify(study, cycle, catalogue, report)
     assert loop.result is not None
+    _pump_only_fallback(study, cycle, catalogue, loop, report)
     verification = loop.verification
-    result = _outcome(loop.result, verification, loop.attempts)
+    result = _outcome(loop.result, verification, loop.attempts, loop.notes)
     report(0.9, "costs")
     t1 = time.perf_counter()
     comparison = compare(result, verification, cycle, study.costs)

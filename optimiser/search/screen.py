@@ -302,6 +302,9 @@ class _Screen:
                 self.volumes[(key, j)] = self._least_volume(j, key, 1.0, up)
             per_unit = self.volumes[(key, j)] / vu
         n_store = np.ceil(per_unit - 1e-9)
+        if self.s.min_gas_volume > 0:  # a floor the closed loop set after an empty bank
+            gas_unit = vu * acc.gas_share(option.type, self.rules[option.type])
+            n_store = np.maximum(n_store, math.ceil(self.s.min_gas_volume / gas_unit - 1e-9))
         n_store[~np.all(np.isfinite(up), axis=0)] = np.inf
         q_unit = acc.unit_flow_limit(
             option.type,

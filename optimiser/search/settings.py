@@ -83,6 +83,9 @@ class DesignSettings:
         a caution.
     max_count : int
         Most accumulators of one size in a bank, [-].  Default 8.
+    min_gas_volume : float
+        Least gas volume of a bank, [m³].  Default 0; the closed loop sets it when a bank ran
+        empty in the verification (more gas, not more pressure, cures that).
     precharge_step : float
         Resolution of the precharge grid the search scans, gauge at 20 °C, [Pa].  Default 1 bar.
     types : tuple[str, ...]
@@ -118,6 +121,7 @@ class DesignSettings:
     switch_tolerance: float = 0.01
     motor_sizing: str = "relief"
     max_count: int = 8
+    min_gas_volume: float = 0.0
     precharge_step: float = 1 * BAR
     types: tuple[str, ...] = ACCUMULATOR_TYPES
     allow_pump_only: bool = True
@@ -182,6 +186,8 @@ class DesignSettings:
             raise bad(f"motor sizing '{self.motor_sizing}' is not one of {', '.join(MOTOR_SIZING)}")
         if not (0 <= self.flow_margin < 0.5):
             raise bad(f"flow margin must be 0 … 50 %, got {self.flow_margin:.0%}")
+        if not (math.isfinite(self.min_gas_volume) and self.min_gas_volume >= 0):
+            raise bad(f"min_gas_volume must be ≥ 0, got {self.min_gas_volume!r}")
         if not (1 <= int(self.max_count) <= 64):
             raise bad(f"max count per bank must be 1…64, got {self.max_count}")
         unknown = set(self.types) - set(ACCUMULATOR_TYPES)
