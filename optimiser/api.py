@@ -83,6 +83,8 @@ NUMBER_UNITS: dict[str, str] = {
     "min_unloaded_dwell": "s",
     "max_load_events": "/h",
     "flow_margin": "",
+    "switch_differential": "",
+    "switch_tolerance": "",
     "max_count": "",
     "precharge_step": "Pa",
     "time_limit": "s",

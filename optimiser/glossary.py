@@ -158,6 +158,25 @@ _TERMS = (
         "Cracking pressure of the relief valve, gauge.",
     ),
     Term(
+        "switch_differential",
+        "Δp_sw",
+        "bar",
+        "Pa",
+        "pressure",
+        "Difference between the unload (cut-out) and load (cut-in) settings of the pressure "
+        "switch or accumulator charging valve; at least 10 % of the cut-out pressure by "
+        "default (common practice, from memory).",
+    ),
+    Term(
+        "switch_tolerance",
+        "δ_sw",
+        "%",
+        "-",
+        "dimensionless",
+        "Repeatability of a switch setting, as a share of the setting; the verification runs "
+        "the switch at the low end (1 % by default, from memory).",
+    ),
+    Term(
         "displacement",
         "V_g",
         "cm³/rev",

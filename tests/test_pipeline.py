@@ -35,7 +35,7 @@ def test_constant_demand_gets_the_hand_calculated_pump_only_supply(seconds):
     # the pump at full flow at that setting: P ≥ Q·p_relief/η_o.
     s = DesignSettings()
     cat = load_catalogue(default_catalogue_path())
-    n = max(1, int(round(seconds / 0.5)))
+    n = max(1, round(seconds / 0.5))
     cyc = cycle_from_arrays(seconds / n, np.full(n, 10 * LPM), np.full(n, 100 * BAR + P_AMBIENT))
     res = run(Study(cycle=cyc, catalogue=cat, settings=s))
     d = res.design

@@ -8,7 +8,7 @@ from pathlib import Path
 
 from stowflow.cli._costopts import add_cost_options, cost_settings_from_args
 from stowflow.cli._output import print_json, print_table, progress
-from stowflow.io.options import DESIGN_OPTIONS, design_settings
+from stowflow.io.options import DESIGN_OPTIONS, OPTION_CHOICES, design_settings
 from stowflow.io.quantities import parse_duration, parse_pressure_difference
 from stowflow.units import abs_to_gauge
 
@@ -30,7 +30,7 @@ def add_design_options(parser: argparse.ArgumentParser) -> None:
         flag = "--" + key.replace("_", "-")
         text = raw.replace("%", "%%")  # argparse formats help with % ("10%" → "10%%")
         if kind == "choice":
-            g.add_argument(flag, dest=f"opt_{key}", choices=("real", "ideal"), help=text)
+            g.add_argument(flag, dest=f"opt_{key}", choices=OPTION_CHOICES[key], help=text)
         else:
             g.add_argument(flag, dest=f"opt_{key}", metavar="VALUE", help=text)
     g.add_argument(

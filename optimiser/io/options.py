@@ -30,13 +30,14 @@ from stowflow.io.quantities import (
     parse_whole,
 )
 from stowflow.physics.gas import GAS_MODELS
-from stowflow.search.settings import ACCUMULATOR_TYPES, DesignSettings
+from stowflow.search.settings import ACCUMULATOR_TYPES, MOTOR_SIZING, DesignSettings
 from stowflow.units import si_factor
 
 __all__ = [
     "COST_OPTIONS",
     "DESIGN_OPTIONS",
     "EXCLUSIVE_COST_OPTIONS",
+    "OPTION_CHOICES",
     "cost_settings",
     "design_settings",
 ]
@@ -96,6 +97,25 @@ DESIGN_OPTIONS: dict[str, tuple[str, str, str]] = {
         "pump flow the design must do without (wear), e.g. 10% (common practice, no published "
         "source)",
     ),
+    "switch_differential": (
+        "switch_differential/switch_differential_min",
+        "pressure or fraction",
+        "least differential of the pressure switch or charging valve, as a share of its "
+        "cut-out pressure (e.g. 10%) or a pressure (e.g. 15bar) (default 10%: about the least "
+        "a switch holds in practice; common practice, from memory)",
+    ),
+    "switch_tolerance": (
+        "switch_tolerance",
+        "fraction",
+        "repeatability of the switch settings, e.g. 1% (default 1%, from memory); the "
+        "verification runs the switch at the low end",
+    ),
+    "motor_sizing": (
+        "motor_sizing",
+        "choice",
+        "size the motor for the pump at full flow at the relief setting (relief, default: a "
+        "stuck unloading valve cannot overload it) or at the working pressure only (working)",
+    ),
     "max_count": ("max_count", "integer", "most accumulators of one size in a bank"),
     "types": ("types", "types", "accumulator types to consider, comma-separated"),
     "precharge_step": (
@@ -106,6 +126,10 @@ DESIGN_OPTIONS: dict[str, tuple[str, str, str]] = {
     "time_limit": ("time_limit", "time", "time limit of one schedule solve, e.g. 60s"),
     "mip_gap": ("mip_gap", "fraction", "relative MIP gap of the schedule model, e.g. 0.1%"),
 }
+
+
+#: The options whose text is one of a few words, with those words.
+OPTION_CHOICES: dict[str, tuple[str, ...]] = {"gas": GAS_MODELS, "motor_sizing": MOTOR_SIZING}
 
 
 def _flag(key: str) -> str:
@@ -129,6 +153,9 @@ _DESIGN_PARSERS: dict[str, Callable[[str, str], Any]] = {
         text, flag, allow_none=True, at_least=1.0, above=None
     ),
     "flow_margin": lambda text, flag: parse_fraction(text, flag, below=0.5),
+    "switch_differential": lambda text, flag: _differential(text, flag),
+    "switch_tolerance": lambda text, flag: parse_fraction(text, flag, below=0.1),
+    "motor_sizing": lambda text, flag: parse_choice(text, flag, MOTOR_SIZING),
     "max_count": lambda text, flag: parse_whole(text, flag, at_least=1, at_most=64),
     "types": lambda text, flag: parse_choices(text, flag, ACCUMULATOR_TYPES),
     "precharge_step": lambda text, flag: parse_pressure_difference(
@@ -137,6 +164,15 @@ _DESIGN_PARSERS: dict[str, Callable[[str, str], Any]] = {
     "time_limit": lambda text, flag: parse_duration(text, flag, above=0.0),
     "mip_gap": lambda text, flag: parse_fraction(text, flag, above=0.0, below=0.5),
 }
+
+
+def _differential(text: str, flag: str) -> tuple[float, float]:
+    """``10%`` or ``0.1`` → (0.1, 0) as a share of the cut-out pressure; ``15bar`` →
+    (0, 15 bar) as a pressure, [-] and [Pa]."""
+    t = text.strip()
+    if t.endswith("%") or not any(c.isalpha() for c in t):
+        return parse_fraction(t, flag, below=0.5), 0.0
+    return 0.0, parse_pressure_difference(t, flag)
 
 
 def _given(values: Mapping[str, str | None]) -> dict[str, str]:
@@ -172,8 +208,8 @@ def design_settings(
         field_name, _kind, _help = DESIGN_OPTIONS[key]
         value = _DESIGN_PARSERS[key](text, _flag(key))
         change = (
-            dict(zip(("t_min", "t_max"), value, strict=True))
-            if key == "temperature"
+            dict(zip(field_name.split("/"), value, strict=True))
+            if "/" in field_name
             else {field_name: value}
         )
         try:  # a limit only the settings know: name the option anyway

@@ -42,7 +42,10 @@ def top_pressure(settings: DesignSettings, p_max) -> np.ndarray | float:
     before loading again, so the machine may start drawing there.
     """
     p_max = np.asarray(p_max, float)
-    return _out(settings.worst_setting(p_max - settings.switch_band(p_max)))
+    load = settings.worst_setting(p_max - settings.switch_band(p_max))
+    # A stated differential wider than a low unload pressure leaves no load point above
+    # ambient: such a store holds nothing (the bounds then rule it out).
+    return _out(np.maximum(load, settings.p_ambient))
 
 
 def _out(a: np.ndarray):

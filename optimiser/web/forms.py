@@ -14,7 +14,6 @@ does.
 from __future__ import annotations
 
 import re
-import typing
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -22,9 +21,14 @@ from stowflow.catalogue import ACCUMULATOR_TYPES, Catalogue, parse_catalogue_tex
 from stowflow.cycle.csvtable import utf8_text
 from stowflow.cycle.duty import DutyCycle, parse_cycle_bytes
 from stowflow.errors import CatalogueError, SettingsError
-from stowflow.io.options import COST_OPTIONS, DESIGN_OPTIONS, cost_settings, design_settings
+from stowflow.io.options import (
+    COST_OPTIONS,
+    DESIGN_OPTIONS,
+    OPTION_CHOICES,
+    cost_settings,
+    design_settings,
+)
 from stowflow.io.quantities import parse_duration, parse_pressure_difference
-from stowflow.physics.gas import GasModel
 from stowflow.pipeline import MAX_TIGHTENINGS, Study
 from stowflow.search.settings import DesignSettings
 from stowflow.web.upload import UploadedForm
@@ -61,6 +65,9 @@ _LABELS = {
     "min_unloaded_dwell": "Least unloaded time",
     "max_load_events": "Load events per hour, at most",
     "flow_margin": "Pump flow margin",
+    "switch_differential": "Pressure switch differential, at least",
+    "switch_tolerance": "Pressure switch repeatability",
+    "motor_sizing": "Motor sized at",
     "max_count": "Accumulators in one bank, at most",
     "types": "Accumulator types",
     "precharge_step": "Precharge search step",
@@ -166,8 +173,8 @@ def _example(help_text: str) -> str:
 def _field(name: str, key: str, help_text: str, limits: FormLimits) -> FormField:
     label = _LABELS.get(key, key.replace("_", " ").capitalize())
     placeholder, choices, suggestions = _example(help_text), (), ()
-    if name == "d_gas":
-        choices = ("", *typing.get_args(GasModel))
+    if key in OPTION_CHOICES:
+        choices = ("", *OPTION_CHOICES[key])
     elif name == "d_process":
         suggestions = ("auto", "isothermal", "adiabatic", "polytropic:1.3")
         placeholder = "auto"

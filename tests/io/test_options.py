@@ -527,6 +527,7 @@ def test_every_design_option_reads_its_own_example(key):
     example = _example(DESIGN_OPTIONS[key][2]) or {
         "gas": "ideal",
         "process": "isothermal",
+        "motor_sizing": "working",
         "max_count": "4",
         "types": "bladder,piston",
     }.get(key)
@@ -632,3 +633,28 @@ def test_cost_settings_from_text():
 def test_cost_settings_refusals(values, message):
     with refused(SettingsError, message):
         cost_settings(values)
+
+
+@pytest.mark.parametrize(
+    ("text", "fraction", "minimum"),
+    [
+        ("10%", 0.10, 0.0),
+        ("0.15", 0.15, 0.0),
+        ("15bar", 0.0, 15e5),
+        ("200psi", 0.0, 200 * 6894.757),
+    ],
+)
+def test_switch_differential_is_a_share_or_a_pressure(text, fraction, minimum):
+    # 1 psi = 6894.757 Pa (NIST SP 811, appendix B: sources.NIST_SP811).
+    s = design_settings({"switch_differential": text})
+    assert s.switch_differential == pytest.approx(fraction)
+    assert s.switch_differential_min == pytest.approx(minimum, rel=1e-6)
+
+
+def test_switch_and_motor_options_are_refused_in_one_line():
+    with pytest.raises(SettingsError, match=r"^--switch-differential: '60%' is not below 50 %"):
+        design_settings({"switch_differential": "60%"})
+    with pytest.raises(SettingsError, match=r"^--switch-tolerance: '20%' is not below 10 %"):
+        design_settings({"switch_tolerance": "20%"})
+    with pytest.raises(SettingsError, match=r"^--motor-sizing: 'shaft' is not a choice here"):
+        design_settings({"motor_sizing": "shaft"})
