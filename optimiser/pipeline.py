@@ -365,6 +365,13 @@ def run(study: Study, *, progress: Callable[[float, str], None] | None = None) -
     loop = _design_and_verify(study, cycle, catalogue, report)
     assert loop.result is not None
     _pump_only_fallback(study, cycle, catalogue, loop, report)
+    if study.settings.motor_sizing == "working" and loop.result.feasible:
+        loop.notes.append(
+            "caution: the motor is sized at the working (unload) pressure, not at the relief "
+            "setting: a stuck unloading valve sends the full flow over the relief valve and "
+            "overloads the motor; protect it (motor overload relay) or size it at the relief "
+            "setting"
+        )
     verification = loop.verification
     result = _outcome(loop.result, verification, loop.attempts, loop.notes)
     report(0.9, "costs")
