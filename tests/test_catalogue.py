@@ -119,14 +119,19 @@ def test_optional_keys_and_limits():
         'currency = "USD"\nnotes = ["a", "b"]\n'
         '[[accumulator]]\ntype = "piston-bottles"\nnominal_volume_l = 125\n'
         "max_pressure_bar = 350\nbore_mm = 160\nswept_volume_l = 25\nprice = 1\n"
-        'model = "PB-125"\nmax_flow_lps = 40\n' + MINIMAL + "\n[limits.bladder]\nratio = 4\n"
+        'model = "PB-125"\nmax_flow_lps = 40\n'
+        + MINIMAL
+        + "\n[limits.bladder]\nmax_pressure_ratio = 4\n"
         "[limits.gas-over-oil]\nmax_pressure_bar = 60.5\n"
     )
     cat = parse_catalogue_text(text)
     acc = cat.accumulators[0]
     assert acc.name == "PB-125" and acc.bore == pytest.approx(0.16)
     assert acc.swept_volume == pytest.approx(0.025) and acc.max_flow == pytest.approx(0.04)
-    assert cat.limits == {"bladder": {"ratio": 4.0}, "gas-over-oil": {"max_pressure_bar": 60.5}}
+    assert cat.limits == {
+        "bladder": {"max_pressure_ratio": 4.0},
+        "gas-over-oil": {"max_pressure_bar": 60.5},
+    }
     assert cat.currency == "USD" and cat.notes == ("a", "b")
 
 

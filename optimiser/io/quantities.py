@@ -30,6 +30,7 @@ from dataclasses import dataclass
 
 from stowflow.errors import SettingsError, StowflowError, UnitsError
 from stowflow.glossary import term
+from stowflow.io.rawtext import check_digits as _check_digits
 from stowflow.units import (
     DIMENSIONS,
     P_AMBIENT,
@@ -99,7 +100,7 @@ def _refusal(
 def check_digits(
     text: str, option: str, expected: str, error: type[StowflowError] = SettingsError
 ) -> None:
-    """Refuse decimal digits other than ASCII 0-9 (full-width, Arabic-Indic, ...).
+    """:func:`stowflow.io.rawtext.check_digits`, refusing with a SettingsError by default.
 
     Parameters
     ----------
@@ -111,20 +112,8 @@ def check_digits(
         What the option expects, for the message.
     error : type
         The error class to raise.
-
-    Raises
-    ------
-    StowflowError
-        The text has such a digit (the message names it and its code point).
     """
-    for ch in str(text):
-        if ch.isdecimal() and not ch.isascii():
-            raise _refusal(
-                option,
-                f"'{str(text).strip()}' has a digit other than 0-9 ('{ch}', U+{ord(ch):04X})",
-                expected,
-                error,
-            )
+    _check_digits(text, option, expected, error)
 
 
 @dataclass(frozen=True)
