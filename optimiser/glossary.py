@@ -315,7 +315,10 @@ def check_plausible(
     zero_ok: bool = False,
     error: type[StowflowError] = StowflowError,
 ) -> float:
-    """Refuse a value that is not finite, not positive or outside the term's plausible range.
+    """Refuse a value that is not finite or outside the term's plausible range.
+
+    A range that starts at 0 or above also refuses 0 (unless ``zero_ok``) and negatives by
+    sign; a range below 0 (temperatures in °C) refuses by its ends only.
 
     The one place where an input number meets the glossary's range; the message quotes the
     range: ``"{where}: {what} 6 is above 1; expected 0.05 to 1"``.
@@ -354,14 +357,14 @@ def check_plausible(
         ) from None
     if not math.isfinite(value):
         raise error(f"{where}: {what} {value} is not finite; expected a number")
-    if value < 0 or (value == 0 and not zero_ok):
+    if low >= 0 and (value < 0 or (value == 0 and not zero_ok)):
         bound = ">= 0" if zero_ok else "> 0"
         raise error(f"{where}: {what} {value:g} is not {bound}; expected a value {bound}")
     if value > high:
         raise error(
             f"{where}: {what} {value:g} is above {high:g}; expected {low:g} to {high:g}{unit_text}"
         )
-    if 0 < value < low:
+    if value < low and not (zero_ok and value == 0):
         raise error(
             f"{where}: {what} {value:g} is below {low:g}; expected {low:g} to {high:g}{unit_text}"
         )

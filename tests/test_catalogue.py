@@ -313,6 +313,28 @@ BAD_CATALOGUES = [
         "limits = 3\n" + _pumps(1) + MOTOR,
         r"'limits' must be tables \[limits.<type>\], found a integer",
     ),
+    # [limits.*] checked in full when the file is read, naming it (regression: a bad limit
+    # was accepted and failed later, in the design or the web page's worker).
+    (
+        _pumps(1) + MOTOR + "\n[limits.bladder]\nmax_pressure_ratio = -3\n",
+        r"^cat.toml: \[limits.bladder\] max_pressure_ratio = -3 is outside \(1, ",
+    ),
+    (
+        _pumps(1) + MOTOR + "\n[limits.bladder]\nratio = 3\n",
+        r"^cat.toml: \[limits.bladder\]: unknown key 'ratio'; known keys: max_pressure_ratio",
+    ),
+    # parsing limits: nesting and huge integers (regression: RecursionError, internal error)
+    (
+        "x = " + "[" * 5000 + "]" * 5000 + "\n",
+        r"^cat.toml, line 1: arrays, tables or objects nested more than 32 deep",
+    ),
+    ("x = " + "{a = " * 40 + "1" + "}" * 40 + "\n", r"nested more than 32 deep"),
+    (
+        _pumps(1).replace("price = 500", "price = " + "9" * 5000) + MOTOR,
+        r"^cat.toml: not a usable TOML catalogue \(Exceeds the limit",
+    ),
+    (_pumps(1, price=10**400) + MOTOR, r"price is far above 1e\+09; expected 0 to 1e\+09"),
+    (_pumps(1, speed_rpm="１４５０") + MOTOR, r"speed_rpm must be a number, found text '１４５０'"),
 ]
 
 

@@ -27,7 +27,7 @@ from stowflow.catalogue import (
 )
 from stowflow.cli._output import fixed, print_json, print_table
 from stowflow.cycle.duty import load_cycle
-from stowflow.errors import DesignFileError, SettingsError, StowflowError
+from stowflow.errors import CycleError, DesignFileError, SettingsError, StowflowError
 from stowflow.io.designfile import load_design, read_setpoints
 from stowflow.io.quantities import (
     parse_duration,
@@ -222,6 +222,11 @@ def run(args: argparse.Namespace) -> int:
     if args.min_pressure:
         min_p = parse_pressure_difference(args.min_pressure, "--min-pressure")
     cycle = load_cycle(args.cycle, min_pressure=min_p)
+    if cycle.pressure is None:
+        raise CycleError(
+            f"{args.cycle}: no pressure column; expected a column such as 'pressure [bar]' or "
+            "the option --min-pressure, e.g. --min-pressure 120bar"
+        )
     settings = DesignSettings()
     design_path = Path(args.design)
     sched = Path(args.schedule) if args.schedule else design_path.with_name("schedule.csv")
@@ -230,18 +235,27 @@ def run(args: argparse.Namespace) -> int:
     )
     changes = {}
     if args.time_constant:
-        changes["time_constant"] = parse_duration(args.time_constant, "--time-constant", above=0.0)
+        tau = parse_duration(args.time_constant, "--time-constant", above=0.0)
+        changes["--time-constant"] = {"time_constant": tau}
     if args.temperature:
-        changes["t_min"], changes["t_max"] = parse_temperature_range(
-            args.temperature, "--temperature"
-        )
+        t_min, t_max = parse_temperature_range(args.temperature, "--temperature")
+        changes["--temperature"] = {"t_min": t_min, "t_max": t_max}
     if args.gas:
-        changes["gas_model"] = args.gas
-    if changes:
-        settings = settings.with_(**changes)
+        changes["--gas"] = {"gas_model": args.gas}
+    for option, change in changes.items():
+        try:
+            settings = settings.with_(**change)
+        except StowflowError as exc:
+            text = str(exc).removeprefix("design settings: ")
+            raise SettingsError(f"{option}: {text}") from None
     controllers = tuple(dict.fromkeys(args.controller or CONTROLLERS))
     if controllers == ("schedule",) and design.bank is not None and design.schedule.empty:
-        raise DesignFileError(f"{sched}: no usable schedule.csv for the schedule controller")
+        why = next((n for n in notes if n.endswith("schedule controller skipped")), "")
+        why = why.removeprefix(f"{sched}: ").removesuffix("; schedule controller skipped")
+        raise DesignFileError(
+            f"{sched}: no usable schedule.csv for the schedule controller"
+            + (f" ({why})" if why else " (file not found)")
+        )
     bank = design.bank
     if args.controller and "position-switch" in controllers and bank is not None:
         if not bank.option.has_piston:

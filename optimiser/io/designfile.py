@@ -428,10 +428,10 @@ def load_design(
     pump = _read_pump(r, catalogue, notes)
     motor = _read_motor(r, catalogue, notes)
     bank, p_min, p_max = _read_bank(r, catalogue, notes)
-    relief = r.number(data, "", "relief_bar", required=False, term="relief_setting")
-    given = relief is not None
+    relief_bar = r.number(data, "", "relief_bar", required=False, term="relief_setting")
+    given = relief_bar is not None
     if given:
-        relief = relief * bar + pa
+        relief = relief_bar * bar + pa
     elif bank is not None:
         relief = s.relief_setting(p_max)
         notes.append("relief setting not in design.json: from the settings' relief margin")
@@ -443,7 +443,7 @@ def load_design(
     if bank is not None and given and p_max > relief * (1 + 1e-9):
         raise r.fail(
             "relief_bar",
-            f"{(relief - pa) / bar:g} bar is below accumulator.max_pressure_bar "
+            f"{relief_bar:g} bar is below accumulator.max_pressure_bar "
             f"{(p_max - pa) / bar:g} bar; expected the relief to open above the working window",
         )
     _check_relief(r, relief, pump, bank, given, notes)
@@ -624,6 +624,8 @@ def read_schedule_csv(path: str | Path) -> dict[str, np.ndarray]:
                     raise DesignFileError(f"{where}: not a number, found {_shown(cell)}")
                 term, unit = SCHEDULE_INPUT_COLUMNS[col]
                 value = float(cell)
+                if not math.isfinite(value):
+                    raise DesignFileError(f"{where}: out of range, found {_shown(cell)}")
                 value = 0.0 if value == 0 else value  # -0 as exported
                 check_plausible(
                     value, term, "value", where, unit=unit, zero_ok=True, error=DesignFileError

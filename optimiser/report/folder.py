@@ -119,7 +119,7 @@ def check_out_dir(
         stowflow did not write.
     """
     given = str(path)
-    shown = f"{option} {given}"
+    shown = f"{option} {given if len(given) <= 80 else given[:79] + '…'}"
     if not given.strip():
         raise OutputError(f"{option}: empty; expected a folder for the outputs")
     target = Path(os.path.realpath(path))

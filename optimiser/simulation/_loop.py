@@ -73,12 +73,13 @@ class Budget:
     ----------
     plant : Plant
         The run's fixed data (named in the message).
-    limit : float
-        Substeps allowed, [-].
+    limit : float, optional
+        Substeps allowed, [-] (default :data:`SUBSTEP_BUDGET`).
     """
 
-    def __init__(self, plant: Plant, limit: float = SUBSTEP_BUDGET) -> None:
-        self.plant, self.limit, self.used = plant, float(limit), 0.0
+    def __init__(self, plant: Plant, limit: float | None = None) -> None:
+        self.plant, self.used = plant, 0.0
+        self.limit = float(SUBSTEP_BUDGET if limit is None else limit)
 
     def spend(self, substeps: float) -> None:
         """Count ``substeps`` [-]; raise SimulationError once the budget is exceeded."""
