@@ -25,6 +25,8 @@ from collections.abc import Callable
 from dataclasses import dataclass
 from pathlib import Path
 
+from _web_server import TINY
+
 __all__ = [
     "BASE_CATALOGUE",
     "BASE_DESIGN",
@@ -35,13 +37,8 @@ __all__ = [
     "web_cases",
 ]
 
-#: Invented three-phase cycle (as tests/_web_server.TINY).
-CYCLE = (
-    "duration [s], flow [L/min], pressure [bar], label\n"
-    "2, 60, 150, press\n"
-    "3, 0, 120, hold\n"
-    "5, 0, 20, return\n"
-)
+#: Invented three-phase cycle: press, hold, return.
+CYCLE = TINY
 
 #: Header of a phase table with a pressure column.
 PHASES = "duration [s], flow [L/min], pressure [bar]"
@@ -273,18 +270,6 @@ def _cycle_texts(rng: random.Random) -> list[tuple[str, bytes | str]]:
     return out
 
 
-def _cycle_cases(rng: random.Random) -> list[CliCase]:
-    cases = []
-    for name, text in _cycle_texts(rng):
-
-        def build(folder: Path, text=text) -> tuple[list[str], str]:
-            path = _write(folder, "hostile_cycle.csv", text)
-            return ["check", str(path)], path.name
-
-        cases.append(CliCase("cycle", name, build))
-    return cases
-
-
 # --------------------------------------------------------------------------- catalogue TOML
 def _catalogue_texts(rng: random.Random) -> list[tuple[str, bytes | str]]:
     lines = BASE_CATALOGUE.splitlines()
@@ -369,21 +354,6 @@ def _catalogue_texts(rng: random.Random) -> list[tuple[str, bytes | str]]:
     return out
 
 
-def _catalogue_cases(rng: random.Random) -> list[CliCase]:
-    cases = []
-    for name, text in _catalogue_texts(rng):
-
-        def build(folder: Path, text=text) -> tuple[list[str], str]:
-            cycle = _write(folder, "cycle.csv", CYCLE)
-            path = _write(folder, "hostile_catalogue.toml", text)
-            argv = ["design", str(cycle), "--catalogue", str(path), "--gas", "ideal"]
-            argv += ["--no-verify", "--out", str(folder / "out")]
-            return argv, path.name
-
-        cases.append(CliCase("catalogue", name, build))
-    return cases
-
-
 # --------------------------------------------------------------------------- design.json
 def _set(d: dict, path: tuple[str, ...], value) -> dict:
     d = json.loads(json.dumps(d))
@@ -400,7 +370,7 @@ def _set(d: dict, path: tuple[str, ...], value) -> dict:
 _DELETE = object()
 
 
-def _design_texts(rng: random.Random) -> list[tuple[str, str]]:
+def _design_texts(rng: random.Random) -> list[tuple[str, bytes | str]]:
     paths = [
         ("accumulator", "nominal_volume_l"),
         ("accumulator", "count"),
@@ -423,7 +393,7 @@ def _design_texts(rng: random.Random) -> list[tuple[str, str]]:
         ("setpoints", "load_below_bar"),
         ("setpoints", "unload_above_bar"),
     ]
-    out: list[tuple[str, str]] = []
+    out: list[tuple[str, bytes | str]] = []
     for path in paths:
         for value in rng.sample(BAD_JSON_VALUES, 3):
             text = json.dumps(_set(BASE_DESIGN, path, value))
@@ -503,7 +473,7 @@ def _design_texts(rng: random.Random) -> list[tuple[str, str]]:
         "nan-literal": json.dumps(BASE_DESIGN).replace("133.0", "NaN"),
         "infinity-literal": json.dumps(BASE_DESIGN).replace("133.0", "Infinity"),
         "big-int": json.dumps(BASE_DESIGN).replace("133.0", "1" + "0" * 5000),
-        "latin1": '{"schema": "caf\xe9"}',
+        "latin1": '{"schema": "caf\xe9"}'.encode("latin-1"),
         "bom": "\ufeff" + json.dumps(BASE_DESIGN),
         "huge-string": json.dumps(_set(BASE_DESIGN, ("pump", "name"), "p" * 1_000_000)),
         "brackets-in-strings": json.dumps(_set(BASE_DESIGN, ("pump", "name"), "[{" * 5000)),
@@ -511,20 +481,6 @@ def _design_texts(rng: random.Random) -> list[tuple[str, str]]:
     }
     out += list(raw.items())
     return out
-
-
-def _design_cases(rng: random.Random) -> list[CliCase]:
-    cases = []
-    for name, text in _design_texts(rng):
-        data = text.encode("latin-1") if name == "latin1" else text
-
-        def build(folder: Path, data=data) -> tuple[list[str], str]:
-            cycle = _write(folder, "cycle.csv", CYCLE)
-            path = _write(folder, "hostile_design.json", data)
-            return ["simulate", str(path), str(cycle), "--controller", "pressure-switch"], path.name
-
-        cases.append(CliCase("design", name, build))
-    return cases
 
 
 # --------------------------------------------------------------------------- schedule.csv
@@ -567,30 +523,50 @@ def _schedule_texts(rng: random.Random) -> list[tuple[str, bytes | str]]:
     return out
 
 
-def _schedule_cases(rng: random.Random) -> list[CliCase]:
-    cases = []
-    for name, text in _schedule_texts(rng):
+def _cycle_argv(folder: Path, path: Path) -> list[str]:
+    return ["check", str(path)]
 
-        def build(folder: Path, text=text) -> tuple[list[str], str]:
-            cycle = _write(folder, "cycle.csv", CYCLE)
-            design = _write(folder, "design.json", json.dumps(BASE_DESIGN))
-            path = _write(folder, "hostile_schedule.csv", text)
-            argv = ["simulate", str(design), str(cycle), "--schedule", str(path)]
-            return [*argv, "--controller", "schedule"], path.name
 
-        cases.append(CliCase("schedule", name, build))
-    return cases
+def _catalogue_argv(folder: Path, path: Path) -> list[str]:
+    cycle = _write(folder, "cycle.csv", CYCLE)
+    argv = ["design", str(cycle), "--catalogue", str(path), "--gas", "ideal"]
+    return [*argv, "--no-verify", "--out", str(folder / "out")]
+
+
+def _design_argv(folder: Path, path: Path) -> list[str]:
+    cycle = _write(folder, "cycle.csv", CYCLE)
+    return ["simulate", str(path), str(cycle), "--controller", "pressure-switch"]
+
+
+def _schedule_argv(folder: Path, path: Path) -> list[str]:
+    cycle = _write(folder, "cycle.csv", CYCLE)
+    design = _write(folder, "design.json", json.dumps(BASE_DESIGN))
+    argv = ["simulate", str(design), str(cycle), "--schedule", str(path)]
+    return [*argv, "--controller", "schedule"]
+
+
+#: Kind → (texts, name of the hostile file, command line for it).
+_KINDS = {
+    "cycle": (_cycle_texts, "hostile_cycle.csv", _cycle_argv),
+    "catalogue": (_catalogue_texts, "hostile_catalogue.toml", _catalogue_argv),
+    "design": (_design_texts, "hostile_design.json", _design_argv),
+    "schedule": (_schedule_texts, "hostile_schedule.csv", _schedule_argv),
+}
 
 
 def cli_cases(seed: int = 15) -> list[CliCase]:
     """The command-line corpus (same cases for the same seed)."""
     rng = random.Random(seed)
-    return [
-        *_cycle_cases(rng),
-        *_catalogue_cases(rng),
-        *_design_cases(rng),
-        *_schedule_cases(rng),
-    ]
+    cases = []
+    for kind, (texts, filename, argv) in _KINDS.items():
+        for name, text in texts(rng):
+
+            def build(folder: Path, text=text, filename=filename, argv=argv):
+                path = _write(folder, filename, text)
+                return argv(folder, path), path.name
+
+            cases.append(CliCase(kind, name, build))
+    return cases
 
 
 # --------------------------------------------------------------------------- web form

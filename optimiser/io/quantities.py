@@ -30,7 +30,7 @@ from dataclasses import dataclass
 
 from stowflow.errors import SettingsError, StowflowError, UnitsError
 from stowflow.glossary import term
-from stowflow.io.rawtext import check_digits as _check_digits
+from stowflow.io.rawtext import check_digits
 from stowflow.units import (
     DIMENSIONS,
     P_AMBIENT,
@@ -95,25 +95,6 @@ def _refusal(
 ) -> StowflowError:
     """The one-line error: ``{option}: {found}; expected {expected}``."""
     return error(f"{option}: {found}; expected {expected}")
-
-
-def check_digits(
-    text: str, option: str, expected: str, error: type[StowflowError] = SettingsError
-) -> None:
-    """:func:`stowflow.io.rawtext.check_digits`, refusing with a SettingsError by default.
-
-    Parameters
-    ----------
-    text : str
-        The text as typed.
-    option : str
-        The option's name as the user sees it, e.g. ``"--volume"``.
-    expected : str
-        What the option expects, for the message.
-    error : type
-        The error class to raise.
-    """
-    _check_digits(text, option, expected, error)
 
 
 @dataclass(frozen=True)

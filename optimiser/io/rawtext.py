@@ -22,7 +22,7 @@ import os
 import re
 from pathlib import Path
 
-from stowflow.errors import StowflowError
+from stowflow.errors import SettingsError, StowflowError
 
 __all__ = [
     "MAX_BYTES",
@@ -51,7 +51,7 @@ MAX_BYTES: dict[str, int] = {
 
 
 def check_digits(
-    text: str, option: str, expected: str, error: type[StowflowError] = StowflowError
+    text: str, option: str, expected: str, error: type[StowflowError] = SettingsError
 ) -> None:
     """Refuse decimal digits other than ASCII 0-9 (full-width, Arabic-Indic, ...).
 
@@ -65,7 +65,7 @@ def check_digits(
     expected : str
         What is expected there, for the message.
     error : type
-        The :class:`~stowflow.errors.StowflowError` subclass to raise.
+        The :class:`~stowflow.errors.StowflowError` subclass to raise (default: a setting's).
 
     Raises
     ------

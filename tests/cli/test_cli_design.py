@@ -9,6 +9,7 @@ import sys
 
 import pytest
 import stowflow.cli as cli
+from _hostile import CYCLE as TINY
 from stowflow.cli import build_parser, join_dash_values
 from stowflow.cli.design import settings_from_args
 from stowflow.errors import StowflowError, UnitsError
@@ -173,13 +174,6 @@ def test_installed_program_returns_the_command_exit_code(tmp_path):
 
 
 # -- regressions of the hardening (issue: inputs, messages, --debug) --------------------------
-#: Invented three-phase cycle (as tests/_web_server.TINY).
-TINY = (
-    "duration [s], flow [L/min], pressure [bar], label\n"
-    "2, 60, 150, press\n"
-    "3, 0, 120, hold\n"
-    "5, 0, 20, return\n"
-)
 
 
 @pytest.mark.parametrize("where", ["before", "after"])

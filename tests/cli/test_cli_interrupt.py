@@ -20,15 +20,9 @@ import time
 from pathlib import Path
 
 import pytest
+from _hostile import CYCLE
 
 NAMES = ("report.html", "design.json", "schedule.csv", "spec.csv")
-#: Invented three-phase cycle (as tests/_web_server.TINY).
-CYCLE = (
-    "duration [s], flow [L/min], pressure [bar], label\n"
-    "2, 60, 150, press\n"
-    "3, 0, 120, hold\n"
-    "5, 0, 20, return\n"
-)
 #: When SIGINT is sent: fractions of an uninterrupted run, counted from the moment numpy is
 #: loaded (the command line's own Ctrl+C handling is then in place) to the program's end, [-].
 MOMENTS = (0.0, 0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8, 0.85, 0.9, 0.95, 0.98, 1.0)

@@ -8,6 +8,8 @@ import math
 import pandas as pd
 import pytest
 import stowflow.cli as cli
+from _hostile import BASE_DESIGN as SMALL
+from _hostile import CYCLE as TINY
 from stowflow.catalogue import default_catalogue_path, load_catalogue
 from stowflow.cycle.duty import load_cycle
 from stowflow.search.settings import DesignSettings
@@ -416,36 +418,6 @@ def test_cold_temperature_range_after_an_option(cli_run, tmp_path, repo_root):
 
 
 # --------------------------------------------------------------------------- hostile files
-#: Invented three-phase cycle (as tests/_web_server.TINY) and a design for it in the contract's
-#: keys, with catalogue components (ideal gas: fast).
-TINY = (
-    "duration [s], flow [L/min], pressure [bar], label\n"
-    "2, 60, 150, press\n"
-    "3, 0, 120, hold\n"
-    "5, 0, 20, return\n"
-)
-SMALL = {
-    "schema": "stowflow.design/1",
-    "gas_model": "ideal",
-    "process": "polytropic",
-    "polytropic_index": 1.33,
-    "temperature_c": {"min": 10.0, "max": 50.0},
-    "accumulator": {
-        "type": "bladder",
-        "nominal_volume_l": 16.0,
-        "count": 1,
-        "precharge_bar_at_20c": 133.0,
-        "min_pressure_bar": 164.2,
-        "max_pressure_bar": 199.3,
-        "max_allowable_pressure_bar": 330.0,
-    },
-    "pump": {"displacement_cm3": 10.0, "speed_rpm": 1450.0, "max_pressure_bar": 250.0},
-    "motor": {"rated_kw": 5.5},
-    "relief_bar": 219.3,
-    "setpoints": {"load_below_bar": 197.3, "unload_above_bar": 199.3},
-}
-
-
 def _edit(base: dict, **changes) -> dict:
     """``base`` with ``section__key=value`` changes (``key=value`` at the top level)."""
     data = json.loads(json.dumps(base))
@@ -463,7 +435,7 @@ def _edit(base: dict, **changes) -> dict:
     [
         # efficiencies above 1 (the catalogue refused them; simulate took them: energy 6× low)
         (
-            {"pump__displacement_cm3": 11.0, "pump__overall_efficiency": 6},
+            {"pump__displacement_cm3": 11.0, "pump__flow_lpm": None, "pump__overall_efficiency": 6},
             "key 'pump.overall_efficiency' 6 is above 1; expected 0.05 to 1",
         ),
         (
@@ -556,8 +528,7 @@ def test_a_stiff_plant_ends_in_seconds_with_a_clear_error(cli_run, tmp_path):
     # on a 16 L bank) kept the step loop busy for minutes; the run's sub-step budget ends it.
     cycle = tmp_path / "tiny.csv"
     cycle.write_text(TINY, encoding="utf-8")
-    data = _edit(SMALL, pump__displacement_cm3=10_000, pump__speed_rpm=10_000)
-    del data["pump"]["max_pressure_bar"]
+    data = _edit(SMALL, pump={"displacement_cm3": 10_000, "speed_rpm": 10_000})
     path = _write(tmp_path, data)
     code, _, stderr = cli_run("simulate", path, cycle, "--controller", "pressure-switch")
     assert code == 2 and stderr.count("\n") == 1

@@ -10,6 +10,8 @@ from __future__ import annotations
 import json
 
 import pytest
+from _hostile import BASE_DESIGN as DESIGN
+from _hostile import CYCLE as TINY
 from stowflow.catalogue import default_catalogue_path, load_catalogue
 from stowflow.cycle.duty import parse_cycle_text
 from stowflow.errors import SimulationError
@@ -17,33 +19,6 @@ from stowflow.io.designfile import load_design
 from stowflow.search.settings import DesignSettings
 from stowflow.simulation import _loop
 from stowflow.simulation.verify import verify
-
-#: Invented three-phase cycle (as tests/_web_server.TINY).
-TINY = (
-    "duration [s], flow [L/min], pressure [bar], label\n"
-    "2, 60, 150, press\n"
-    "3, 0, 120, hold\n"
-    "5, 0, 20, return\n"
-)
-#: An invented design for it (catalogue components, ideal gas, setpoints given).
-DESIGN = {
-    "schema": "stowflow.design/1",
-    "gas_model": "ideal",
-    "process": "isothermal",
-    "temperature_c": {"min": 10.0, "max": 50.0},
-    "accumulator": {
-        "type": "bladder",
-        "nominal_volume_l": 16.0,
-        "count": 1,
-        "precharge_bar_at_20c": 133.0,
-        "min_pressure_bar": 164.2,
-        "max_pressure_bar": 199.3,
-    },
-    "pump": {"displacement_cm3": 10.0, "speed_rpm": 1450.0},
-    "motor": {"rated_kw": 5.5},
-    "relief_bar": 219.3,
-    "setpoints": {"load_below_bar": 197.3, "unload_above_bar": 199.3},
-}
 
 
 def _design(tmp_path, pump=None):
