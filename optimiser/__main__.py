@@ -2,6 +2,10 @@
 
 import sys
 
-from stowflow.cli import entry
+try:
+    from stowflow.cli import entry
+except KeyboardInterrupt:  # Ctrl+C while the command line itself is imported
+    sys.stderr.write("stowflow: interrupted\n")
+    sys.exit(130)
 
 sys.exit(entry())

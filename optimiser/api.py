@@ -880,7 +880,9 @@ def simulate(
         from stowflow.search.settings import DesignSettings
 
         sched = Path(schedule) if schedule else path.with_name("schedule.csv")
-        d, base, notes = load_design(path, cat, DesignSettings(), sched, cycle)
+        d, base, notes = load_design(
+            path, cat, DesignSettings(), sched, cycle, schedule_required=bool(schedule)
+        )
         given = read_setpoints(path, base.p_ambient) or None
     else:
         raise SettingsError(

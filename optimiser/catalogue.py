@@ -46,8 +46,10 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from stowflow.cycle.csvtable import utf8_text
-from stowflow.errors import CatalogueError
-from stowflow.glossary import GLOSSARY
+from stowflow.errors import CatalogueError, StowflowError
+from stowflow.glossary import check_plausible
+from stowflow.io.rawtext import MAX_BYTES, check_nesting, read_limited
+from stowflow.physics.accumulator import rules_for
 from stowflow.units import P_AMBIENT, gauge_to_abs, si_factor
 
 __all__ = [
@@ -304,13 +306,7 @@ def load_catalogue(path: str | Path) -> Catalogue:
         Missing or unreadable file, not UTF-8, TOML syntax, or invalid content.
     """
     path = Path(path)
-    if not path.is_file():
-        what = "is a folder" if path.is_dir() else "file not found"
-        raise CatalogueError(f"{path}: {what}; expected a TOML catalogue file")
-    try:
-        data = path.read_bytes()
-    except OSError as exc:
-        raise CatalogueError(f"{path}: cannot read the file ({exc.strerror})") from None
+    data = read_limited(path, "catalogue", CatalogueError, "a TOML catalogue file")
     text = utf8_text(data, str(path), CatalogueError, "a UTF-8 TOML file")
     return parse_catalogue_text(text, source=str(path))
 
@@ -330,14 +326,25 @@ def parse_catalogue_text(text: str, *, source: str = "<memory>") -> Catalogue:
     Catalogue
         Components in SI units.
     """
+    limit = MAX_BYTES["catalogue"]
+    if len(text) > limit:
+        raise CatalogueError(
+            f"{source}: catalogue too large, found {len(text):,} characters; expected at most "
+            f"{limit:,}"
+        )
+    check_nesting(text, source, "toml", CatalogueError)
     try:
         doc = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise CatalogueError(f"{source}: TOML syntax error: {exc}; expected valid TOML") from None
+    except (ValueError, RecursionError) as exc:  # e.g. an integer of more than 4300 digits
+        raise CatalogueError(
+            f"{source}: not a usable TOML catalogue ({str(exc)[:80]}); expected valid TOML"
+        ) from None
     for key in doc:
         if key not in _TOP_KEYS:
             raise CatalogueError(
-                f"{source}: unknown top-level key '{key}'{_hint(key, _TOP_KEYS)}; expected "
+                f"{source}: unknown top-level key {_shown(key)}{_hint(key, _TOP_KEYS)}; expected "
                 f"{', '.join(_TOP_KEYS)}"
             )
     rows = {name: _rows(doc, name, text, source) for name in _SECTIONS}
@@ -354,11 +361,11 @@ def parse_catalogue_text(text: str, *, source: str = "<memory>") -> Catalogue:
         _unique(items, rows[name])
     currency = doc.get("currency", "")
     if not isinstance(currency, str) or (currency and not currency.strip()):
-        raise CatalogueError(f'{source}: currency {currency!r}; expected text such as "EUR"')
+        raise CatalogueError(f'{source}: currency {_shown(currency)}; expected text such as "EUR"')
     notes = doc.get("notes", ())
     notes = (notes,) if isinstance(notes, str) else notes
     if not isinstance(notes, list | tuple) or not all(isinstance(n, str) for n in notes):
-        raise CatalogueError(f"{source}: notes {notes!r}; expected text or a list of texts")
+        raise CatalogueError(f"{source}: notes {_shown(notes)}; expected text or a list of texts")
     return Catalogue(
         accumulators=accumulators,
         pumps=pumps,
@@ -391,7 +398,8 @@ def _rows(doc: dict, name: str, text: str, source: str) -> list[tuple[dict, str]
         for key in row:
             if key not in keys:
                 raise CatalogueError(
-                    f"{where}: unknown key '{key}'{_hint(key, keys)}; expected {', '.join(keys)}"
+                    f"{where}: unknown key {_shown(key)}{_hint(key, keys)}; expected "
+                    f"{', '.join(keys)}"
                 )
         for key, spec in keys.items():
             if spec[1] and key not in row:
@@ -408,24 +416,10 @@ def _number(row: dict, key: str, where: str, spec: _Number) -> float | None:
     _, _, term_key, unit, dimension, zero_ok = spec
     if isinstance(value, bool) or not isinstance(value, int | float):
         raise CatalogueError(
-            f"{where}: {key} must be a number, found {_kind(value)} {value!r}; expected e.g. "
+            f"{where}: {key} must be a number, found {_kind(value)} {_shown(value)}; expected e.g. "
             f"{key} = 10"
         )
-    low, high = GLOSSARY[term_key].plausible
-    unit_text = f" {unit}" if unit else ""
-    if not math.isfinite(value):
-        raise CatalogueError(f"{where}: {key} {value} is not finite; expected a number")
-    if value < 0 or (value == 0 and not zero_ok):
-        bound = ">= 0" if zero_ok else "> 0"
-        raise CatalogueError(f"{where}: {key} {value:g} is not {bound}; expected a value {bound}")
-    if value > high:
-        raise CatalogueError(
-            f"{where}: {key} {value:g} is above {high:g}; expected {low:g} to {high:g}{unit_text}"
-        )
-    if 0 < value < low:
-        raise CatalogueError(
-            f"{where}: {key} {value:g} is below {low:g}; expected {low:g} to {high:g}{unit_text}"
-        )
+    check_plausible(value, term_key, key, where, unit=unit, zero_ok=zero_ok, error=CatalogueError)
     return float(value) * (si_factor(unit, dimension) if unit else 1.0)
 
 
@@ -434,7 +428,7 @@ def _text(row: dict, key: str, where: str, choices: tuple[str, ...] = ()) -> str
         return None
     value = row[key]
     if not isinstance(value, str) or not value.strip():
-        raise CatalogueError(f"{where}: {key} {value!r}; expected non-empty text")
+        raise CatalogueError(f"{where}: {key} {_shown(value)}; expected non-empty text")
     value = value.strip()
     if choices and value not in choices:
         raise CatalogueError(
@@ -550,10 +544,11 @@ def _limits(value, source: str) -> dict[str, dict[str, float]]:
         )
     out: dict[str, dict[str, float]] = {}
     for kind, table in value.items():
-        where = f"{source}, [limits.{kind}]"
+        where = f"{source}, [limits.{_shown(kind)[1:-1]}]"
         if kind not in ACCUMULATOR_TYPES:
             raise CatalogueError(
-                f"{where}: '{kind}' is not an accumulator type{_hint(kind, ACCUMULATOR_TYPES)}; "
+                f"{where}: {_shown(kind)} is not an accumulator type"
+                f"{_hint(kind, ACCUMULATOR_TYPES)}; "
                 f"expected one of {', '.join(ACCUMULATOR_TYPES)}"
             )
         if not isinstance(table, dict):
@@ -562,11 +557,15 @@ def _limits(value, source: str) -> dict[str, dict[str, float]]:
         for key, number in table.items():
             if isinstance(number, bool) or not isinstance(number, int | float):
                 raise CatalogueError(
-                    f"{where}: {key} must be a number, found {_kind(number)} {number!r}"
+                    f"{where}: {key} must be a number, found {_kind(number)} {_shown(number)}"
                 )
             if not math.isfinite(number):
                 raise CatalogueError(f"{where}: {key} {number} is not finite; expected a number")
             rules[key] = float(number)
+        try:
+            rules_for(kind, rules)  # known keys, each in its range: refused now, not later
+        except StowflowError as exc:
+            raise CatalogueError(f"{source}: {exc}") from None
         out[kind] = rules
     return out
 
@@ -581,6 +580,12 @@ def _kind(value) -> str:
         dict: "table",
     }
     return names.get(type(value), type(value).__name__)
+
+
+def _shown(value, width: int = 40) -> str:
+    """``repr(value)`` cut to ``width`` characters for a message."""
+    text = repr(value)
+    return text if len(text) <= width else text[: width - 1] + "…"
 
 
 def _hint(word: str, choices) -> str:

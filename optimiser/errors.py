@@ -13,10 +13,13 @@ __all__ = [
     "CatalogueError",
     "CycleError",
     "DesignFileError",
+    "OutputError",
     "SettingsError",
+    "SimulationError",
     "SizingError",
     "StowflowError",
     "UnitsError",
+    "one_line",
 ]
 
 
@@ -46,3 +49,16 @@ class SettingsError(StowflowError):
 
 class DesignFileError(StowflowError):
     """A design JSON file (e.g. hand-edited for ``stowflow simulate``) is not usable."""
+
+
+class SimulationError(StowflowError):
+    """The time-domain simulation cannot carry a design (e.g. it exceeds its work budget)."""
+
+
+class OutputError(StowflowError):
+    """An output folder cannot be used or written (checked before the work starts)."""
+
+
+def one_line(message: str) -> str:
+    """``message`` on one line: line breaks (e.g. from a quoted CSV field) shown as ``\\n``."""
+    return str(message).replace("\r\n", "\\n").replace("\n", "\\n").replace("\r", "\\n")

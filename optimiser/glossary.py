@@ -8,9 +8,12 @@ refused as absurd (a typo or a wrong unit, e.g. 1e9 L/min); it is deliberately w
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
-__all__ = ["GLOSSARY", "Term", "term"]
+from stowflow.errors import StowflowError
+
+__all__ = ["GLOSSARY", "Term", "check_plausible", "term"]
 
 
 @dataclass(frozen=True)
@@ -89,6 +92,7 @@ _TERMS = (
         "m³/s",
         "flow",
         "Effective pump delivery, displacement × speed × volumetric efficiency.",
+        (0.0, 100_000.0),
     ),
     Term(
         "pump_loaded",
@@ -105,6 +109,7 @@ _TERMS = (
         "m³",
         "volume",
         "Oil stored in the accumulator bank (zero at or below precharge).",
+        (0.0, 5_000_000.0),
     ),
     Term(
         "nominal_volume",
@@ -123,6 +128,7 @@ _TERMS = (
         "Pa",
         "pressure",
         "Nitrogen precharge pressure, gauge, stated at 20 °C with no oil in the accumulator.",
+        (0.0, 2_000.0),
     ),
     Term(
         "min_pressure",
@@ -131,6 +137,7 @@ _TERMS = (
         "Pa",
         "pressure",
         "Minimum working pressure (the pump loads at or above it), gauge.",
+        (0.0, 2_000.0),
     ),
     Term(
         "max_pressure",
@@ -139,6 +146,7 @@ _TERMS = (
         "Pa",
         "pressure",
         "Maximum working pressure (the pump unloads at it), gauge.",
+        (0.0, 2_000.0),
     ),
     Term(
         "max_allowable_pressure",
@@ -156,6 +164,7 @@ _TERMS = (
         "Pa",
         "pressure",
         "Cracking pressure of the relief valve, gauge.",
+        (0.0, 2_000.0),
     ),
     Term(
         "switch_differential",
@@ -184,6 +193,15 @@ _TERMS = (
         "displacement",
         "Geometric displacement of the pump per revolution.",
         (0.01, 10_000.0),
+    ),
+    Term(
+        "count",
+        "z",
+        "-",
+        "-",
+        "none",
+        "Accumulators of one size in a bank.",
+        (1.0, 1_000.0),
     ),
     Term("speed", "n", "rpm", "1/s", "speed", "Shaft speed of pump and motor.", (1.0, 10_000.0)),
     Term(
@@ -305,6 +323,72 @@ _TERMS = (
 
 #: All terms by key.
 GLOSSARY: dict[str, Term] = {t.key: t for t in _TERMS}
+
+
+def check_plausible(
+    value: float,
+    key: str,
+    what: str,
+    where: str,
+    *,
+    unit: str | None = None,
+    zero_ok: bool = False,
+    error: type[StowflowError] = StowflowError,
+) -> float:
+    """Refuse a value that is not finite or outside the term's plausible range.
+
+    A range that starts at 0 or above also refuses 0 (unless ``zero_ok``) and negatives by
+    sign; a range below 0 (temperatures in °C) refuses by its ends only.
+
+    The one place where an input number meets the glossary's range; the message quotes the
+    range: ``"{where}: {what} 6 is above 1; expected 0.05 to 1"``.
+
+    Parameters
+    ----------
+    value : float
+        The value in the unit the input is written in (``unit``).
+    key : str
+        Glossary key whose plausible range applies (given in the term's trade unit).
+    what : str
+        Name of the value in the message, e.g. ``"overall_efficiency"``.
+    where : str
+        Message prefix: file, line, table or key.
+    unit : str, optional
+        Unit as written in the input, shown after the range (default the term's unit).
+    zero_ok : bool
+        Accept 0 (below the range's lower end).
+    error : type
+        The :class:`~stowflow.errors.StowflowError` subclass to raise.
+
+    Returns
+    -------
+    float
+        The value, unchanged, [unit].
+    """
+    t = GLOSSARY[key]
+    low, high = t.plausible
+    shown = t.unit if unit is None else unit
+    unit_text = f" {shown}" if shown and shown != "-" else ""
+    try:
+        value = float(value)
+    except OverflowError:  # an integer beyond the float range
+        raise error(
+            f"{where}: {what} is far above {high:g}; expected {low:g} to {high:g}{unit_text}"
+        ) from None
+    if not math.isfinite(value):
+        raise error(f"{where}: {what} {value} is not finite; expected a number")
+    if low >= 0 and (value < 0 or (value == 0 and not zero_ok)):
+        bound = ">= 0" if zero_ok else "> 0"
+        raise error(f"{where}: {what} {value:g} is not {bound}; expected a value {bound}")
+    if value > high:
+        raise error(
+            f"{where}: {what} {value:g} is above {high:g}; expected {low:g} to {high:g}{unit_text}"
+        )
+    if value < low and not (zero_ok and value == 0):
+        raise error(
+            f"{where}: {what} {value:g} is below {low:g}; expected {low:g} to {high:g}{unit_text}"
+        )
+    return value
 
 
 def term(key: str) -> Term:

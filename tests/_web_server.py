@@ -3,10 +3,13 @@
 * :func:`start_serve` / :func:`stop_serve`: ``python -m stowflow serve`` on a free loopback
   port in a subprocess, optionally with a private ``TMPDIR``; stopped with Ctrl+C (SIGINT).
 * :func:`upload` / :func:`wait_final`: post a cycle through the form and follow the study;
-  they take any ``httpx.Client`` (Starlette's ``TestClient`` is one).
+  they take any ``httpx.Client`` (Starlette's ``TestClient`` is one).  A post carries the
+  client's own address as its ``Origin`` (:func:`same_origin`), as the page's form does in a
+  browser; the server refuses posts without it (cross-site request forgery).
 * :func:`upload_burst`: many uploads at the same moment from threads; :func:`load_run`: a
   server, a burst, the accepted designs to their end, memory watched (test and benchmark).
-* :func:`slow_job`: a worker job that is slow on purpose, for the time-limit tests.
+* :func:`slow_job`: a worker job that is slow on purpose, for the time-limit tests;
+  :func:`quick_job`: one that ends at once, for tests of what the form accepts.
 * :class:`MemoryWatch`: the resident memory of a process and all its descendants (the fork
   server and the job processes), sampled from ``/proc`` (Linux).
 
@@ -15,6 +18,7 @@ The cycle here is invented; nothing here checks the physics.
 
 from __future__ import annotations
 
+import contextlib
 import os
 import signal
 import socket
@@ -38,6 +42,8 @@ __all__ = [
     "free_port",
     "load_run",
     "percentile",
+    "quick_job",
+    "same_origin",
     "slow_job",
     "start_serve",
     "stop_serve",
@@ -77,6 +83,13 @@ def slow_job(conn, study, out_dir: str) -> None:
     conn.send(("progress", 0.01, "waiting on purpose (test)"))
     time.sleep(SLOW_JOB_S)
     conn.send(("error", f"slow_job was not ended within {SLOW_JOB_S:g} s"))
+
+
+def quick_job(conn, study, out_dir: str) -> None:
+    """A worker job that ends at once without a design (the form's checks are under test)."""
+    with contextlib.suppress(OSError):  # the server may have shut down meanwhile
+        conn.send(("done", {"status": "not run (test)", "reason": None, "verified": None}))
+        conn.close()
 
 
 def free_port() -> int:
@@ -175,13 +188,19 @@ def stop_serve(served: Served, stop_s: float = STOP_S) -> str:
         served.log.close()
 
 
+def same_origin(client_or_url: httpx.Client | str) -> dict[str, str]:
+    """The ``Origin`` header a browser sends with the page's own form: the server's address."""
+    url = client_or_url if isinstance(client_or_url, str) else str(client_or_url.base_url)
+    return {"origin": url.rstrip("/")}
+
+
 def upload(
     client: httpx.Client, data: bytes | str, name: str = "cycle.csv", **fields: str
 ) -> httpx.Response:
     """Post a cycle file through the form, with :data:`FAST` and ``fields``; no redirects."""
     files = {"cycle": (name, data, "text/csv")}
     files.update({k: (None, v) for k, v in {**FAST, **fields}.items()})
-    return client.post("/studies", files=files, follow_redirects=False)
+    return client.post("/studies", files=files, headers=same_origin(client), follow_redirects=False)
 
 
 def wait_final(client: httpx.Client, location: str, timeout: float) -> dict:
@@ -241,7 +260,7 @@ def upload_burst(
     start = threading.Barrier(n)
 
     def client() -> None:
-        with httpx.Client(base_url=url, timeout=timeout) as c:
+        with httpx.Client(base_url=url, timeout=timeout, headers=same_origin(url)) as c:
             start.wait()
             t0 = time.perf_counter()
             try:

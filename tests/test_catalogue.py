@@ -121,14 +121,19 @@ def test_optional_keys_and_limits():
         'currency = "USD"\nnotes = ["a", "b"]\n'
         '[[accumulator]]\ntype = "piston-bottles"\nnominal_volume_l = 125\n'
         "max_pressure_bar = 350\nbore_mm = 160\nswept_volume_l = 25\nprice = 1\n"
-        'model = "PB-125"\nmax_flow_lps = 40\n' + MINIMAL + "\n[limits.bladder]\nratio = 4\n"
+        'model = "PB-125"\nmax_flow_lps = 40\n'
+        + MINIMAL
+        + "\n[limits.bladder]\nmax_pressure_ratio = 4\n"
         "[limits.gas-over-oil]\nmax_pressure_bar = 60.5\n"
     )
     cat = parse_catalogue_text(text)
     acc = cat.accumulators[0]
     assert acc.name == "PB-125" and acc.bore == pytest.approx(0.16)
     assert acc.swept_volume == pytest.approx(0.025) and acc.max_flow == pytest.approx(0.04)
-    assert cat.limits == {"bladder": {"ratio": 4.0}, "gas-over-oil": {"max_pressure_bar": 60.5}}
+    assert cat.limits == {
+        "bladder": {"max_pressure_ratio": 4.0},
+        "gas-over-oil": {"max_pressure_bar": 60.5},
+    }
     assert cat.currency == "USD" and cat.notes == ("a", "b")
 
 
@@ -310,6 +315,28 @@ BAD_CATALOGUES = [
         "limits = 3\n" + _pumps(1) + MOTOR,
         r"'limits' must be tables \[limits.<type>\], found a integer",
     ),
+    # [limits.*] checked in full when the file is read, naming it (regression: a bad limit
+    # was accepted and failed later, in the design or the web page's worker).
+    (
+        _pumps(1) + MOTOR + "\n[limits.bladder]\nmax_pressure_ratio = -3\n",
+        r"^cat.toml: \[limits.bladder\] max_pressure_ratio = -3 is outside \(1, ",
+    ),
+    (
+        _pumps(1) + MOTOR + "\n[limits.bladder]\nratio = 3\n",
+        r"^cat.toml: \[limits.bladder\]: unknown key 'ratio'; known keys: max_pressure_ratio",
+    ),
+    # parsing limits: nesting and huge integers (regression: RecursionError, internal error)
+    (
+        "x = " + "[" * 5000 + "]" * 5000 + "\n",
+        r"^cat.toml, line 1: arrays, tables or objects nested more than 32 deep",
+    ),
+    ("x = " + "{a = " * 40 + "1" + "}" * 40 + "\n", r"nested more than 32 deep"),
+    (
+        _pumps(1).replace("price = 500", "price = " + "9" * 5000) + MOTOR,
+        r"^cat.toml: not a usable TOML catalogue \(Exceeds the limit",
+    ),
+    (_pumps(1, price=10**400) + MOTOR, r"price is far above 1e\+09; expected 0 to 1e\+09"),
+    (_pumps(1, speed_rpm="１４５０") + MOTOR, r"speed_rpm must be a number, found text '１４５０'"),
 ]
 
 

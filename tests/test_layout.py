@@ -27,6 +27,7 @@ LAYERS: dict[str, int] = {
     "stowflow.errors": 0,
     "stowflow.glossary": 0,
     "stowflow.io.jsonable": 0,
+    "stowflow.io.rawtext": 0,
     "stowflow.physics": 1,
     "stowflow.cycle": 2,
     "stowflow.catalogue": 2,

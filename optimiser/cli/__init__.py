@@ -3,7 +3,9 @@
 The shell only parses options, calls the library and prints.  Each command lives in its own
 module in this package with two functions: ``register(subparsers, common)`` that adds its
 parser, and ``run(args) -> int`` that does the work.  Errors the user can cause
-(:class:`stowflow.errors.StowflowError`) become one line on stderr and exit code 2.
+(:class:`stowflow.errors.StowflowError`) become one line on stderr and exit code 2; exit
+code 1 is left to results (no design exists, a design fails its verification); Ctrl+C is one
+line and exit code 130, wherever it comes (start-up included).
 """
 
 from __future__ import annotations
@@ -12,9 +14,10 @@ import argparse
 import gc
 import importlib
 import re
+import signal
 import sys
 
-from stowflow.errors import StowflowError
+from stowflow.errors import StowflowError, one_line
 from stowflow.version import __version__
 
 __all__ = ["COMMANDS", "build_parser", "join_dash_values", "main"]
@@ -41,9 +44,18 @@ _DESCRIPTION = (
 
 def build_parser() -> argparse.ArgumentParser:
     """Build the argument parser with every registered command."""
+    # --debug is taken before the command and after it.  The commands' copy has no default,
+    # so that it never overwrites the value given before the command (argparse copies a
+    # subparser's defaults over the main parser's).
     common = argparse.ArgumentParser(add_help=False)
-    common.add_argument("--debug", action="store_true", help="show the full traceback on errors")
-    parser = argparse.ArgumentParser(prog="stowflow", description=_DESCRIPTION, parents=[common])
+    common.add_argument(
+        "--debug",
+        action="store_true",
+        default=argparse.SUPPRESS,
+        help="show the full traceback on errors",
+    )
+    parser = argparse.ArgumentParser(prog="stowflow", description=_DESCRIPTION)
+    parser.add_argument("--debug", action="store_true", help="show the full traceback on errors")
     parser.add_argument("--version", action="version", version=f"stowflow {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     sub.required = True
@@ -93,30 +105,45 @@ def join_dash_values(argv: list[str], parser: argparse.ArgumentParser) -> list[s
     return out
 
 
-def main(argv: list[str] | None = None) -> int:
-    """Run the command line; return the process exit code."""
-    argv = list(sys.argv[1:] if argv is None else argv)
-    parser = build_parser()
-    argv = join_dash_values(argv, parser)
-    args = parser.parse_args(argv)
-    debug = bool(getattr(args, "debug", False))
+def _interrupted() -> int:
+    """Ctrl+C: one line on stderr, exit code 130 (128 + SIGINT)."""
     try:
+        print("stowflow: interrupted", file=sys.stderr)
+    except (KeyboardInterrupt, OSError):  # pragma: no cover - a second Ctrl+C, a closed stderr
+        pass
+    return 130
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Run the command line; return the process exit code.
+
+    Exit codes: 0 success; 1 a result that is not a success (no design exists, a design
+    fails its verification); 2 bad input (one line on stderr naming the file, key or line
+    and the limit); 130 interrupted (Ctrl+C).
+    """
+    debug = False
+    try:
+        argv = list(sys.argv[1:] if argv is None else argv)
+        debug = "--debug" in argv[: argv.index("--")] if "--" in argv else "--debug" in argv
+        parser = build_parser()  # imports every command: the slow part of the start-up
+        argv = join_dash_values(argv, parser)
+        args = parser.parse_args(argv)
+        debug = bool(getattr(args, "debug", False))
         return int(args.func(args) or 0)
     except StowflowError as exc:
         if debug:
             raise
-        print(f"stowflow: error: {exc}", file=sys.stderr)
+        print(f"stowflow: error: {one_line(exc)}", file=sys.stderr)
         return 2
     except KeyboardInterrupt:
-        print("stowflow: interrupted", file=sys.stderr)
-        return 130
+        return _interrupted()
     except BrokenPipeError:  # e.g. `stowflow check x.csv --json | head`
         return 0
     except Exception as exc:
         if debug:
             raise
         print(
-            f"stowflow: internal error ({type(exc).__name__}: {exc}); "
+            f"stowflow: internal error ({type(exc).__name__}: {one_line(exc)}); "
             "this is a bug - rerun with --debug and report the traceback",
             file=sys.stderr,
         )
@@ -126,12 +153,21 @@ def main(argv: list[str] | None = None) -> int:
 def entry() -> int:
     """The ``stowflow`` program: :func:`main`, then leave the heap to the process's exit.
 
+    Ctrl+C is caught from here on (Python raises it as KeyboardInterrupt; the interpreter's
+    own start-up and the import of this small module come before and are out of reach), and
+    a second Ctrl+C while the process ends stops it without a traceback.
+
     The process ends right after the command, so the interpreter's last garbage collection
     over everything the design built (Pyomo's model, the report's figures) only costs time:
     about 0.25 s of a 5 s design (tests/benchmarks/bench_design.py).  ``gc.freeze`` moves
     it out of the collector's reach; files are closed by then and exit handlers still run.
     """
-    code = main()
+    try:
+        signal.signal(signal.SIGINT, signal.default_int_handler)
+        code = main()
+    except KeyboardInterrupt:  # between the handler's installation and main's own
+        code = _interrupted()
+    signal.signal(signal.SIGINT, signal.SIG_DFL)  # a second Ctrl+C now ends the process quietly
     gc.freeze()
     return code
 

@@ -3,13 +3,34 @@
 from __future__ import annotations
 
 import json
+import math
 import sys
 from collections.abc import Iterable, Sequence
 from typing import Any
 
 from stowflow.io.jsonable import to_jsonable
 
-__all__ = ["print_json", "print_table", "progress"]
+__all__ = ["fixed", "print_json", "print_table", "progress"]
+
+#: Magnitude from which :func:`fixed` shows significant digits instead of fixed decimals, so
+#: that no value (a ratio over a flow of 1e-300 L/min, say) is wider than a table cell.
+FIXED_LIMIT = 1e9
+
+
+def fixed(x: float, decimals: int = 1) -> str:
+    """``x`` with ``decimals`` decimals, or with 4 significant digits from 1e9 up.
+
+    Parameters
+    ----------
+    x : float
+        The value, in the unit shown.
+    decimals : int
+        Decimals below :data:`FIXED_LIMIT`, [-].
+    """
+    x = float(x)
+    if not math.isfinite(x) or abs(x) >= FIXED_LIMIT:
+        return f"{x:.4g}"
+    return f"{x:.{decimals}f}"
 
 
 def print_json(data: Any, stream=None) -> None:

@@ -7,7 +7,7 @@ import sys
 from pathlib import Path
 
 from stowflow.cli._costopts import add_cost_options, cost_settings_from_args
-from stowflow.cli._output import print_json, print_table, progress
+from stowflow.cli._output import fixed, print_json, print_table, progress
 from stowflow.io.options import DESIGN_OPTIONS, OPTION_CHOICES, design_settings
 from stowflow.io.quantities import parse_duration, parse_pressure_difference
 from stowflow.units import abs_to_gauge
@@ -103,34 +103,45 @@ def register(subparsers, common) -> None:
 
 
 def run_study(args: argparse.Namespace, cycle, *, out_default: Path, name: str | None = None):
-    """Run the pipeline for parsed options and write the outputs; return (result, paths)."""
+    """Run the pipeline for parsed options and write the outputs; return (result, paths).
+
+    Every input is checked before the design runs: the options, the cycle, the catalogue
+    and the output folder (:func:`stowflow.report.check_out_dir`).
+    """
+    from stowflow.catalogue import default_catalogue_path, load_catalogue
+    from stowflow.cycle.duty import load_cycle
     from stowflow.pipeline import Study
     from stowflow.pipeline import run as run_pipeline
-    from stowflow.report import write_study
+    from stowflow.report import OUTPUTS, check_out_dir, write_study
 
     settings = settings_from_args(args)
     costs = cost_settings_from_args(args)
     min_p = getattr(args, "min_pressure", None)
     step = getattr(args, "step", None)
+    cycle = load_cycle(
+        cycle,
+        step=parse_duration(step, "--step", above=0.0) if step else None,
+        min_pressure=parse_pressure_difference(min_p, "--min-pressure") if min_p else None,
+    )
+    catalogue = load_catalogue(getattr(args, "catalogue", None) or default_catalogue_path())
+    out = Path(args.out) if getattr(args, "out", None) else out_default / (name or cycle.name)
+    check_out_dir(out, "--out", OUTPUTS)
     study = Study(
         cycle=cycle,
-        catalogue=getattr(args, "catalogue", None),
+        catalogue=catalogue,
         settings=settings,
         costs=costs,
         name=name,
-        min_pressure=parse_pressure_difference(min_p, "--min-pressure") if min_p else None,
-        step=parse_duration(step, "--step", above=0.0) if step else None,
         verify=not getattr(args, "no_verify", False),
     )
     with progress("designing", total=1.0) as update:
         result = run_pipeline(study, progress=lambda f, label: update(f, label=label))
-    out = Path(args.out) if getattr(args, "out", None) else out_default / result.name
     paths = write_study(result, out)
     return result, paths
 
 
 def _bar(p_abs: float) -> str:
-    return f"{abs_to_gauge(p_abs) / 1e5:.1f}"
+    return fixed(abs_to_gauge(p_abs) / 1e5)
 
 
 def print_summary(result, paths, stream=None) -> None:
@@ -145,7 +156,7 @@ def print_summary(result, paths, stream=None) -> None:
             b = d.bank
             rows += [
                 ("accumulator", f"{b.count} × {b.option.name}", ""),
-                ("total gas volume", f"{b.gas_volume * 1e3:.1f}", "L"),
+                ("total gas volume", fixed(b.gas_volume * 1e3), "L"),
                 ("precharge at 20 °C", _bar(b.precharge), "bar"),
             ]
         else:
@@ -153,11 +164,13 @@ def print_summary(result, paths, stream=None) -> None:
         rows += [
             ("working window", f"{_bar(d.p_min)} – {_bar(d.p_max)}", "bar"),
             ("relief setting", _bar(d.relief), "bar"),
-            ("pump", f"{d.pump.name} ({d.pump.flow * 6e4:.1f} L/min)", ""),
+            ("pump", f"{d.pump.name} ({fixed(d.pump.flow * 6e4)} L/min)", ""),
             ("motor", f"{d.motor.rated_power / 1e3:g}", "kW"),
             (
                 "installed power / lower bound",
-                f"{d.installed_power / d.lower_bound_power:.2f}",
+                fixed(d.installed_power / d.lower_bound_power, 2)
+                if d.lower_bound_power > 0
+                else "-",
                 "-",
             ),
         ]
@@ -167,7 +180,7 @@ def print_summary(result, paths, stream=None) -> None:
                 (
                     "verification",
                     f"{'passed' if v.passed else 'FAILED'} "
-                    f"({v.controller}, margin {v.min_margin / 1e5:.1f} bar)",
+                    f"({v.controller}, margin {fixed(v.min_margin / 1e5)} bar)",
                     "",
                 )
             )
@@ -180,9 +193,9 @@ def print_summary(result, paths, stream=None) -> None:
                         "bar",
                     )
                 )
-        fixed = d.baselines[0] if d.baselines else None
-        if fixed is not None and fixed.motor is not None:
-            rows.append(("pump-only motor", f"{fixed.installed_power / 1e3:g}", "kW"))
+        pump_only = d.baselines[0] if d.baselines else None
+        if pump_only is not None and pump_only.motor is not None:
+            rows.append(("pump-only motor", f"{pump_only.installed_power / 1e3:g}", "kW"))
     rows.append(("time", f"{result.timings['total']:.2f}", "s"))
     print_table(rows, title=f"stowflow design: {result.name}", stream=stream)
     for note in d.notes:

@@ -72,7 +72,7 @@ def register(subparsers, common) -> None:
 
 def config_from_args(args: argparse.Namespace):
     """Server configuration from parsed options (checked, one-line errors)."""
-    from stowflow.web.app import ServerConfig, is_loopback
+    from stowflow.web.app import ServerConfig, hosts_for, is_loopback
 
     time_limit = parse_duration(args.time_limit, "--time-limit", above=0.0)
     host = str(args.host).strip()
@@ -88,8 +88,7 @@ def config_from_args(args: argparse.Namespace):
         if args.workers is None
         else {"workers": parse_whole(args.workers, "--workers", at_least=1)}
     )
-    if not loopback:
-        extra["allowed_hosts"] = ("*",)
+    extra["allowed_hosts"] = hosts_for(host)
     queue = parse_whole(args.queue, "--queue", at_least=0)
     return ServerConfig(queue=queue, time_limit=time_limit, **extra)
 

@@ -23,9 +23,9 @@ from stowflow.catalogue import (
     default_catalogue_path,
     load_catalogue,
 )
-from stowflow.cli._output import print_json, print_table
+from stowflow.cli._output import fixed, print_json, print_table
 from stowflow.cycle.duty import load_cycle
-from stowflow.errors import DesignFileError, SettingsError
+from stowflow.errors import CycleError, DesignFileError, SettingsError, StowflowError
 from stowflow.io.designfile import load_design, read_setpoints
 from stowflow.io.quantities import (
     parse_duration,
@@ -33,6 +33,7 @@ from stowflow.io.quantities import (
     parse_temperature_range,
 )
 from stowflow.report.exports import traces_frame
+from stowflow.report.folder import SIMULATION_OUTPUTS, check_out_dir, write_set
 from stowflow.search.settings import DesignSettings
 from stowflow.simulation.verify import CONTROLLERS, verify
 from stowflow.units import kelvin_to_celsius, to_unit
@@ -166,6 +167,14 @@ def _record(v, pa: float, notes: list[str]) -> dict:
     }
 
 
+def _named(path: Path, exc: StowflowError) -> StowflowError:
+    """The error with the design file's name in front, unless it starts with it already."""
+    text = str(exc)
+    if text.startswith(f"{path}:"):
+        return exc
+    return type(exc)(f"{path}: {text}")
+
+
 def run(args: argparse.Namespace) -> int:
     """Run ``stowflow simulate``: 0 passes, 1 fails verification (bad input raises → 2)."""
     cat_path = Path(args.catalogue) if args.catalogue else default_catalogue_path()
@@ -174,24 +183,40 @@ def run(args: argparse.Namespace) -> int:
     if args.min_pressure:
         min_p = parse_pressure_difference(args.min_pressure, "--min-pressure")
     cycle = load_cycle(args.cycle, min_pressure=min_p)
+    if cycle.pressure is None:
+        raise CycleError(
+            f"{args.cycle}: no pressure column; expected a column such as 'pressure [bar]' or "
+            "the option --min-pressure, e.g. --min-pressure 120bar"
+        )
     settings = DesignSettings()
     design_path = Path(args.design)
     sched = Path(args.schedule) if args.schedule else design_path.with_name("schedule.csv")
-    design, settings, notes = load_design(design_path, catalogue, settings, sched, cycle)
+    design, settings, notes = load_design(
+        design_path, catalogue, settings, sched, cycle, schedule_required=bool(args.schedule)
+    )
     changes = {}
     if args.time_constant:
-        changes["time_constant"] = parse_duration(args.time_constant, "--time-constant", above=0.0)
+        tau = parse_duration(args.time_constant, "--time-constant", above=0.0)
+        changes["--time-constant"] = {"time_constant": tau}
     if args.temperature:
-        changes["t_min"], changes["t_max"] = parse_temperature_range(
-            args.temperature, "--temperature"
-        )
+        t_min, t_max = parse_temperature_range(args.temperature, "--temperature")
+        changes["--temperature"] = {"t_min": t_min, "t_max": t_max}
     if args.gas:
-        changes["gas_model"] = args.gas
-    if changes:
-        settings = settings.with_(**changes)
+        changes["--gas"] = {"gas_model": args.gas}
+    for option, change in changes.items():
+        try:
+            settings = settings.with_(**change)
+        except StowflowError as exc:
+            text = str(exc).removeprefix("design settings: ")
+            raise SettingsError(f"{option}: {text}") from None
     controllers = tuple(dict.fromkeys(args.controller or CONTROLLERS))
     if controllers == ("schedule",) and design.bank is not None and design.schedule.empty:
-        raise DesignFileError(f"{sched}: no usable schedule.csv for the schedule controller")
+        why = next((n for n in notes if n.endswith("schedule controller skipped")), "")
+        why = why.removeprefix(f"{sched}: ").removesuffix("; schedule controller skipped")
+        raise DesignFileError(
+            f"{sched}: no usable schedule.csv for the schedule controller"
+            + (f" ({why})" if why else " (file not found)")
+        )
     bank = design.bank
     if args.controller and "position-switch" in controllers and bank is not None:
         if not bank.option.has_piston:
@@ -200,7 +225,12 @@ def run(args: argparse.Namespace) -> int:
                 f"(it switches on the piston's position); this design has a {bank.type}"
             )
     given = read_setpoints(design_path, settings.p_ambient)
-    v = verify(design, cycle, settings, controllers=controllers, setpoints=given or None)
+    if args.out:
+        check_out_dir(args.out, "--out", SIMULATION_OUTPUTS)
+    try:
+        v = verify(design, cycle, settings, controllers=controllers, setpoints=given or None)
+    except StowflowError as exc:
+        raise _named(design_path, exc) from exc
     if any(n.endswith("schedule controller skipped") for n in notes):
         # The reader already said why the schedule is missing; the library's general
         # "carries no schedule" would contradict it.
@@ -209,13 +239,14 @@ def run(args: argparse.Namespace) -> int:
     pa = settings.p_ambient
     record = _record(v, pa, notes)
     if args.out:
-        out = Path(args.out)
-        out.mkdir(parents=True, exist_ok=True)
-        traces_frame(v, pa).to_csv(out / "simulation.csv", index=False, float_format="%.6g")
-        (out / "verification.json").write_text(
-            json.dumps(record, indent=2, ensure_ascii=False, allow_nan=False) + "\n",
-            encoding="utf-8",
-        )
+        texts = {
+            "simulation.csv": traces_frame(v, pa).to_csv(
+                index=False, float_format="%.6g", lineterminator="\n"
+            ),
+            "verification.json": json.dumps(record, indent=2, ensure_ascii=False, allow_nan=False)
+            + "\n",
+        }
+        write_set(args.out, {name: texts[name] for name in SIMULATION_OUTPUTS}, "--out")
     if args.json:
         print_json(record)
     else:
@@ -228,21 +259,21 @@ def _print(v, record: dict, out) -> None:
     rows = []
     for r in record["runs"]:
         t = (
-            f"{r['gas_temperature_min_c']:.1f} … {r['gas_temperature_max_c']:.1f}"
+            f"{fixed(r['gas_temperature_min_c'])} … {fixed(r['gas_temperature_max_c'])}"
             if r["gas_temperature_min_c"] is not None
             else "-"
         )
         rows.append(
             (
                 r["controller"],
-                f"{r['temperature_c']:.0f}",
+                fixed(r["temperature_c"], 0),
                 r["pump_flow"],
                 "pass" if r["passed"] else "FAIL",
-                f"{r['min_margin_bar']:.2f}",
-                f"{r['peak_pressure_bar']:.1f}",
+                fixed(r["min_margin_bar"], 2),
+                fixed(r["peak_pressure_bar"]) if r["peak_pressure_bar"] is not None else "-",
                 t,
-                f"{r['energy_per_cycle_kj']:.1f}",
-                f"{r['load_events_per_hour']:.0f}",
+                fixed(r["energy_per_cycle_kj"]),
+                fixed(r["load_events_per_hour"], 0),
                 f"{r['relief_volume_l']:.3g}",
                 str(r["cycles_to_steady"]),
             )
@@ -268,8 +299,8 @@ def _print(v, record: dict, out) -> None:
     sp = record["setpoints"]
     if "load_below_bar" in sp:
         print(
-            f"pressure switch: load below {sp['load_below_bar']:.1f} bar, unload above "
-            f"{sp['unload_above_bar']:.1f} bar (gauge)"
+            f"pressure switch: load below {fixed(sp['load_below_bar'])} bar, unload above "
+            f"{fixed(sp['unload_above_bar'])} bar (gauge)"
         )
     if "load_below_stroke" in sp:
         print(

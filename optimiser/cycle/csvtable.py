@@ -25,6 +25,7 @@ import numpy as np
 import pandas as pd
 from stowflow.errors import CycleError, StowflowError, UnitsError
 from stowflow.glossary import GLOSSARY
+from stowflow.io.rawtext import NUMBER, check_digits
 from stowflow.units import gauge_to_abs, parse_unit, to_unit
 
 __all__ = [
@@ -54,8 +55,7 @@ _UNIT_EXAMPLES = {
 }
 
 _SEPARATORS = {",": "','", ";": "';'", "\t": "TAB"}
-_NUMBER = re.compile(r"[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?")
-_DECIMAL_COMMA = re.compile(r"[+-]?\d+,\d+")
+_DECIMAL_COMMA = re.compile(r"[+-]?[0-9]+,[0-9]+")
 _MISSING = {"nan", "na", "n/a", "null", "none", "-", "?", "#n/a"}
 _INFINITE = {"inf", "+inf", "-inf", "infinity", "+infinity", "-infinity"}
 _HEADER = re.compile(r"^(?P<name>[^\[\]]*?)\s*(?:\[(?P<unit>[^\[\]]*)\])?$")
@@ -256,11 +256,7 @@ def read_table(text: str, source: str, *, max_rows: int | None = None) -> RawTab
     RawTable
         Validated rows; durations > 0 or times strictly increasing, flows ≥ 0.
     """
-    content = [
-        (number, line)
-        for number, line in enumerate(re.split(r"\r\n|\r|\n", text), start=1)
-        if line.strip() and not line.lstrip().startswith("#")
-    ]
+    content = _records(text)
     if not content:
         raise CycleError(
             f"{source}: empty file (only comments or blank lines); expected a header such as "
@@ -314,6 +310,30 @@ def read_table(text: str, source: str, *, max_rows: int | None = None) -> RawTab
             f"{table.where('flow')}: every flow is 0; expected some demand > 0 in the cycle"
         )
     return table
+
+
+def _records(text: str) -> list[tuple[int, str]]:
+    """The header and data records with the line each starts on; comments and blanks dropped.
+
+    A record is one line, unless a quoted field holds a line break (``"clamp,\nclose"``):
+    then it runs on until the quote closes (an odd number of ``"`` leaves a field open).
+    ``#`` starts a comment only at the start of a record.
+    """
+    lines = re.split(r"\r\n|\r|\n", text)
+    out: list[tuple[int, str]] = []
+    i = 0
+    while i < len(lines):
+        number, line = i + 1, lines[i]
+        i += 1
+        if not line.strip() or line.lstrip().startswith("#"):
+            continue
+        quotes = line.count('"')
+        while quotes % 2 and i < len(lines):
+            line += "\n" + lines[i]
+            quotes += lines[i].count('"')
+            i += 1
+        out.append((number, line))
+    return out
 
 
 def _separator(line: str, source: str, number: int) -> str:
@@ -422,7 +442,8 @@ def _numbers(table: RawTable, fields: list[list[str]], key: str) -> np.ndarray:
         where = table.where(key, row)
         if not cell:
             raise CycleError(f"{where}: empty cell; expected a number in {col.unit}")
-        if _NUMBER.fullmatch(cell) is None:
+        if NUMBER.fullmatch(cell) is None:
+            check_digits(cell, where, f"a number in {col.unit} written with 0-9", CycleError)
             raise CycleError(f"{where}: {_not_a_number(cell, col.unit)}")
         value = float(cell)
         if not np.isfinite(value):

@@ -11,6 +11,8 @@ the file gives the schedule controller its schedule.  Every mistake is one
 
 from __future__ import annotations
 
+import csv
+import io
 import json
 import math
 from pathlib import Path
@@ -24,7 +26,11 @@ from stowflow.catalogue import (
     MotorOption,
     PumpOption,
 )
-from stowflow.errors import DesignFileError
+from stowflow.cycle.csvtable import utf8_text
+from stowflow.errors import DesignFileError, StowflowError
+from stowflow.glossary import GLOSSARY, check_plausible
+from stowflow.io.quantities import parse_gas_process
+from stowflow.io.rawtext import NUMBER, check_digits, check_nesting, read_limited
 from stowflow.physics.accumulator import rules_for
 from stowflow.search.settings import DesignSettings
 from stowflow.search.solution import Bank, Design
@@ -35,7 +41,9 @@ __all__ = [
     "DEFAULT_OVERALL_EFFICIENCY",
     "DEFAULT_VOLUMETRIC_EFFICIENCY",
     "DESIGN_SCHEMA",
+    "SCHEDULE_INPUT_COLUMNS",
     "load_design",
+    "read_schedule_csv",
     "read_setpoints",
 ]
 
@@ -51,6 +59,17 @@ DEFAULT_MOTOR_EFFICIENCY = 0.914
 #: Relative tolerance when matching a JSON number to a catalogue row, [-] (the export rounds
 #: to 6 decimals).
 _MATCH_RTOL = 1e-4
+
+
+def _key(name: str, key: str) -> str:
+    """``"pump.speed_rpm"`` (``"relief_bar"`` at the top level)."""
+    return f"{name}.{key}" if name else key
+
+
+def _shown(value, width: int = 40) -> str:
+    """``repr(value)`` cut to ``width`` characters for a message."""
+    text = repr(value)
+    return text if len(text) <= width else text[: width - 1] + "…"
 
 
 class _Reader:
@@ -75,25 +94,51 @@ class _Reader:
         return value
 
     def number(
-        self, sec: dict | None, name: str, key: str, *, required=True, positive=True, default=None
+        self,
+        sec: dict | None,
+        name: str,
+        key: str,
+        *,
+        required: bool = True,
+        positive: bool = True,
+        default=None,
+        term: str | None = None,
+        unit: str | None = None,
+        zero_ok: bool = False,
     ):
+        """The number at ``name.key``, checked against the glossary's range of ``term``.
+
+        Without ``term`` only finite (and, with ``positive``, > 0) is checked.
+        """
+        full = _key(name, key)
         if sec is None or key not in sec or sec[key] is None:
             if required:
-                raise self.fail(f"{name}.{key}", "missing; expected a number")
+                raise self.fail(full, "missing; expected a number")
             return default
         v = sec[key]
-        if isinstance(v, bool) or not isinstance(v, int | float) or not math.isfinite(v):
-            raise self.fail(f"{name}.{key}", f"expected a number, found {v!r}")
+        if isinstance(v, bool) or not isinstance(v, int | float):
+            raise self.fail(full, f"expected a number, found {_shown(v)}")
+        if term is not None:
+            where, what = str(self.path), f"key '{full}'"
+            return check_plausible(
+                v, term, what, where, unit=unit, zero_ok=zero_ok, error=DesignFileError
+            )
+        try:
+            v = float(v)
+        except OverflowError:
+            raise self.fail(full, "expected a number, found an integer beyond range") from None
+        if not math.isfinite(v):
+            raise self.fail(full, f"expected a number, found {v!r}")
         if positive and v <= 0:
-            raise self.fail(f"{name}.{key}", f"expected a value > 0, found {v!r}")
-        return float(v)
+            raise self.fail(full, f"expected a value > 0, found {v:g}")
+        return v
 
     def text(self, sec: dict | None, name: str, key: str, default=None):
         if sec is None or sec.get(key) is None:
             return default
         v = sec[key]
         if not isinstance(v, str):
-            raise self.fail(f"{name}.{key}", f"expected text, found {v!r}")
+            raise self.fail(_key(name, key), f"expected text, found {_shown(v)}")
         return v
 
 
@@ -103,14 +148,35 @@ def _close(a: float, b: float) -> bool:
 
 
 def _read_pump(r: _Reader, catalogue: Catalogue, notes: list) -> PumpOption:
-    """The pump: a catalogue row matching the file's numbers, else built from them."""
+    """The pump: a catalogue row matching the file's numbers, else built from them.
+
+    Every number is held to the catalogue's rules for a pump row (the glossary's ranges),
+    whether a row matches or not.
+    """
     pa = r.p_ambient
     bar = si_factor("bar", "pressure")
     pump_j = r.section("pump")
-    disp = r.number(pump_j, "pump", "displacement_cm3") * si_factor("cm3", "displacement")
-    speed = r.number(pump_j, "pump", "speed_rpm") * si_factor("rpm", "speed")
-    flow = r.number(pump_j, "pump", "flow_lpm", required=False)
+    disp = r.number(pump_j, "pump", "displacement_cm3", term="displacement", unit="cm3")
+    disp *= si_factor("cm3", "displacement")
+    speed = r.number(pump_j, "pump", "speed_rpm", term="speed", unit="rpm")
+    speed *= si_factor("rpm", "speed")
+    flow = r.number(pump_j, "pump", "flow_lpm", required=False, term="pump_flow", unit="L/min")
     flow = None if flow is None else flow * si_factor("L/min", "flow")
+    eta_v_file = r.number(
+        pump_j, "pump", "volumetric_efficiency", required=False, term="volumetric_efficiency"
+    )
+    eta_o = r.number(
+        pump_j, "pump", "overall_efficiency", required=False, term="overall_efficiency"
+    )
+    if eta_o is not None and eta_v_file is not None and eta_o > eta_v_file:
+        raise r.fail(
+            "pump.overall_efficiency",
+            f"{eta_o:g} is above volumetric_efficiency {eta_v_file:g}; expected overall <= "
+            "volumetric (overall = volumetric × mechanical)",
+        )
+    pmax = r.number(
+        pump_j, "pump", "max_pressure_bar", required=False, term="max_allowable_pressure"
+    )
     pump = next(
         (
             p
@@ -128,10 +194,20 @@ def _read_pump(r: _Reader, catalogue: Catalogue, notes: list) -> PumpOption:
                 "pump.flow_lpm",
                 f"{to_unit(flow, 'L/min', 'flow'):.4g} L/min exceeds displacement × speed",
             )
-        eta_o = r.number(
-            pump_j, "pump", "overall_efficiency", required=False, default=DEFAULT_OVERALL_EFFICIENCY
-        )
-        pmax = r.number(pump_j, "pump", "max_pressure_bar", required=False)
+        low = GLOSSARY["volumetric_efficiency"].plausible[0]
+        if eta_v < low:
+            raise r.fail(
+                "pump.flow_lpm",
+                f"{to_unit(flow, 'L/min', 'flow'):.4g} L/min is {eta_v:.3g} of displacement × "
+                f"speed; expected a volumetric efficiency of {low:g} to 1",
+            )
+        eta_o = DEFAULT_OVERALL_EFFICIENCY if eta_o is None else eta_o
+        if eta_o > eta_v:
+            raise r.fail(
+                "pump.overall_efficiency",
+                f"{eta_o:g} is above the volumetric efficiency {eta_v:.3g} (flow_lpm over "
+                "displacement × speed); expected overall <= volumetric",
+            )
         pump = PumpOption(
             disp,
             speed,
@@ -153,12 +229,12 @@ def _read_pump(r: _Reader, catalogue: Catalogue, notes: list) -> PumpOption:
 def _read_motor(r: _Reader, catalogue: Catalogue, notes: list) -> MotorOption:
     """The motor: a catalogue row of the same rating, else built from the file."""
     motor_j = r.section("motor")
-    kw = r.number(motor_j, "motor", "rated_kw") * si_factor("kW", "power")
+    kw = r.number(motor_j, "motor", "rated_kw", term="rated_power", unit="kW")
+    kw *= si_factor("kW", "power")
+    eff = r.number(motor_j, "motor", "efficiency", required=False, term="efficiency")
     motor = next((m for m in catalogue.motors if _close(m.rated_power, kw)), None)
     if motor is None:
-        eff = r.number(
-            motor_j, "motor", "efficiency", required=False, default=DEFAULT_MOTOR_EFFICIENCY
-        )
+        eff = DEFAULT_MOTOR_EFFICIENCY if eff is None else eff
         motor = MotorOption(kw, eff, 0.0, r.text(motor_j, "motor", "name", "motor"))
         notes.append(f"motor not in the catalogue: built from design.json (efficiency {eff:.3g})")
     return motor
@@ -175,20 +251,34 @@ def _read_bank(r: _Reader, catalogue: Catalogue, notes: list) -> tuple:
         typ = r.text(acc_j, "accumulator", "type")
         if typ not in ACCUMULATOR_TYPES:
             raise r.fail(
-                "accumulator.type", f"expected one of {', '.join(ACCUMULATOR_TYPES)}, found {typ!r}"
+                "accumulator.type",
+                f"expected one of {', '.join(ACCUMULATOR_TYPES)}, found {_shown(typ)}",
             )
-        vol = r.number(acc_j, "accumulator", "nominal_volume_l") * si_factor("L", "volume")
+        vol = r.number(acc_j, "accumulator", "nominal_volume_l", term="nominal_volume", unit="L")
+        vol *= si_factor("L", "volume")
         count = acc_j.get("count")
-        if isinstance(count, bool) or not isinstance(count, int) or count < 1:
-            raise r.fail("accumulator.count", f"expected an integer ≥ 1, found {count!r}")
-        p0 = r.number(acc_j, "accumulator", "precharge_bar_at_20c") * bar + pa
-        p_min = r.number(acc_j, "accumulator", "min_pressure_bar") * bar + pa
-        p_max = r.number(acc_j, "accumulator", "max_pressure_bar") * bar + pa
+        if isinstance(count, bool) or not isinstance(count, int):
+            raise r.fail("accumulator.count", f"expected an integer ≥ 1, found {_shown(count)}")
+        r.number(acc_j, "accumulator", "count", term="count")
+        p0 = r.number(acc_j, "accumulator", "precharge_bar_at_20c", term="precharge") * bar + pa
+        p_min = r.number(acc_j, "accumulator", "min_pressure_bar", term="min_pressure") * bar + pa
+        p_max = r.number(acc_j, "accumulator", "max_pressure_bar", term="max_pressure") * bar + pa
         if not p0 < p_max:
             raise r.fail("accumulator.precharge_bar_at_20c", "must be below max_pressure_bar")
         if not p_min < p_max:
             raise r.fail("accumulator.min_pressure_bar", "must be below max_pressure_bar")
-        ps = r.number(acc_j, "accumulator", "max_allowable_pressure_bar", required=False)
+        ps = r.number(
+            acc_j,
+            "accumulator",
+            "max_allowable_pressure_bar",
+            required=False,
+            term="max_allowable_pressure",
+        )
+        bore = r.number(
+            acc_j, "accumulator", "bore_mm", required=False, default=0.0, term="bore", zero_ok=True
+        )
+        mf = r.number(acc_j, "accumulator", "max_flow_lps", required=False, term="max_flow")
+        sw = r.number(acc_j, "accumulator", "swept_volume_l", required=False, term="swept_volume")
         opt = next(
             (
                 a
@@ -200,9 +290,6 @@ def _read_bank(r: _Reader, catalogue: Catalogue, notes: list) -> tuple:
             None,
         )
         if opt is None:
-            bore = r.number(acc_j, "accumulator", "bore_mm", required=False, default=0.0)
-            mf = r.number(acc_j, "accumulator", "max_flow_lps", required=False)
-            sw = r.number(acc_j, "accumulator", "swept_volume_l", required=False)
             if typ in ("piston", "piston-bottles") and not bore and mf is None:
                 raise r.fail(
                     "accumulator.bore_mm",
@@ -223,9 +310,56 @@ def _read_bank(r: _Reader, catalogue: Catalogue, notes: list) -> tuple:
                 "accumulator not in the catalogue: built from design.json"
                 + (" (no PS given: not checked)" if ps is None else "")
             )
+        if p_max > opt.max_pressure * (1 + 1e-9):
+            raise r.fail(
+                "accumulator.max_pressure_bar",
+                f"{(p_max - pa) / bar:g} bar is above the vessel's PS "
+                f"{(opt.max_pressure - pa) / bar:g} bar (max_allowable_pressure); expected a "
+                "working pressure at or below PS",
+            )
         rules = rules_for(typ, (catalogue.limits or {}).get(typ))
         bank = Bank(opt, int(count), p0, rules)
     return bank, p_min, p_max
+
+
+def _check_relief(r: _Reader, relief: float, pump: PumpOption, bank, given: bool, notes) -> None:
+    """The relief setting at or below the vessel's PS and the pump's rating (a safety rule).
+
+    A ``relief_bar`` given in the file is refused above either; one derived from the
+    settings gets a note.
+    """
+    pa, bar = r.p_ambient, si_factor("bar", "pressure")
+    limits = [("the pump's rating (pump.max_pressure_bar)", pump.max_pressure)]
+    if bank is not None:
+        limits.insert(0, ("the vessel's PS (max_allowable_pressure)", bank.option.max_pressure))
+    for what, limit in limits:
+        if math.isfinite(limit) and relief > limit * (1 + 1e-9):
+            text = f"{(relief - pa) / bar:.6g} bar is above {what} {(limit - pa) / bar:g} bar"
+            if given:
+                raise r.fail(
+                    "relief_bar",
+                    f"{text}; expected a relief setting at or below it (the relief valve "
+                    "protects the vessel and the pump)",
+                )
+            notes.append(f"relief setting derived from the settings: {text}; give relief_bar")
+
+
+def _read_json(path: Path) -> dict:
+    """The JSON object of a design file: size and nesting checked before it is parsed."""
+    data = read_limited(path, "design", DesignFileError, "a design.json")
+    text = utf8_text(data, str(path), DesignFileError, "a UTF-8 JSON file (design.json)")
+    check_nesting(text, str(path), "json", DesignFileError)
+    try:
+        doc = json.loads(text)
+    except json.JSONDecodeError as exc:
+        raise DesignFileError(
+            f"{path}: not valid JSON (line {exc.lineno}, column {exc.colno}: {exc.msg})"
+        ) from None
+    except (ValueError, RecursionError) as exc:  # e.g. an integer of more than 4300 digits
+        raise DesignFileError(f"{path}: not usable JSON ({str(exc)[:80]})") from None
+    if not isinstance(doc, dict):
+        raise DesignFileError(f"{path}: expected a JSON object, found {type(doc).__name__}")
+    return doc
 
 
 def load_design(
@@ -234,6 +368,8 @@ def load_design(
     settings: DesignSettings,
     schedule_csv=None,
     cycle=None,
+    *,
+    schedule_required: bool = False,
 ) -> tuple[Design, DesignSettings, list[str]]:
     """Rebuild a :class:`Design` from ``design.json`` (contract keys).
 
@@ -249,6 +385,9 @@ def load_design(
         A schedule.csv for the schedule controller.
     cycle : DutyCycle, optional
         The cycle (to read the schedule onto its grid).
+    schedule_required : bool
+        The schedule.csv was named by the user: a missing file is refused (otherwise the
+        schedule controller just has no schedule).
 
     Returns
     -------
@@ -258,24 +397,16 @@ def load_design(
     Raises
     ------
     DesignFileError
-        The file is missing, not JSON, of another schema, or a key is missing or wrong.
+        The file is missing, too large or nested too deeply, not JSON, of another schema, or
+        a key is missing, of the wrong type or outside the rules a catalogue row meets
+        (the glossary's plausible ranges, efficiencies in (0, 1], the relief setting at or
+        below the vessel's PS and the pump's rating); the schedule.csv is not a valid export.
     """
     path = Path(path)
-    try:
-        data = json.loads(path.read_text(encoding="utf-8"))
-    except FileNotFoundError:
-        raise DesignFileError(f"{path}: file not found; expected a design.json") from None
-    except (OSError, UnicodeDecodeError) as exc:
-        raise DesignFileError(f"{path}: cannot read the file ({exc})") from None
-    except json.JSONDecodeError as exc:
-        raise DesignFileError(
-            f"{path}: not valid JSON (line {exc.lineno}, column {exc.colno}: {exc.msg})"
-        ) from None
-    if not isinstance(data, dict):
-        raise DesignFileError(f"{path}: expected a JSON object, found {type(data).__name__}")
+    data = _read_json(path)
     r = _Reader(path, data, settings.p_ambient)
     if data.get("schema") != DESIGN_SCHEMA:
-        raise r.fail("schema", f'expected "{DESIGN_SCHEMA}", found {data.get("schema")!r}')
+        raise r.fail("schema", f'expected "{DESIGN_SCHEMA}", found {_shown(data.get("schema"))}')
     notes: list[str] = []
     pa = settings.p_ambient
     bar = si_factor("bar", "pressure")
@@ -283,22 +414,26 @@ def load_design(
     gm = r.text(data, "", "gas_model")
     if gm is not None:
         if gm not in ("real", "ideal"):
-            raise r.fail("gas_model", f'expected "real" or "ideal", found {gm!r}')
+            raise r.fail("gas_model", f'expected "real" or "ideal", found {_shown(gm)}')
         s = s.with_(gas_model=gm)
     tc = r.section("temperature_c", optional=True)
     if tc is not None:
-        lo = r.number(tc, "temperature_c", "min", positive=False)
-        hi = r.number(tc, "temperature_c", "max", positive=False)
+        lo = r.number(tc, "temperature_c", "min", term="temperature", unit="°C")
+        hi = r.number(tc, "temperature_c", "max", term="temperature", unit="°C")
         if lo > hi:
             raise r.fail("temperature_c", f"min {lo:g} °C is above max {hi:g} °C")
-        s = s.with_(t_min=celsius_to_kelvin(lo), t_max=celsius_to_kelvin(hi))
+        try:
+            s = s.with_(t_min=celsius_to_kelvin(lo), t_max=celsius_to_kelvin(hi))
+        except StowflowError as exc:
+            raise r.fail("temperature_c", str(exc)) from None
 
     pump = _read_pump(r, catalogue, notes)
     motor = _read_motor(r, catalogue, notes)
     bank, p_min, p_max = _read_bank(r, catalogue, notes)
-    relief = r.number(data, "", "relief_bar", required=False)
-    if relief is not None:
-        relief = relief * bar + pa
+    relief_bar = r.number(data, "", "relief_bar", required=False, term="relief_setting")
+    given = relief_bar is not None
+    if given:
+        relief = relief_bar * bar + pa
     elif bank is not None:
         relief = s.relief_setting(p_max)
         notes.append("relief setting not in design.json: from the settings' relief margin")
@@ -307,13 +442,26 @@ def load_design(
         notes.append("relief setting not in design.json: from the cycle's highest requirement")
     else:
         raise r.fail("relief_bar", "missing; a pump-only design needs its relief setting")
+    if bank is not None and given and p_max > relief * (1 + 1e-9):
+        raise r.fail(
+            "relief_bar",
+            f"{relief_bar:g} bar is below accumulator.max_pressure_bar "
+            f"{(p_max - pa) / bar:g} bar; expected the relief to open above the working window",
+        )
+    _check_relief(r, relief, pump, bank, given, notes)
     if bank is None:
         p_min, p_max = relief, relief
-    process = r.text(data, "", "process", "isothermal")
-    if process == "polytropic":
-        n = r.number(data, "", "polytropic_index")
-        process = f"polytropic:{n:g}"
-    schedule = _schedule(schedule_csv, cycle, pump, bank, notes)
+    sp = _setpoints(r)
+    top = bank.option.max_pressure if bank is not None else pump.max_pressure
+    if sp.get("unload_above", -math.inf) > top * (1 + 1e-9):
+        what = "the vessel's PS" if bank is not None else "the pump's rating"
+        raise r.fail(
+            "setpoints.unload_above_bar",
+            f"{(sp['unload_above'] - pa) / bar:g} bar is above {what} {(top - pa) / bar:g} bar; "
+            "expected a switch setting at or below it",
+        )
+    process = _process(r, data)
+    schedule = _schedule(schedule_csv, cycle, pump, bank, notes, required=schedule_required)
     design = Design(
         "feasible",
         None,
@@ -338,14 +486,20 @@ def read_setpoints(path: str | Path, p_ambient: float) -> dict:
     """Switch settings given in ``design.json`` (``setpoints``), absolute [Pa] / stroke [-].
 
     Returns an empty dict when the file gives none (the verification then derives them).
+    The file is read with the same limits and checks as :func:`load_design`.
     """
     path = Path(path)
-    r = _Reader(path, json.loads(path.read_text(encoding="utf-8")), p_ambient)
+    return _setpoints(_Reader(path, _read_json(path), p_ambient))
+
+
+def _setpoints(r: _Reader) -> dict:
+    """The ``setpoints`` section, checked: absolute [Pa] / stroke [-]."""
+    p_ambient = r.p_ambient
     sec = r.section("setpoints", optional=True) or {}
     out: dict = {}
     bar = si_factor("bar", "pressure")
-    on = r.number(sec, "setpoints", "load_below_bar", required=False)
-    off = r.number(sec, "setpoints", "unload_above_bar", required=False)
+    on = r.number(sec, "setpoints", "load_below_bar", required=False, term="min_pressure")
+    off = r.number(sec, "setpoints", "unload_above_bar", required=False, term="max_pressure")
     if (on is None) != (off is None):
         raise r.fail("setpoints", "give both load_below_bar and unload_above_bar, or neither")
     if on is not None:
@@ -364,6 +518,21 @@ def read_setpoints(path: str | Path, p_ambient: float) -> dict:
             )
         out |= {"load_below_stroke": on, "unload_above_stroke": off}
     return out
+
+
+def _process(r: _Reader, data: dict) -> str:
+    """The design model's gas process: ``isothermal``, ``adiabatic`` or ``polytropic:N``."""
+    process = r.text(data, "", "process", "isothermal")
+    if process == "polytropic":
+        n = r.number(data, "", "polytropic_index")
+        process = f"polytropic:{n:g}"
+        key = "polytropic_index"
+    else:
+        key = "process"
+    try:
+        return parse_gas_process(process, f"{r.path}: key '{key}'", allow_auto=False)
+    except StowflowError as exc:
+        raise DesignFileError(str(exc)) from None
 
 
 #: A schedule.csv is accepted when its stored oil follows its flows to this fraction of the
@@ -385,8 +554,98 @@ def _rounding_flow(dt: float) -> float:
     return unit * si_factor("L", "volume") / dt + 0.5 * unit * si_factor("L/min", "flow")
 
 
-def _schedule(csv, cycle, pump, bank, notes) -> pd.DataFrame:
+#: Columns of schedule.csv the schedule controller reads: (glossary key, unit as written).
+SCHEDULE_INPUT_COLUMNS: dict[str, tuple[str, str]] = {
+    "pump_flow [L/min]": ("flow", "L/min"),
+    "accumulator_oil [L]": ("accumulator_oil", "L"),
+    "relief_flow [L/min]": ("flow", "L/min"),
+    "excess_flow [L/min]": ("flow", "L/min"),
+}
+_SCHEDULE_REQUIRED = ("pump_flow [L/min]", "accumulator_oil [L]")
+
+
+def read_schedule_csv(path: str | Path) -> dict[str, np.ndarray]:
+    """The columns of a ``schedule.csv`` the schedule controller reads, checked, in trade units.
+
+    The file is the export of ``stowflow design`` (quoted fields may hold line breaks, e.g. in
+    labels).  Numbers are written with the ASCII digits 0-9, finite, ≥ 0 and inside the
+    glossary's plausible range of their column (:data:`SCHEDULE_INPUT_COLUMNS`).
+
+    Parameters
+    ----------
+    path : str or Path
+        The file.
+
+    Returns
+    -------
+    dict of str to numpy.ndarray
+        Column name → values (L/min, L); the relief column only when present.
+
+    Raises
+    ------
+    DesignFileError
+        Missing, too large, not UTF-8, not a CSV, a column missing, a field count that does
+        not match the header, or a cell that is not a plausible number (the message names the
+        file, the line and the column).
+    """
+    path = Path(path)
+    expected = "the schedule.csv that stowflow design writes"
+    text = utf8_text(
+        read_limited(path, "schedule", DesignFileError, expected),
+        str(path),
+        DesignFileError,
+        expected,
+    )
+    reader = csv.reader(io.StringIO(text, newline=""), strict=True)
+    try:
+        header = [h.strip() for h in next(reader, [])]
+        if not any(header):
+            raise DesignFileError(f"{path}: empty file; expected {expected}")
+        missing = [c for c in _SCHEDULE_REQUIRED if c not in header]
+        if missing:
+            raise DesignFileError(
+                f"{path}, line 1: no column {_shown(missing[0])}; expected {expected} (columns "
+                f"{', '.join(_SCHEDULE_REQUIRED)}, …)"
+            )
+        index = {c: header.index(c) for c in SCHEDULE_INPUT_COLUMNS if c in header}
+        values: dict[str, list[float]] = {c: [] for c in index}
+        for row in reader:
+            line = reader.line_num
+            if not any(cell.strip() for cell in row):
+                continue
+            if len(row) != len(header):
+                raise DesignFileError(
+                    f"{path}, line {line}: found {len(row)} fields; expected {len(header)} as in "
+                    "the header on line 1"
+                )
+            for col, i in index.items():
+                where = f"{path}, line {line}, column {i + 1} '{col}'"
+                cell = row[i].strip()
+                if NUMBER.fullmatch(cell) is None:
+                    check_digits(cell, where, "a number written with 0-9", DesignFileError)
+                    raise DesignFileError(f"{where}: not a number, found {_shown(cell)}")
+                term, unit = SCHEDULE_INPUT_COLUMNS[col]
+                value = float(cell)
+                if not math.isfinite(value):
+                    raise DesignFileError(f"{where}: out of range, found {_shown(cell)}")
+                value = 0.0 if value == 0 else value  # -0 as exported
+                check_plausible(
+                    value, term, "value", where, unit=unit, zero_ok=True, error=DesignFileError
+                )
+                values[col].append(value)
+    except csv.Error as exc:
+        raise DesignFileError(
+            f"{path}, line {reader.line_num}: cannot split the row ({exc}); expected {expected}"
+        ) from None
+    return {c: np.asarray(v, dtype=float) for c, v in values.items()}
+
+
+def _schedule(csv_path, cycle, pump, bank, notes, *, required: bool = False) -> pd.DataFrame:
     """The design's schedule from a schedule.csv export, on the cycle's grid (else empty).
+
+    The file is read by :func:`read_schedule_csv` (a bad file is refused); a missing file is
+    refused only when ``required`` (given by name), else the schedule controller has none.
+    A schedule that does not fit the cycle or the pump is skipped with a note.
 
     The stored-oil column is trusted (it is exported with :data:`_CSV_DECIMALS` decimals of
     a litre); the pump flow is taken from the oil balance so that the cycle closes exactly,
@@ -395,29 +654,38 @@ def _schedule(csv, cycle, pump, bank, notes) -> pd.DataFrame:
     flow − demand)·Δt.  The loaded fraction is the balanced pump flow over the pump's, [-],
     clipped to 0 … 1 once it is inside the export's rounding of that range.
     """
-    if csv is None or cycle is None or bank is None or not Path(csv).is_file():
+    if csv_path is None:
         return pd.DataFrame()
+    csv_path = Path(csv_path)
+    if not csv_path.is_file() and not required:
+        return pd.DataFrame()
+    t = read_schedule_csv(csv_path)
+    if cycle is None or bank is None:
+        return pd.DataFrame()
+    csv = csv_path
     lpm, litre = si_factor("L/min", "flow"), si_factor("L", "volume")
-    try:
-        t = pd.read_csv(csv)
-        pf = t["pump_flow [L/min]"].to_numpy(float) * lpm
-        over = next((c for c in ("relief_flow [L/min]", "excess_flow [L/min]") if c in t), None)
-        spill = t[over].to_numpy(float) * lpm if over else np.zeros(len(t))
-        oil = t["accumulator_oil [L]"].to_numpy(float) * litre
-    except (KeyError, ValueError, OSError, pd.errors.ParserError) as exc:
-        notes.append(f"{csv}: not a usable schedule ({exc}); schedule controller skipped")
-        return pd.DataFrame()
+    pf = t["pump_flow [L/min]"] * lpm
+    over = next((c for c in ("relief_flow [L/min]", "excess_flow [L/min]") if c in t), None)
+    spill = t[over] * lpm if over else np.zeros(len(pf))
+    oil = t["accumulator_oil [L]"] * litre
     good = all(np.all(np.isfinite(a)) for a in (pf, spill, oil))
-    if len(t) != cycle.n_steps or not good:
+    if len(pf) != cycle.n_steps or not good:
         notes.append(
             f"{csv}: schedule does not fit the cycle's {cycle.n_steps} steps; "
             "schedule controller skipped"
         )
         return pd.DataFrame()
+    vg = bank.gas_volume
+    if float(np.max(oil)) >= vg:
+        notes.append(
+            f"{csv}: stored oil up to {to_unit(float(np.max(oil)), 'L', 'volume'):.6g} L does "
+            f"not fit the bank's gas volume of {to_unit(vg, 'L', 'volume'):.6g} L; schedule "
+            "controller skipped"
+        )
+        return pd.DataFrame()
     d, dt = np.asarray(cycle.flow, float), cycle.dt
     step = oil - np.roll(oil, 1)
     balanced = step / dt + d + spill
-    vg = bank.gas_volume
     if np.max(np.abs(balanced - pf)) * dt > _CSV_BALANCE_RTOL * vg:
         notes.append(
             f"{csv}: stored oil does not follow pump flow − relief flow − demand; "

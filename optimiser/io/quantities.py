@@ -30,6 +30,7 @@ from dataclasses import dataclass
 
 from stowflow.errors import SettingsError, StowflowError, UnitsError
 from stowflow.glossary import term
+from stowflow.io.rawtext import check_digits
 from stowflow.units import (
     DIMENSIONS,
     P_AMBIENT,
@@ -94,37 +95,6 @@ def _refusal(
 ) -> StowflowError:
     """The one-line error: ``{option}: {found}; expected {expected}``."""
     return error(f"{option}: {found}; expected {expected}")
-
-
-def check_digits(
-    text: str, option: str, expected: str, error: type[StowflowError] = SettingsError
-) -> None:
-    """Refuse decimal digits other than ASCII 0-9 (full-width, Arabic-Indic, ...).
-
-    Parameters
-    ----------
-    text : str
-        The text as typed.
-    option : str
-        The option's name as the user sees it, e.g. ``"--volume"``.
-    expected : str
-        What the option expects, for the message.
-    error : type
-        The error class to raise.
-
-    Raises
-    ------
-    StowflowError
-        The text has such a digit (the message names it and its code point).
-    """
-    for ch in str(text):
-        if ch.isdecimal() and not ch.isascii():
-            raise _refusal(
-                option,
-                f"'{str(text).strip()}' has a digit other than 0-9 ('{ch}', U+{ord(ch):04X})",
-                expected,
-                error,
-            )
 
 
 @dataclass(frozen=True)

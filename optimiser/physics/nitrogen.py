@@ -50,6 +50,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
+from stowflow.errors import SizingError
 from stowflow.units import BAR
 
 __all__ = [
@@ -383,10 +384,24 @@ def direct(inputs: str, a, b, outputs: tuple[str, ...]) -> tuple[np.ndarray, ...
     a, b = np.broadcast_arrays(np.asarray(a, dtype=float), np.asarray(b, dtype=float))
     out = [np.empty(a.shape) for _ in outputs]
     for idx in np.ndindex(a.shape):
-        st.update(pair, a[idx], b[idx])  # CoolProp's order: (p, T), (rho, T), (p, s), (rho, s)
-        for k, name in enumerate(outputs):
-            out[k][idx] = getters[name]()
+        try:
+            st.update(pair, a[idx], b[idx])  # CoolProp's order: (p, T), (rho, T), (p, s), (rho, s)
+            for k, name in enumerate(outputs):
+                out[k][idx] = getters[name]()
+        except ValueError:  # CoolProp: a state the equation of state cannot evaluate
+            raise SizingError(
+                f"nitrogen state outside the range of its equation of state (Span et al. 2000): "
+                f"{_state_text(inputs, float(a[idx]), float(b[idx]))}; expected a state of "
+                "the gas in an accumulator (check the pressures, volumes and flows)"
+            ) from None
     return tuple(out)
+
+
+def _state_text(inputs: str, a: float, b: float) -> str:
+    """A state of :func:`direct`'s inputs in trade units (bar absolute, °C)."""
+    first = f"{a / 1e5:.4g} bar absolute" if inputs[0] == "P" else f"{a:.4g} kg/m³"
+    second = f"{b - 273.15:.4g} °C" if inputs[1] == "T" else f"entropy {b:.4g} J/(kg·K)"
+    return f"{first} at {second}"
 
 
 # ----------------------------------------------------------------- evaluation with fallback

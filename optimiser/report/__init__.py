@@ -7,6 +7,11 @@
 * ``schedule.csv``: one row per time step (:func:`stowflow.report.exports.schedule_frame`);
 * ``spec.csv``: the procurement line items (:func:`stowflow.report.exports.spec_rows`).
 
+The four files are written as one set (:func:`stowflow.report.folder.write_set`): into a new
+folder beside ``out_dir`` first, which then takes its place, so the folder holds either the
+previous study's four files or the new ones, never a mix; :func:`check_out_dir` checks the
+folder before any work.
+
 The package renders only: every number comes from the :class:`~stowflow.pipeline.StudyResult`
 (its design, verification, comparison and settings), put into trade units by
 :mod:`stowflow.report.content`.
@@ -17,10 +22,12 @@ from __future__ import annotations
 from pathlib import Path
 
 from stowflow.report.exports import design_json, design_record, schedule_frame, spec_csv, spec_rows
+from stowflow.report.folder import DESIGN_OUTPUTS, check_out_dir, write_set
 from stowflow.report.html import render_html
 
 __all__ = [
     "OUTPUTS",
+    "check_out_dir",
     "design_record",
     "render_html",
     "schedule_frame",
@@ -29,34 +36,34 @@ __all__ = [
 ]
 
 #: The files write_study produces: the returned dict is keyed by these names.
-OUTPUTS: tuple[str, ...] = ("report.html", "design.json", "schedule.csv", "spec.csv")
+OUTPUTS: tuple[str, ...] = DESIGN_OUTPUTS
 
 
-def _write(path: Path, text: str) -> Path:
-    tmp = path.with_name(path.name + ".part")
-    tmp.write_text(text, encoding="utf-8", newline="")
-    tmp.replace(path)
-    return path
-
-
-def write_study(result, out_dir: str | Path) -> dict[str, Path]:
-    """Write the report and the exports of a study.
+def write_study(result, out_dir: str | Path, option: str = "--out") -> dict[str, Path]:
+    """Write the report and the exports of a study, as one set.
 
     Parameters
     ----------
     result : StudyResult
         The study's result (feasible or not).
     out_dir : str or Path
-        Folder to write into; created with its parents when missing.
+        Folder to write into; created with its parents when missing.  A previous study's
+        files there are replaced as a set (see :mod:`stowflow.report.folder`).
+    option : str
+        How the user named the folder, for messages.
 
     Returns
     -------
     dict of str to Path
         ``{"report.html": …, "design.json": …, "schedule.csv": …, "spec.csv": …}``: file
         name to written path.
+
+    Raises
+    ------
+    OutputError
+        The folder cannot be used or written; the previous files are then unchanged.
     """
-    out = Path(out_dir)
-    out.mkdir(parents=True, exist_ok=True)
+    check_out_dir(out_dir, option, OUTPUTS)  # before the rendering's seconds
     schedule = schedule_frame(result).to_csv(index=False, lineterminator="\n", na_rep="")
     texts = {
         "design.json": design_json(result),
@@ -64,4 +71,4 @@ def write_study(result, out_dir: str | Path) -> dict[str, Path]:
         "spec.csv": spec_csv(result),
         "report.html": render_html(result),
     }
-    return {name: _write(out / name, texts[name]) for name in OUTPUTS}
+    return write_set(out_dir, {name: texts[name] for name in OUTPUTS}, option)

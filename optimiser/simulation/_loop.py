@@ -16,6 +16,7 @@ import math
 from dataclasses import dataclass, field
 
 import numpy as np
+from stowflow.errors import SimulationError
 from stowflow.physics.nitrogen import KAPPA
 from stowflow.simulation._integrator import (
     Pass,
@@ -30,7 +31,10 @@ from stowflow.simulation._integrator import (
 __all__ = [
     "MAX_PERIOD",
     "OIL_TOL",
+    "SUBSTEP_BUDGET",
     "TEMPERATURE_TOL",
+    "VECTOR_SUBSTEP_COST",
+    "Budget",
     "Controller",
     "Orbit",
     "max_cycles_for",
@@ -52,6 +56,43 @@ _STIFF_STEP = 0.2
 #: Scalar substeps: relative gas-volume change per substep at most this, [-].
 _VOLUME_STEP = 0.002
 _EPS = 1e-12
+#: Work one run (one controller at one temperature, cycle after cycle to the periodic steady
+#: state) may take, in scalar substeps (:func:`scalar_step`), [-].  The demo designs take a
+#: few thousand; a stiff plant (a pump of 10⁵ L/min on a bank of a few litres) would take
+#: hours and is stopped after a few seconds with a :class:`~stowflow.errors.SimulationError`.
+SUBSTEP_BUDGET = 200_000
+#: What one substep of the vectorised pass (:func:`propagate`, per step and part
+#: of a pass) costs against one scalar substep, [-] (measured: about 50 times cheaper).
+VECTOR_SUBSTEP_COST = 0.02
+
+
+class Budget:
+    """The work left to one run, in scalar substeps (see :data:`SUBSTEP_BUDGET`).
+
+    Parameters
+    ----------
+    plant : Plant
+        The run's fixed data (named in the message).
+    limit : float, optional
+        Substeps allowed, [-] (default :data:`SUBSTEP_BUDGET`).
+    """
+
+    def __init__(self, plant: Plant, limit: float | None = None) -> None:
+        self.plant, self.used = plant, 0.0
+        self.limit = float(SUBSTEP_BUDGET if limit is None else limit)
+
+    def spend(self, substeps: float) -> None:
+        """Count ``substeps`` [-]; raise SimulationError once the budget is exceeded."""
+        self.used += substeps
+        if self.used > self.limit:
+            p = self.plant
+            volume = f"{p.volume * 1e3:.4g} L" if p.charge is not None else "no accumulator"
+            raise SimulationError(
+                f"the time-domain simulation needs more than {self.limit:,.0f} substeps for one "
+                f"run (pump {p.qp * 6e4:.4g} L/min against a gas volume of {volume}, step "
+                f"{p.dt:g} s, at {p.T_wall - 273.15:.1f} °C); expected a plant it can integrate "
+                "in reasonable time: check the pump, the accumulator and the relief setting"
+            )
 
 
 def _sub_map1(h, r, Va, Vb, G, T_wall, tau) -> tuple[float, float]:
@@ -65,7 +106,9 @@ def _sub_map1(h, r, Va, Vb, G, T_wall, tau) -> tuple[float, float]:
     return e * ratio, T_wall * (one_minus + G * r * tau * (one_minus - x * e) / Vb)
 
 
-def scalar_step(plant: Plant, st: State, k: int, parts) -> tuple[State, dict]:
+def scalar_step(
+    plant: Plant, st: State, k: int, parts, budget: Budget | None = None
+) -> tuple[State, dict]:
     """Integrate grid step k part by part with the relief valve and the oil limits.
 
     Explicit Heun substeps on the oil (relief flow :math:`K (p - p_c)^+`) with the same
@@ -81,6 +124,8 @@ def scalar_step(plant: Plant, st: State, k: int, parts) -> tuple[State, dict]:
         Step index, [-].
     parts : sequence of (float, float)
         (duration [s], pump delivery over its full flow [-]) of the step's parts.
+    budget : Budget, optional
+        The run's work budget, charged with the substeps taken.
 
     Returns
     -------
@@ -131,6 +176,8 @@ def scalar_step(plant: Plant, st: State, k: int, parts) -> tuple[State, dict]:
             4, math.ceil(h * stiff / _STIFF_STEP), math.ceil(abs(q_in - d) * h / V / _VOLUME_STEP)
         )
         n = min(n, 20_000)
+        if budget is not None:
+            budget.spend(n)
         hs = h / n
         for _ in range(n):
             qr0 = K * max(0.0, p - pc)
@@ -189,7 +236,12 @@ class Controller:
 
 # --------------------------------------------------------------------------- one cycle
 def run_cycle(
-    plant: Plant, ctrl: Controller, st: State, T_guess: np.ndarray, substeps: int | None = None
+    plant: Plant,
+    ctrl: Controller,
+    st: State,
+    T_guess: np.ndarray,
+    substeps: int | None = None,
+    budget: Budget | None = None,
 ) -> tuple[Record, State]:
     """Simulate one cycle from state ``st``; return its record and the end state.
 
@@ -205,12 +257,21 @@ def run_cycle(
         Guess of the step-end gas temperatures (e.g. the previous cycle's), [K].
     substeps : int, optional
         Substeps per part; default the plant's.
+    budget : Budget, optional
+        The run's work budget (default: a new one of :data:`SUBSTEP_BUDGET` for this cycle).
 
     Returns
     -------
     tuple of (Record, State)
+
+    Raises
+    ------
+    SimulationError
+        The budget is exceeded.
     """
     n = plant.n
+    budget = Budget(plant) if budget is None else budget
+    n_sub = substeps or plant.substeps
     rec = Record.empty(n)
     rec.start = st
     k = 0
@@ -221,6 +282,7 @@ def run_cycle(
             h1[0], u1[0], u2[0] = override
         ps = propagate(plant, st, h1, u1, u2, plant.demand[k:], T_guess[k:], substeps)
         m = ps.S_end.size
+        budget.spend(VECTOR_SUBSTEP_COST * 2 * n_sub * max(m, 1))
         special = None
         over = (ps.p_end > plant.relief) | (ps.p_b > plant.relief)
         if over.any():
@@ -254,7 +316,7 @@ def run_cycle(
         # Step by step while the relief valve is open or the oil sits at a limit.
         while True:
             parts = ((plan[0], plan[1]), (plant.dt - plan[0], plan[2]))
-            st, info = scalar_step(plant, st, k, parts)
+            st, info = scalar_step(plant, st, k, parts, budget)
             rec.S[k], rec.T[k], rec.p[k] = st.S, st.T, st.p
             rec.h1[k], rec.u1[k], rec.u2[k] = plan
             for key, value in info.items():
@@ -349,6 +411,11 @@ def run_periodic(
     Returns
     -------
     Orbit
+
+    Raises
+    ------
+    SimulationError
+        The run exceeds its work budget, :data:`SUBSTEP_BUDGET` substeps.
     """
     cap = max_cycles or max_cycles_for(plant)
     guess = np.full(plant.n, plant.T_wall) if T_guess is None else np.array(T_guess, float)
@@ -356,8 +423,9 @@ def run_periodic(
     records: list[Record] = []
     notes: list[str] = []
     last_jump = -10
+    budget = Budget(plant)
     for c in range(cap):
-        rec, st = run_cycle(plant, ctrl, st, guess)
+        rec, st = run_cycle(plant, ctrl, st, guess, budget=budget)
         records.append(rec)
         if len(records) > 2 * MAX_PERIOD:
             records.pop(0)

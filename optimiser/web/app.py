@@ -21,6 +21,12 @@ Routes
 ``GET /studies/{id}/files/{name}``     download; name ∈ report.html, design.json,
                                        schedule.csv, spec.csv
 ``GET /static/…``                      the page's CSS and JavaScript
+
+The one state-changing request, ``POST /studies``, is refused (403, one line) unless its
+``Origin`` header - or, without one, its ``Referer`` - names this very server: a page on
+another site, or a sandboxed frame (``Origin: null``), cannot queue designs.  The pages send
+``Referrer-Policy: same-origin`` so that the browser sends the real origin with the page's
+own form.  Only the Host names of the bound address are answered (DNS rebinding).
 """
 
 from __future__ import annotations
@@ -30,6 +36,8 @@ import datetime as _dt
 import ipaddress
 import os
 import re
+import sys
+import traceback
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -47,7 +55,7 @@ from starlette.routing import Mount, Route
 from starlette.staticfiles import StaticFiles
 from starlette.templating import Jinja2Templates
 from stowflow.catalogue import default_catalogue_path
-from stowflow.errors import StowflowError
+from stowflow.errors import StowflowError, one_line
 from stowflow.report import OUTPUTS
 from stowflow.report.content import DISCLAIMER, SAFETY_CAUTIONS
 from stowflow.version import __version__
@@ -64,7 +72,14 @@ from stowflow.web.forms import (
 from stowflow.web.jobs import Job, JobManager, QueueFull
 from stowflow.web.upload import UploadError, megabytes, read_form
 
-__all__ = ["LOOPBACK_HOSTS", "ServerConfig", "create_app", "is_loopback"]
+__all__ = [
+    "LOOPBACK_HOSTS",
+    "ServerConfig",
+    "create_app",
+    "cross_site",
+    "hosts_for",
+    "is_loopback",
+]
 
 HERE = Path(__file__).resolve().parent
 #: Host names a loopback-bound server answers to (others are refused: DNS rebinding).
@@ -102,6 +117,59 @@ def is_loopback(host: str) -> bool:
         return ipaddress.ip_address(host.strip("[]")).is_loopback
     except ValueError:
         return False
+
+
+def hosts_for(host: str) -> tuple[str, ...]:
+    """The Host names a server bound to ``host`` answers to.
+
+    A loopback address answers to the loopback names and to itself (``127.0.0.2`` too);
+    any other address, which needs ``--allow-remote``, to any name (``("*",)``).
+    """
+    host = host.strip()
+    if not is_loopback(host):
+        return ("*",)
+    bare = host.strip("[]")
+    extra = (bare, f"[{bare}]") if ":" in bare else (bare,)
+    return tuple(dict.fromkeys((*LOOPBACK_HOSTS, *extra)))
+
+
+#: Default ports of the schemes, for comparing origins.
+_PORTS = {"http": 80, "https": 443}
+
+
+def _origin(url: str) -> tuple[str, str, int] | None:
+    """(scheme, host, port) of a URL, or None when it has none (``null``, garbage)."""
+    try:
+        parts = urlsplit(url.strip())
+        port = parts.port
+    except ValueError:
+        return None
+    if parts.scheme not in _PORTS or not parts.hostname:
+        return None
+    return parts.scheme, parts.hostname.lower(), port or _PORTS[parts.scheme]
+
+
+def cross_site(request: Request) -> str | None:
+    """Why a state-changing request is refused as cross-site, or None when it is our own.
+
+    The ``Origin`` header must name this server (scheme, host and port of the request's own
+    URL); without an ``Origin``, the ``Referer`` must.  ``Origin: null`` (a sandboxed frame,
+    a file) and a request with neither header are refused.
+    """
+    own = _origin(str(request.url))
+    origin = request.headers.get("origin")
+    if origin is not None:
+        if origin.strip() == "null":
+            return "form posted from an opaque origin (Origin: null); use this page's form"
+        if _origin(origin) != own:
+            return "form posted from another site; use this page's form"
+        return None
+    referer = request.headers.get("referer")
+    if referer is None:
+        return "form posted without Origin or Referer header; use this page's form"
+    if _origin(referer) != own:
+        return "form posted from another site; use this page's form"
+    return None
 
 
 def _default_workers() -> int:
@@ -174,7 +242,7 @@ class SecurityHeaders:
                 present = {k.lower() for k, _ in headers}
                 defaults = {
                     b"x-content-type-options": b"nosniff",
-                    b"referrer-policy": b"no-referrer",
+                    b"referrer-policy": b"same-origin",
                     b"cross-origin-opener-policy": b"same-origin",
                     b"cross-origin-resource-policy": b"same-origin",
                     b"content-security-policy": PAGE_CSP.encode(),
@@ -352,9 +420,9 @@ class _Pages:
         return self.form_page(request)
 
     async def submit(self, request: Request) -> Response:
-        origin = request.headers.get("origin")
-        if origin and origin != "null" and urlsplit(origin).netloc != request.url.netloc:
-            raise HTTPException(403, "form posted from another site; use this page's form")
+        refused = cross_site(request)
+        if refused:
+            raise HTTPException(403, refused)
         if self.manager.full():
             return self.busy(request, self.manager.retry_after())
         cfg = self.cfg
@@ -368,12 +436,19 @@ class _Pages:
                 max_lines={CYCLE_FIELD: (cfg.max_rows + EXTRA_LINES, cfg.max_rows)},
             )
         except UploadError as exc:
-            return self.form_page(request, error=str(exc), status=exc.status)
+            return self.form_page(request, error=one_line(exc), status=exc.status)
         values = {k: v for k, v in form.fields.items() if k != DEMO_FIELD}
         try:
             study, source = await run_in_threadpool(build_study, form, self.limits, self.demo_cycle)
         except StowflowError as exc:
-            return self.form_page(request, error=str(exc), values=values, status=422)
+            return self.form_page(request, error=one_line(exc), values=values, status=422)
+        except Exception as exc:  # a bad upload is a 4xx, never a 500; the trace is for us
+            traceback.print_exc(file=sys.stderr)
+            message = (
+                f"the upload could not be read ({type(exc).__name__}); this is a bug in "
+                "stowflow - please report it with the files"
+            )
+            return self.form_page(request, error=message, values=values, status=400)
         try:
             job = self.manager.submit(study, name=study.name or "study", source=source)
         except QueueFull as exc:

@@ -167,6 +167,8 @@ class JobManager:
         self._task: asyncio.Task | None = None
         self._warming: asyncio.Task | None = None
         self._ended: list[multiprocessing.process.BaseProcess] = []
+        # Process starts under way in a thread; stop() lets them finish before it kills.
+        self._starting: set[asyncio.Future] = set()
 
     # -- lifecycle ------------------------------------------------------------------------
     async def start(self) -> None:
@@ -191,6 +193,8 @@ class JobManager:
         if self._warming is not None:
             with contextlib.suppress(Exception):
                 await self._warming
+        if self._starting:  # a start cut short by the shutdown: let it end, then kill it
+            await asyncio.wait(set(self._starting), timeout=30.0)
         self.pending.clear()
         for job in self.jobs.values():
             if job.state == "running":
@@ -198,6 +202,8 @@ class JobManager:
             elif job.state == "queued":
                 self._end(job, "stopped", "stopped: the server shut down before this design ran")
         for proc in self._ended:
+            if proc.pid is None:  # never started: nothing to join
+                continue
             proc.join(timeout=5.0)
             if proc.is_alive():
                 proc.kill()
@@ -281,9 +287,15 @@ class JobManager:
         )
         job.state, job.label = "running", "starting a worker"
         job.process, job.conn, job.study = proc, reader, None
+        # The first start waits for the fork server's warm-up; the clock starts after it.  The
+        # start runs on in its thread when the server shuts down meanwhile (stop() waits for
+        # it), and our end of the pipe is closed only once the worker holds its own.
+        start = asyncio.get_running_loop().run_in_executor(None, proc.start)
+        self._starting.add(start)
+        start.add_done_callback(self._starting.discard)
+        start.add_done_callback(lambda _: writer.close())
         try:
-            # The first start waits for the fork server's warm-up; the clock starts after it.
-            await anyio.to_thread.run_sync(proc.start)
+            await asyncio.shield(start)
             job.started = time.monotonic()
         except Exception as exc:  # the machine refused a process (or a bad __main__)
             job.process = None  # never started: nothing to join
@@ -292,8 +304,6 @@ class JobManager:
                 job, "failed", f"could not start a worker process ({type(exc).__name__}: {first})"
             )
             traceback.print_exc(file=sys.stderr)
-        finally:
-            writer.close()
 
     def _poll(self, job: Job) -> None:
         conn, proc = job.conn, job.process
@@ -366,6 +376,8 @@ class JobManager:
         """Join and release the processes of ended jobs that have exited (never blocks)."""
         alive = []
         for proc in self._ended:
+            if proc.pid is None:  # never started (its start failed): nothing to join
+                continue
             if proc.is_alive():
                 alive.append(proc)
             else:

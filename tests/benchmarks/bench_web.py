@@ -53,6 +53,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 from _web_server import (
     load_run,
     percentile,
+    same_origin,
     start_serve,
     stop_serve,
     upload_burst,
@@ -129,6 +130,7 @@ def streamed_oversize(
     """
     head = (
         f"POST /studies HTTP/1.1\r\nHost: 127.0.0.1:{port}\r\n"
+        f"Origin: http://127.0.0.1:{port}\r\n"
         f"Content-Type: multipart/form-data; boundary={BOUNDARY}\r\n"
         "Transfer-Encoding: chunked\r\n\r\n"
     ).encode()
@@ -229,7 +231,9 @@ def report_time(runs: int) -> None:
     served = start_serve("--workers", "1")
     seconds, states = [], []
     try:
-        with httpx.Client(base_url=served.url, timeout=120) as client:
+        with httpx.Client(
+            base_url=served.url, timeout=120, headers=same_origin(served.url)
+        ) as client:
             for _ in range(runs):
                 t0 = time.perf_counter()
                 r = client.post("/studies", files={"use_demo": (None, "1")})

@@ -9,9 +9,10 @@ import sys
 
 import pytest
 import stowflow.cli as cli
+from _hostile import CYCLE as TINY
 from stowflow.cli import build_parser, join_dash_values
 from stowflow.cli.design import settings_from_args
-from stowflow.errors import UnitsError
+from stowflow.errors import StowflowError, UnitsError
 
 #: 0 °C on the kelvin scale (ITS-90 offset), [K].
 ZERO_C = 273.15
@@ -170,3 +171,51 @@ def test_installed_program_returns_the_command_exit_code(tmp_path):
         [sys.executable, "-m", "stowflow", "check", str(bad)], capture_output=True, text=True
     )
     assert out.returncode == 2 and out.stderr.startswith("stowflow: error:")
+
+
+# -- regressions of the hardening (issue: inputs, messages, --debug) --------------------------
+
+
+@pytest.mark.parametrize("where", ["before", "after"])
+def test_debug_is_honoured_before_and_after_the_command(run_cli, tmp_path, where):
+    # Regression: `stowflow --debug design ...` ignored --debug (the command's own default
+    # overwrote the value given before the command).
+    cycle = tmp_path / "bad.csv"
+    cycle.write_text("duration [s], flow [L/min]\n1, -5\n", encoding="utf-8")
+    argv = ["--debug", "design", cycle] if where == "before" else ["design", cycle, "--debug"]
+    with pytest.raises(StowflowError, match=r"negative flow"):
+        run_cli(*argv)
+    code, _, err = run_cli("design", cycle)
+    assert code == 2 and err.count("\n") == 1
+
+
+def test_a_vanishing_flow_keeps_the_table_narrow(run_cli, tmp_path):
+    # Regression: a flow of 1e-300 L/min made "installed power / lower bound" a 300-digit
+    # number that pushed every value out of the table.
+    cycle = tmp_path / "tiny_flow.csv"
+    cycle.write_text(
+        "duration [s], flow [L/min], pressure [bar]\n1, 1e-300, 100\n1, 0, 100\n",
+        encoding="utf-8",
+    )
+    code, out, err = run_cli("design", cycle, "--gas", "ideal", "--out", tmp_path / "o")
+    assert code in (0, 1), err
+    table = [line for line in out.splitlines() if not line.startswith(("note:", "report"))]
+    assert max(len(line) for line in table) < 120, max(table, key=len)
+    assert re.search(r"installed power / lower bound\s+[0-9.]+e\+\d+\s+-", out)
+
+
+def test_every_input_is_read_before_the_design_runs(run_cli, tmp_path, monkeypatch):
+    # A bad catalogue or output folder is refused before the pipeline's seconds of work.
+    import stowflow.pipeline
+
+    monkeypatch.setattr(stowflow.pipeline, "run", lambda *a, **k: pytest.fail("design ran"))
+    cycle = tmp_path / "tiny.csv"
+    cycle.write_text(TINY, encoding="utf-8")
+    nested = tmp_path / "nested.toml"
+    nested.write_text("x = " + "[" * 5000 + "]" * 5000 + "\n", encoding="utf-8")
+    code, _, err = run_cli("design", cycle, "--catalogue", nested)
+    assert code == 2
+    assert err == (
+        f"stowflow: error: {nested}, line 1: arrays, tables or objects nested more than 32 "
+        "deep; expected at most 32 levels\n"
+    )

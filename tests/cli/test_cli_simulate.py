@@ -8,6 +8,8 @@ import math
 import pandas as pd
 import pytest
 import stowflow.cli as cli
+from _hostile import BASE_DESIGN as SMALL
+from _hostile import CYCLE as TINY
 from stowflow.catalogue import default_catalogue_path, load_catalogue
 from stowflow.cycle.duty import load_cycle
 from stowflow.search.settings import DesignSettings
@@ -455,3 +457,138 @@ def test_cold_temperature_range_after_an_option(cli_run, tmp_path, repo_root):
     # drops about 2.2 bar below the requirement; at 60 °C it holds.  A failure: exit 1.
     assert code == 1, stderr
     assert runs[-20.0]["min_margin_bar"] < 0 < runs[60.0]["min_margin_bar"]
+
+
+# --------------------------------------------------------------------------- hostile files
+def _edit(base: dict, **changes) -> dict:
+    """``base`` with ``section__key=value`` changes (``key=value`` at the top level)."""
+    data = json.loads(json.dumps(base))
+    for name, value in changes.items():
+        node, key = data, name
+        if "__" in name:
+            section, key = name.split("__")
+            node = data[section]
+        node[key] = value
+    return data
+
+
+@pytest.mark.parametrize(
+    ("changes", "message"),
+    [
+        # efficiencies above 1 (the catalogue refused them; simulate took them: energy 6× low)
+        (
+            {"pump__displacement_cm3": 11.0, "pump__flow_lpm": None, "pump__overall_efficiency": 6},
+            "key 'pump.overall_efficiency' 6 is above 1; expected 0.05 to 1",
+        ),
+        (
+            {"motor__rated_kw": 5.6, "motor__efficiency": 6},
+            "key 'motor.efficiency' 6 is above 1; expected 0.05 to 1",
+        ),
+        # a relief setting above the vessel's PS: a safety matter
+        (
+            {"relief_bar": 550},
+            "key 'relief_bar': 550 bar is above the vessel's PS (max_allowable_pressure) 330 bar",
+        ),
+        (
+            {"accumulator__max_allowable_pressure_bar": None, "relief_bar": 300},
+            "key 'relief_bar': 300 bar is above the pump's rating (pump.max_pressure_bar) 250 bar",
+        ),
+        ({"accumulator__count": 10**30}, "key 'accumulator.count' 1e+30 is above 1000"),
+        (
+            {"accumulator__nominal_volume_l": 1e12},
+            "key 'accumulator.nominal_volume_l' 1e+12 is above 5000; expected 0.01 to 5000 L",
+        ),
+        (
+            {"accumulator__nominal_volume_l": 1e-12},
+            "key 'accumulator.nominal_volume_l' 1e-12 is below 0.01; expected 0.01 to 5000 L",
+        ),
+        (
+            {"setpoints": {"load_below_bar": 1e9, "unload_above_bar": 2e9}},
+            "key 'setpoints.load_below_bar' 1e+09 is above 2000; expected 0 to 2000 bar",
+        ),
+        ({"relief_bar": 1e9}, "key 'relief_bar' 1e+09 is above 2000; expected 0 to 2000 bar"),
+        (
+            {"pump__displacement_cm3": 1e9, "pump__speed_rpm": 1e9},
+            "key 'pump.displacement_cm3' 1e+09 is above 10000; expected 0.01 to 10000 cm3",
+        ),
+        (
+            {"temperature_c": {"min": 283.15, "max": 323.15}},
+            "key 'temperature_c.min' 283.15 is above 200; expected -60 to 200 °C",
+        ),
+        (
+            {"temperature_c": {"min": -80, "max": 20}},
+            "key 'temperature_c.min' -80 is below -60; expected -60 to 200 °C",
+        ),
+    ],
+)
+def test_design_json_is_held_to_the_catalogue_rules(cli_run, tmp_path, changes, message):
+    cycle = tmp_path / "tiny.csv"
+    cycle.write_text(TINY, encoding="utf-8")
+    path = _write(tmp_path, _edit(SMALL, **changes))
+    code, stdout, stderr = cli_run("simulate", path, cycle)
+    assert code == 2 and stdout == "" and stderr.count("\n") == 1
+    assert stderr.startswith(f"stowflow: error: {path}: {message}")
+
+
+def test_valid_design_json_still_simulates(cli_run, tmp_path):
+    cycle = tmp_path / "tiny.csv"
+    cycle.write_text(TINY, encoding="utf-8")
+    code, stdout, stderr = cli_run("simulate", _write(tmp_path, SMALL), cycle)
+    assert code in (0, 1) and stderr == ""
+    assert "stowflow simulate:" in stdout
+
+
+def test_nested_json_is_refused_before_parsing(cli_run, tmp_path):
+    # Regression: 100,000 nested {"a": ended in RecursionError, an internal error.
+    cycle = tmp_path / "tiny.csv"
+    cycle.write_text(TINY, encoding="utf-8")
+    path = tmp_path / "design.json"
+    path.write_text('{"a":' * 100_000 + "1" + "}" * 100_000, encoding="utf-8")
+    code, _, stderr = cli_run("simulate", path, cycle)
+    assert code == 2
+    assert stderr == (
+        f"stowflow: error: {path}, line 1: arrays, tables or objects nested more than 32 deep; "
+        "expected at most 32 levels\n"
+    )
+
+
+def test_a_named_schedule_must_exist(cli_run, tmp_path):
+    # Regression: --schedule /nonexistent.csv was silently ignored.
+    cycle = tmp_path / "tiny.csv"
+    cycle.write_text(TINY, encoding="utf-8")
+    missing = tmp_path / "nonexistent.csv"
+    code, _, stderr = cli_run("simulate", _write(tmp_path, SMALL), cycle, "--schedule", missing)
+    assert code == 2
+    assert stderr == (
+        f"stowflow: error: {missing}: file not found; expected the schedule.csv that "
+        "stowflow design writes\n"
+    )
+
+
+def test_a_stiff_plant_ends_in_seconds_with_a_clear_error(cli_run, tmp_path):
+    # Regression: a 10,000 cm³ pump at 10,000 rpm (inside the plausible ranges, 93,000 L/min
+    # on a 16 L bank) kept the step loop busy for minutes; the run's sub-step budget ends it.
+    cycle = tmp_path / "tiny.csv"
+    cycle.write_text(TINY, encoding="utf-8")
+    data = _edit(SMALL, pump={"displacement_cm3": 10_000, "speed_rpm": 10_000})
+    path = _write(tmp_path, data)
+    code, _, stderr = cli_run("simulate", path, cycle, "--controller", "pressure-switch")
+    assert code == 2 and stderr.count("\n") == 1
+    assert stderr.startswith(
+        f"stowflow: error: {path}: the time-domain simulation needs more than 200,000 "
+        "substeps for one run (pump 9.3e+04 L/min against a gas volume of 16 L"
+    )
+
+
+def test_simulate_out_is_checked_first_and_written_as_a_set(cli_run, tmp_path):
+    cycle = tmp_path / "tiny.csv"
+    cycle.write_text(TINY, encoding="utf-8")
+    path = _write(tmp_path, SMALL)
+    (tmp_path / "afile").write_text("x")
+    code, _, stderr = cli_run("simulate", path, cycle, "--out", tmp_path / "afile")
+    assert code == 2 and "is a file; expected a folder" in stderr
+    out = tmp_path / "sim"
+    code, _, stderr = cli_run("simulate", path, cycle, "--out", out)
+    assert code in (0, 1) and stderr == ""
+    assert sorted(p.name for p in out.iterdir()) == ["simulation.csv", "verification.json"]
+    assert [p.name for p in tmp_path.iterdir() if ".tmp-" in p.name] == []

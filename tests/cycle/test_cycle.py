@@ -11,6 +11,7 @@ import numpy as np
 import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
+from stowflow.cycle.csvtable import read_table
 from stowflow.cycle.duty import (
     cycle_from_arrays,
     load_cycle,
@@ -505,6 +506,38 @@ def test_bad_bytes(tmp_path, name, data, match, line, run_cli):
     _assert_one_clear_line(str(info.value), name, line, None)
     code, out, err = run_cli("check", path)
     assert code == 2 and out == "" and err.count("\n") == 1 and "Traceback" not in err
+
+
+@pytest.mark.parametrize(
+    ("cell", "digit"),
+    [("１０", "U+FF11"), ("٣", "U+0663"), ("1٠", "U+0660"), ("𝟙", "U+1D7D9")],
+)
+def test_digits_other_than_ascii_are_refused(cell, digit, run_cli, tmp_path):
+    # Regression: full-width and Arabic-Indic digits were read as numbers (float() does).
+    # One rule for every reader: numbers are written with 0-9 (stowflow.io.rawtext).
+    path = tmp_path / "digits.csv"
+    path.write_text(f"duration [s], flow [L/min]\n1, {cell}\n2, 0\n", encoding="utf-8")
+    pattern = rf"digits.csv, line 2, column 2 'flow \[L/min\]': '{cell}' has a digit other than 0-9"
+    with pytest.raises(CycleError, match=pattern + rf" \('.', {re.escape(digit)}\)"):
+        load_cycle(path)
+    code, out, err = run_cli("check", path)
+    assert code == 2 and out == "" and err.count("\n") == 1
+
+
+def test_quoted_line_break_in_a_label_is_kept():
+    # Regression: valid CSV with a line break inside a quoted label was refused.
+    text = 'duration [s], flow [L/min], label\n1, 10, "clamp,\nclose"\n2, 0, open\n'
+    cycle = parse_cycle_text(text)
+    assert cycle.n_steps == 3
+    table = read_table(text, "q.csv")
+    assert table.labels == ("clamp,\nclose", "open")
+    assert list(table.lines) == [2, 4]  # each row keeps the line it starts on
+
+
+def test_unclosed_quote_names_the_line_it_starts_on():
+    text = 'duration [s], flow [L/min], label\n1, 10, "open\n2, 0, b\n'
+    with pytest.raises(CycleError, match=r"q.csv, line 2: cannot split the row"):
+        read_table(text, "q.csv")
 
 
 def test_file_not_found_and_folder(tmp_path, run_cli):

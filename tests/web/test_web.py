@@ -16,15 +16,18 @@ import io
 import json
 import re
 import time
+from dataclasses import replace
 from pathlib import Path
 
 import pytest
-from _web_server import FAST, TINY, slow_job, upload, wait_final
+from _web_server import FAST, TINY, same_origin, slow_job, upload, wait_final
 from starlette.testclient import TestClient
+from stowflow.catalogue import default_catalogue_path
 from stowflow.cli.serve import config_from_args
 from stowflow.errors import SettingsError
 from stowflow.report import OUTPUTS
 from stowflow.web import ServerConfig, create_app, is_loopback
+from stowflow.web.app import hosts_for
 from stowflow.web.forms import FormLimits, study_name
 from stowflow.web.jobs import Job, JobManager, QueueFull
 from stowflow.web.upload import UploadError, read_form
@@ -79,7 +82,7 @@ def client(demo_cycle):
             warm_up=False,  # ideal gas only: no real-gas caches to fill
         )
     )
-    with TestClient(app, base_url=BASE) as c:
+    with TestClient(app, base_url=BASE, headers=same_origin(BASE)) as c:
         yield c
 
 
@@ -126,14 +129,48 @@ def test_other_host_header_is_refused(client):
     assert client.get("/", headers={"host": "attacker.example"}).status_code == 400
 
 
-def test_form_posted_from_another_site_is_refused(client):
-    r = client.post(
-        "/studies",
-        files={"use_demo": (None, "1")},
-        headers={"origin": "http://attacker.example"},
-        follow_redirects=False,
-    )
+def _post_demo(client, headers):
+    """The demo button's post with exactly these Origin/Referer headers (others removed)."""
+    request = client.build_request("POST", "/studies", files={"use_demo": (None, "1")})
+    for name in ("origin", "referer"):
+        request.headers.pop(name, None)
+    request.headers.update(headers)
+    return client.send(request, follow_redirects=False)
+
+
+@pytest.mark.parametrize(
+    ("headers", "pattern"),
+    [
+        ({"origin": "http://attacker.example"}, r"form posted from another site"),
+        ({"origin": "null"}, r"form posted from an opaque origin \(Origin: null\)"),
+        ({}, r"form posted without Origin or Referer header"),
+        ({"referer": "http://attacker.example/page"}, r"form posted from another site"),
+        ({"origin": "http://127.0.0.1:8001"}, r"form posted from another site"),  # port
+        ({"origin": "https://127.0.0.1:8000"}, r"form posted from another site"),  # scheme
+    ],
+)
+def test_cross_site_posts_are_refused(client, headers, pattern):
+    # Cross-site request forgery: a page elsewhere, or a sandboxed frame (Origin: null), must
+    # not queue designs on this server and fill its queue for the real user.
+    before = len(client.app.state.manager.jobs)
+    r = _post_demo(client, headers)
     assert r.status_code == 403
+    assert re.search(pattern, r.text)
+    assert "Traceback" not in r.text
+    assert len(client.app.state.manager.jobs) == before
+
+
+def test_same_origin_referer_alone_is_accepted(client):
+    # A browser that sends no Origin but a Referer of this page (older browsers) may post.
+    r = _post_demo(client, {"referer": f"{BASE}/"})
+    assert r.status_code in (303, 503), r.text[:300]
+    if r.status_code == 303:
+        wait_final(client, r.headers["location"], DESIGN_WAIT_S)
+
+
+def test_pages_ask_the_browser_to_send_their_origin(client):
+    # The page's own form must carry its origin: "no-referrer" would make it "null".
+    assert client.get("/").headers["referrer-policy"] == "same-origin"
 
 
 # -- a design end to end ---------------------------------------------------------------------
@@ -332,6 +369,23 @@ def test_bad_catalogue_gets_one_line(client):
     _assert_one_line_error(r, 422, r"^parts\.toml")
 
 
+BAD_LIMIT = "\n[limits.bladder]\nmax_pressure_ratio = -3\n"
+
+
+def test_catalogue_limits_are_checked_at_upload(client):
+    # Regression: a [limits.*] mistake was accepted at upload and failed later in the worker.
+    bundled = default_catalogue_path().read_text(encoding="utf-8")
+    files = {
+        "cycle": ("cycle.csv", TINY, "text/csv"),
+        "catalogue": ("parts.toml", bundled + BAD_LIMIT),
+    }
+    r = client.post("/studies", files=files, follow_redirects=False)
+    _assert_one_line_error(r, 422, r"^parts\.toml: \[limits\.bladder\] max_pressure_ratio = -3")
+    files["catalogue"] = ("deep.toml", "x = " + "[" * 5000 + "]" * 5000 + "\n")
+    r = client.post("/studies", files=files, follow_redirects=False)
+    _assert_one_line_error(r, 422, r"^deep\.toml, line 1: arrays, tables or objects nested")
+
+
 def test_no_file_and_not_a_form(client):
     r = client.post("/studies", files={"d_gas": (None, "ideal")}, follow_redirects=False)
     _assert_one_line_error(r, 422, r"no duty-cycle file chosen")
@@ -417,7 +471,7 @@ def test_queue_full_gives_503_with_retry_after_and_time_limit_is_honest(client):
     app = create_app(
         ServerConfig(workers=1, queue=0, time_limit=1.5, warm_up=False, job_target=slow_job)
     )
-    with TestClient(app, base_url=BASE) as c:
+    with TestClient(app, base_url=BASE, headers=same_origin(BASE)) as c:
         r = c.post("/studies", files={"use_demo": (None, "1")}, follow_redirects=False)
         assert r.status_code == 303
         first = r.headers["location"]
@@ -530,6 +584,23 @@ def test_serve_options_are_checked(run_cli):
         code, _, err = run_cli("serve", *args)
         assert code == 2, args
         assert err == f"stowflow: error: {pattern}\n"
+
+
+def test_host_names_follow_the_bound_address():
+    # Regression: --host 127.0.0.2 started, then answered every request with 400.
+    import argparse
+
+    args = argparse.Namespace(
+        host="127.0.0.2", allow_remote=False, workers=None, queue="8", time_limit="60s"
+    )
+    config = config_from_args(args)
+    assert "127.0.0.2" in config.allowed_hosts and "attacker.example" not in config.allowed_hosts
+    app = create_app(replace(config, workers=1, warm_up=False))
+    with TestClient(app, base_url="http://127.0.0.2:8000") as c:
+        assert c.get("/").status_code == 200
+        assert c.get("/", headers={"host": "attacker.example"}).status_code == 400
+    assert {"::1", "[::1]"} <= set(hosts_for("::1"))
+    assert hosts_for("0.0.0.0") == ("*",)
 
 
 def test_allow_remote_answers_any_host_name():
