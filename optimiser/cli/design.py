@@ -180,9 +180,11 @@ def print_summary(result, paths, stream=None) -> None:
                         "bar",
                     )
                 )
-        fixed = d.baselines[0] if d.baselines else None
-        if fixed is not None and fixed.motor is not None:
-            rows.append(("pump-only motor", f"{fixed.installed_power / 1e3:g}", "kW"))
+        best, ref = result.comparison.strongest, result.comparison.reference
+        if best is not None:
+            rows.append(("pump-only motor", f"{best.installed_power / 1e3:g} ({best.key})", "kW"))
+        if ref is not None:
+            rows.append((f"against {best.key}", ref.note, ""))
     rows.append(("time", f"{result.timings['total']:.2f}", "s"))
     print_table(rows, title=f"stowflow design: {result.name}", stream=stream)
     for note in d.notes:
