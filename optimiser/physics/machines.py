@@ -77,6 +77,7 @@ from __future__ import annotations
 import math
 from collections.abc import Sequence
 from dataclasses import dataclass, fields
+from typing import ClassVar
 
 import numpy as np
 
@@ -129,6 +130,14 @@ def theoretical_torque(displacement: float, dp: float) -> float:
         Displacement per revolution, [m³/rev].
     dp : float
         Pressure rise (gauge outlet pressure), [Pa].
+
+    Examples
+    --------
+    Esposito, *Fluid Power with Applications*, example 5-9 (from memory): 100 cm³/rev at
+    70 bar, theoretical torque 111.4 N·m.
+
+    >>> round(theoretical_torque(100e-6, 70e5), 1)
+    111.4
     """
     return displacement * dp / (2.0 * math.pi)
 
@@ -164,6 +173,17 @@ class PumpLosses:
         Drag torque M_d at rated speed, [N·m].
     friction : float
         Friction torque over ideal torque c_f, [-].
+
+    Examples
+    --------
+    Through the rated point (hand calculation from the stated model: at 250 bar the catalogue's
+    95 % and 90 %; at 100 bar the leakage is 2 % and the drag weighs more):
+
+    >>> pump = PumpLosses.from_rated(100e-6, 25.0, 250e5, 0.95, 0.90)
+    >>> [round(x, 3) for x in pump.efficiencies(250e5)]
+    [0.95, 0.947, 0.9]
+    >>> [round(x, 3) for x in pump.efficiencies(100e5)]
+    [0.98, 0.925, 0.907]
     """
 
     displacement: float
@@ -267,11 +287,32 @@ class PumpLosses:
 
 @dataclass(frozen=True)
 class _LoadLosses:
-    """Losses a + b·f(load) of a machine of rated output ``rated`` [W]."""
+    """Losses a + b·load^k of a machine of rated output ``rated`` [W] (k = ``_POWER``)."""
 
     rated: float
     constant: float
     variable: float
+
+    #: Exponent of the load in the variable losses, and the default constant share.
+    _POWER: ClassVar[int] = 1
+    _SHARE: ClassVar[float] = 0.0
+
+    @classmethod
+    def from_rated(cls, rated: float, efficiency: float, constant_share: float | None = None):
+        """The model through the rated efficiency [-] with the constant-loss share [-]
+        (default: the class's)."""
+        share = cls._SHARE if constant_share is None else constant_share
+        losses = rated * (1.0 / efficiency - 1.0)
+        return cls(rated, share * losses, (1.0 - share) * losses)
+
+    @classmethod
+    def fit(cls, rated: float, points: Sequence[tuple[float, float]]):
+        """The model fitted by least squares (neither part negative) to points (load fraction
+        [-], efficiency [-]) at rated speed."""
+        x = np.array([p[0] for p in points], float)
+        eff = np.array([p[1] for p in points], float)
+        a, b = _nonneg_line(x**cls._POWER, x * rated * (1.0 / eff - 1.0))
+        return cls(rated, a, b)
 
     @property
     def rated_losses(self) -> float:
@@ -296,24 +337,19 @@ class MotorLosses(_LoadLosses):
         Constant losses at rated speed (a), [W].
     variable : float
         Load losses at rated torque (b), [W].
+
+    Examples
+    --------
+    An IE3 15 kW motor (92.1 % at rated load, IEC 60034-30-1): best near 75 % load (U.S. DOE
+    fact sheet "Determining Electric Motor Load and Efficiency"), lower at a quarter load.
+
+    >>> m = MotorLosses.from_rated(15e3, 0.921)
+    >>> round(float(m.efficiency(0.75)), 4), round(float(m.efficiency(0.25)), 3)
+    (0.9239, 0.879)
     """
 
-    @classmethod
-    def from_rated(
-        cls, rated: float, efficiency: float, constant_share: float = MOTOR_CONSTANT_SHARE
-    ) -> MotorLosses:
-        """The model through the rated efficiency with the constant-loss share [-]."""
-        losses = rated * (1.0 / efficiency - 1.0)
-        return cls(rated, constant_share * losses, (1.0 - constant_share) * losses)
-
-    @classmethod
-    def fit(cls, rated: float, points: Sequence[tuple[float, float]]) -> MotorLosses:
-        """The model fitted to points (load fraction [-], efficiency [-]) at rated speed."""
-        x = np.array([p[0] for p in points], float)
-        eff = np.array([p[1] for p in points], float)
-        losses = x * rated * (1.0 / eff - 1.0)
-        a, b = _nonneg_line(x**2, losses)
-        return cls(rated, a, b)
+    _POWER: ClassVar[int] = 2
+    _SHARE: ClassVar[float] = MOTOR_CONSTANT_SHARE
 
     def losses(self, load, speed=1.0):
         """Losses at the torque fraction ``load`` [-] and speed fraction ``speed`` [-], [W]."""
@@ -339,23 +375,18 @@ class DriveLosses(_LoadLosses):
         Losses that do not depend on the current, [W].
     variable : float
         Losses in proportion to the current at rated current, [W].
+
+    Examples
+    --------
+    A 97 % drive at a quarter of its current (hand calculation: losses 0.25 + 0.75 × 0.25 of
+    the rated 464 W):
+
+    >>> round(float(DriveLosses.from_rated(15e3, 0.97).efficiency(0.25)), 3)
+    0.949
     """
 
-    @classmethod
-    def from_rated(
-        cls, rated: float, efficiency: float, constant_share: float = DRIVE_CONSTANT_SHARE
-    ) -> DriveLosses:
-        """The model through the rated efficiency with the constant share [-]."""
-        losses = rated * (1.0 / efficiency - 1.0)
-        return cls(rated, constant_share * losses, (1.0 - constant_share) * losses)
-
-    @classmethod
-    def fit(cls, rated: float, points: Sequence[tuple[float, float]]) -> DriveLosses:
-        """The model fitted to points (load fraction [-], efficiency [-]) at rated speed."""
-        x = np.array([p[0] for p in points], float)
-        eff = np.array([p[1] for p in points], float)
-        a, b = _nonneg_line(x, x * rated * (1.0 / eff - 1.0))
-        return cls(rated, a, b)
+    _POWER: ClassVar[int] = 1
+    _SHARE: ClassVar[float] = DRIVE_CONSTANT_SHARE
 
     def losses(self, load):
         """Losses at the current fraction ``load`` [-], [W]."""
@@ -482,6 +513,19 @@ def energy_account(
     Returns
     -------
     EnergyBreakdown
+
+    Examples
+    --------
+    One second: 1 L/s to a machine at 80 bar from a line at 100 bar, 1 L/s over the relief
+    valve; shaft 22 kW, motor input 24 kW (hand calculation: 8 kJ useful, 2 kJ throttled,
+    10 kJ relieved, 2 kJ pump and 2 kJ motor losses).
+
+    >>> acc = energy_account(1.0, demand=1e-3, consumer=80e5, supply=100e5, delivered=2e-3,
+    ...                      electrical=24e3, shaft=22e3, motor_input=24e3, relief=1e-3)
+    >>> {k: round(v / 1e3, 3) for k, v in acc.parts.items() if v}
+    {'useful': 8.0, 'throttling': 2.0, 'relief': 10.0, 'pump': 2.0, 'motor': 2.0}
+    >>> round(acc.total / acc.electrical, 12)
+    1.0
     """
     demand = np.asarray(demand, float)
     n = demand.size
