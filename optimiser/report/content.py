@@ -207,7 +207,7 @@ def recommendation(result) -> str:
         return (
             f"{_capital(_supply_words(best))} costs less over {n} "
             f"years: {money(best.tco, result)} against {money(mine.tco, result)} for "
-            f"{what}, which {ref.note} against it. Use the pump-only supply; {what} is "
+            f"{what}. Against it {what} {ref.note}. Use the pump-only supply; {what} is "
             "shown for comparison."
         )
     saved = kilowatts(ref.installed_power_saved)

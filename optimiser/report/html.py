@@ -312,8 +312,8 @@ def _comparison_lede(result) -> str:
     verdict = (
         f"Against it the accumulator supply {ref.note}."
         if c.recommended == "design"
-        else f"It costs less than the accumulator supply, which {ref.note} against it: the "
-        "pump-only supply is the recommendation."
+        else "It costs less than the accumulator supply: the pump-only supply is the "
+        f"recommendation. Against it the accumulator supply {ref.note}."
     )
     return f"<p class='lede'>{e(head)} {e(verdict)}</p>"
 
