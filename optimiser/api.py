@@ -487,11 +487,14 @@ class DesignResult:
         ``nominal_volume_l``, ``total_gas_volume_l``, ``precharge_bar`` (gauge at 20 °C),
         ``min_pressure_bar``, ``max_pressure_bar`` (the working window, gauge),
         ``relief_bar``, ``pump``, ``pump_flow_lpm``, ``motor``, ``motor_rated_kw``,
-        ``lower_bound_power_kw``, ``pump_only_motor_kw`` (the fixed pump-only supply),
+        ``lower_bound_power_kw``, ``pump_only_motor_kw`` (the strongest pump-only supply:
+        the one with the least total cost of ownership, named by ``pump_only_kind``),
         ``verified`` (True/False; None when not verified), ``controller``,
         ``min_margin_bar``, ``load_below_bar``, ``unload_above_bar`` (pressure switch,
         gauge), ``capex``, ``energy_per_year_kwh``, ``energy_cost_per_year``, ``tco``,
-        ``payback_years``, ``currency``.  None where a value does not apply;
+        ``payback_years`` and ``verdict`` (against the strongest pump-only supply),
+        ``recommended`` (``"design"`` or the kind of a cheaper pump-only supply), ``currency``.
+        None where a value does not apply;
         ``accumulator_count`` and ``total_gas_volume_l`` are 0 without an accumulator.  The
         numbers are design.json's (:meth:`to_dict`).
         """
@@ -521,6 +524,7 @@ class DesignResult:
                 "motor_rated_kw": motor.get("rated_kw"),
                 "lower_bound_power_kw": r["lower_bound_power_kw"],
                 "pump_only_motor_kw": baseline.get("rated_kw"),
+                "pump_only_kind": costs["payback_against"],
                 "verified": ver["passed"],
                 "controller": ver.get("controller"),
                 "min_margin_bar": ver["min_margin_bar"],
@@ -531,6 +535,8 @@ class DesignResult:
                 "energy_cost_per_year": costs["energy_cost_per_year"],
                 "tco": costs["tco"],
                 "payback_years": costs["payback_years"],
+                "verdict": costs["verdict_note"],
+                "recommended": costs["recommended"],
                 "currency": costs["currency"],
             },
             name=r["name"],
@@ -553,25 +559,32 @@ class DesignResult:
 
     @cached_property
     def costs(self) -> pd.DataFrame:
-        """One row per supply: ``design``, ``fixed`` and ``compensated`` (pump-only).
+        """One row per supply: ``design``, then the pump-only ``fixed``, ``compensated``,
+        ``variable-speed`` and ``load-sensing``.
 
         Columns as design.json's ``costs.options``: ``label``, ``feasible``, ``reason``,
         ``installed_power_kw``, ``component_price``, ``capex``, ``energy_per_cycle_kj``,
         ``energy_source``, ``energy_per_year_kwh``, ``energy_cost_per_year``, ``tco``,
-        ``mean_power_kw``, ``motor_load`` [-], then the design's ``payback_years`` and
-        ``discounted_payback_years`` against each pump-only row.  Prices in the summary's
-        ``currency``.
+        ``mean_power_kw``, ``motor_load`` [-], ``components``, ``heat_load_kw``, then the
+        design against each pump-only row: ``payback_years``, ``discounted_payback_years``,
+        ``verdict`` (code), ``verdict_note`` (words), ``pays_back`` (the design costs no more
+        over the horizon), and ``strongest`` (True on the least-TCO pump-only row).  Prices in
+        the summary's ``currency``.
         """
         costs = self._record["costs"]
         rows = []
         for key, option in costs["options"].items():
-            back = costs["paybacks"].get(key, {})
+            back = costs["paybacks"].get(key) or {}
             rows.append(
                 {"supply": key}
                 | option
                 | {
                     "payback_years": back.get("simple_payback_years"),
                     "discounted_payback_years": back.get("discounted_payback_years"),
+                    "verdict": back.get("code"),
+                    "verdict_note": back.get("note"),
+                    "pays_back": back.get("pays_back"),
+                    "strongest": key == costs["payback_against"],
                 }
             )
         return _rows_frame(rows, "supply")

@@ -1,4 +1,4 @@
-"""Component catalogue: the accumulators, pumps and motors a design may be bought from.
+"""Component catalogue: the accumulators, pumps, motors and drives a design may be bought from.
 
 The catalogue is a TOML file with one table per purchasable item (see DESIGN.md):
 
@@ -20,17 +20,32 @@ The catalogue is a TOML file with one table per purchasable item (see DESIGN.md)
     volumetric_efficiency = 0.93
     overall_efficiency = 0.85
     price = 900
-    control = "fixed"           # optional: fixed | pressure-compensated
+    control = "fixed"           # optional: fixed | pressure-compensated | load-sensing
+    rated_pressure_bar = 250    # optional: where the efficiencies hold (default: max pressure)
+    efficiency_points = [[250, 0.93, 0.85], [100, 0.96, 0.82]]  # optional: bar, η_v, η_o
+    drag_share = 0.3            # optional: pressure-independent share of the torque loss
+    min_speed_rpm = 290         # optional: lowest speed on a variable-speed drive
+    control_flow_lpm = 1        # optional (variable pumps): compensator / LS control flow
+    load_sensing_margin_bar = 15  # optional (load-sensing pumps)
 
     [[motor]]
     rated_kw = 7.5
     efficiency = 0.904
     price = 700
+    part_load_efficiency = [[0.25, 0.86], [0.5, 0.90], [1.0, 0.904]]  # optional
+
+    [[drive]]                   # optional: variable-frequency drives
+    rated_kw = 7.5
+    efficiency = 0.96
+    price = 600
+    part_load_efficiency = [[0.25, 0.90], [1.0, 0.96]]  # optional
 
     [limits.bladder]            # optional overrides of accumulator type rules (numbers)
     max_pressure_ratio = 4.0
 
 Everything is converted to SI on reading (m³, Pa **absolute**, m, m³/s, m³/rev, rev/s, W).
+The loss models behind the efficiencies (:mod:`stowflow.physics.machines`) come from the rows:
+``PumpOption.losses``, ``MotorOption.losses``, ``DriveOption.losses``.
 Mistakes (unknown keys, missing keys, wrong types, values ≤ 0 or absurd, unknown type names,
 TOML syntax) raise one :class:`~stowflow.errors.CatalogueError` line naming the file, the
 line, the table and its index.
@@ -42,189 +57,46 @@ import difflib
 import math
 import re
 import tomllib
-from dataclasses import dataclass, field
 from pathlib import Path
 
+from stowflow.components import (
+    ACCUMULATOR_TYPES,
+    CONTROL_FLOW,
+    LOAD_SENSING_MARGIN,
+    MIN_SPEED_SHARE,
+    PISTON_TYPES,
+    PUMP_CONTROLS,
+    VARIABLE_CONTROLS,
+    AccumulatorOption,
+    Catalogue,
+    DriveOption,
+    MotorOption,
+    PumpOption,
+)
 from stowflow.cycle.csvtable import utf8_text
 from stowflow.errors import CatalogueError, StowflowError
 from stowflow.glossary import check_plausible
 from stowflow.io.rawtext import MAX_BYTES, check_nesting, read_limited
 from stowflow.physics.accumulator import rules_for
-from stowflow.units import P_AMBIENT, gauge_to_abs, si_factor
+from stowflow.units import BAR, P_AMBIENT, gauge_to_abs, si_factor
 
 __all__ = [
     "ACCUMULATOR_TYPES",
+    "CONTROL_FLOW",
+    "LOAD_SENSING_MARGIN",
+    "MIN_SPEED_SHARE",
     "PISTON_TYPES",
     "PUMP_CONTROLS",
+    "VARIABLE_CONTROLS",
     "AccumulatorOption",
     "Catalogue",
+    "DriveOption",
     "MotorOption",
     "PumpOption",
     "default_catalogue_path",
     "load_catalogue",
     "parse_catalogue_text",
 ]
-
-#: Accumulator types the catalogue may list.
-ACCUMULATOR_TYPES: tuple[str, ...] = (
-    "gas-over-oil",
-    "bladder",
-    "diaphragm",
-    "piston",
-    "piston-bottles",
-)
-
-#: Types with a piston: they need ``bore_mm`` and may give ``swept_volume_l``.
-PISTON_TYPES: tuple[str, ...] = ("piston", "piston-bottles")
-
-#: Pump control kinds.
-PUMP_CONTROLS: tuple[str, ...] = ("fixed", "pressure-compensated")
-
-
-@dataclass(frozen=True)
-class AccumulatorOption:
-    """One purchasable accumulator size.
-
-    Attributes
-    ----------
-    type : str
-        One of :data:`ACCUMULATOR_TYPES`.
-    nominal_volume : float
-        Gas volume at precharge (for ``piston-bottles`` including the bottles); for
-        ``gas-over-oil`` the vessel's volume, of which the gas fills
-        :func:`stowflow.physics.accumulator.gas_share`, [m³].
-    max_pressure : float
-        Maximum allowable pressure PS, **absolute**, [Pa].
-    bore : float
-        Piston bore for the piston-speed limit; 0 for types without a piston, [m].
-    price : float
-        Unit price in the catalogue's currency, [-].
-    name : str
-        Identifier, unique among the accumulators.
-    max_flow : float or None
-        Largest discharge flow of one unit (port or valve limit), [m³/s].
-    swept_volume : float or None
-        Oil volume of the full piston stroke (piston types); for ``piston-bottles`` the oil
-        exchange is limited to it, [m³].
-    """
-
-    type: str
-    nominal_volume: float
-    max_pressure: float
-    bore: float
-    price: float
-    name: str
-    max_flow: float | None = None
-    swept_volume: float | None = None
-
-    @property
-    def has_piston(self) -> bool:
-        """True for the piston types, [-]."""
-        return self.type in PISTON_TYPES
-
-
-@dataclass(frozen=True)
-class PumpOption:
-    """One purchasable pump.
-
-    Attributes
-    ----------
-    displacement : float
-        Geometric displacement, [m³/rev].
-    speed : float
-        Shaft speed, [rev/s].
-    max_pressure : float
-        Maximum continuous pressure, **absolute**, [Pa].
-    volumetric_efficiency : float
-        Effective over theoretical flow, [-].
-    overall_efficiency : float
-        Hydraulic output over shaft input power, [-].
-    price : float
-        Unit price in the catalogue's currency, [-].
-    name : str
-        Identifier, unique among the pumps.
-    control : str
-        ``"fixed"`` or ``"pressure-compensated"``.
-    """
-
-    displacement: float
-    speed: float
-    max_pressure: float
-    volumetric_efficiency: float
-    overall_efficiency: float
-    price: float
-    name: str
-    control: str = "fixed"
-
-    @property
-    def flow(self) -> float:
-        """Effective delivery, displacement × speed × volumetric efficiency, [m³/s]."""
-        return self.displacement * self.speed * self.volumetric_efficiency
-
-
-@dataclass(frozen=True)
-class MotorOption:
-    """One purchasable electric motor.
-
-    Attributes
-    ----------
-    rated_power : float
-        Rated mechanical output, [W].
-    efficiency : float
-        Efficiency at rated load, [-].
-    price : float
-        Unit price in the catalogue's currency, [-].
-    name : str
-        Identifier, unique among the motors.
-    efficiency_class : str or None
-        Efficiency class, e.g. ``"IE3"``.
-    """
-
-    rated_power: float
-    efficiency: float
-    price: float
-    name: str
-    efficiency_class: str | None = None
-
-
-@dataclass(frozen=True)
-class Catalogue:
-    """The components a design may be bought from.
-
-    Attributes
-    ----------
-    accumulators : tuple of AccumulatorOption
-        May be empty (then only pump-only supplies are possible).
-    pumps : tuple of PumpOption
-        At least one.
-    motors : tuple of MotorOption
-        At least one.
-    currency : str
-        Currency of every price ("" when the file does not say).
-    source : str
-        File the catalogue was read from.
-    notes : tuple of str
-        Free notes from the file's top-level ``notes`` key.
-    limits : dict of str to dict of str to float
-        Per accumulator type, overrides of the type rules (read by
-        :mod:`stowflow.physics.accumulator`; units as that module documents them).  Treat as
-        read-only.
-    """
-
-    accumulators: tuple[AccumulatorOption, ...]
-    pumps: tuple[PumpOption, ...]
-    motors: tuple[MotorOption, ...]
-    currency: str = ""
-    source: str = "<memory>"
-    notes: tuple[str, ...] = ()
-    limits: dict[str, dict[str, float]] = field(default_factory=dict, hash=False)
-
-    @property
-    def accumulator_types(self) -> tuple[str, ...]:
-        """Accumulator types present, in :data:`ACCUMULATOR_TYPES` order."""
-        present = {a.type for a in self.accumulators}
-        return tuple(t for t in ACCUMULATOR_TYPES if t in present)
-
 
 # key -> (kind, required, glossary key, unit as written, dimension, zero allowed)
 _Number = tuple[str, bool, str, str, str, bool]
@@ -248,6 +120,12 @@ _PUMP_KEYS: dict[str, _Number | tuple[str, bool]] = {
     "price": ("number", True, "price", "", "", True),
     "name": ("text", False),
     "control": ("text", False),
+    "rated_pressure_bar": ("number", False, "rated_pressure", "bar", "pressure", False),
+    "efficiency_points": ("points", False),
+    "drag_share": ("number", False, "drag_share", "", "", True),
+    "min_speed_rpm": ("number", False, "min_speed", "rpm", "speed", False),
+    "control_flow_lpm": ("number", False, "control_flow", "L/min", "flow", True),
+    "load_sensing_margin_bar": ("number", False, "load_sensing_margin", "bar", "pressure", False),
 }
 _MOTOR_KEYS: dict[str, _Number | tuple[str, bool]] = {
     "rated_kw": ("number", True, "rated_power", "kW", "power", False),
@@ -255,8 +133,21 @@ _MOTOR_KEYS: dict[str, _Number | tuple[str, bool]] = {
     "price": ("number", True, "price", "", "", True),
     "name": ("text", False),
     "efficiency_class": ("text", False),
+    "part_load_efficiency": ("points", False),
 }
-_SECTIONS = {"accumulator": _ACCUMULATOR_KEYS, "pump": _PUMP_KEYS, "motor": _MOTOR_KEYS}
+_DRIVE_KEYS: dict[str, _Number | tuple[str, bool]] = {
+    "rated_kw": ("number", True, "rated_power", "kW", "power", False),
+    "efficiency": ("number", True, "efficiency", "", "", False),
+    "price": ("number", True, "price", "", "", True),
+    "name": ("text", False),
+    "part_load_efficiency": ("points", False),
+}
+_SECTIONS = {
+    "accumulator": _ACCUMULATOR_KEYS,
+    "pump": _PUMP_KEYS,
+    "motor": _MOTOR_KEYS,
+    "drive": _DRIVE_KEYS,
+}
 _TOP_KEYS = (*_SECTIONS, "currency", "notes", "limits")
 
 
@@ -357,7 +248,13 @@ def parse_catalogue_text(text: str, *, source: str = "<memory>") -> Catalogue:
     accumulators = tuple(_accumulator(r, w) for r, w in rows["accumulator"])
     pumps = tuple(_pump(r, w) for r, w in rows["pump"])
     motors = tuple(_motor(r, w) for r, w in rows["motor"])
-    for name, items in (("accumulator", accumulators), ("pump", pumps), ("motor", motors)):
+    drives = tuple(_drive(r, w) for r, w in rows["drive"])
+    for name, items in (
+        ("accumulator", accumulators),
+        ("pump", pumps),
+        ("motor", motors),
+        ("drive", drives),
+    ):
         _unique(items, rows[name])
     currency = doc.get("currency", "")
     if not isinstance(currency, str) or (currency and not currency.strip()):
@@ -374,6 +271,7 @@ def parse_catalogue_text(text: str, *, source: str = "<memory>") -> Catalogue:
         source=source,
         notes=tuple(notes),
         limits=_limits(doc.get("limits", {}), source),
+        drives=drives,
     )
 
 
@@ -499,10 +397,33 @@ def _pump(row: dict, where: str) -> PumpOption:
             f"volumetric_efficiency {row['volumetric_efficiency']:g}; expected overall <= "
             "volumetric (overall = volumetric × mechanical)"
         )
+    if v["min_speed_rpm"] is not None and v["min_speed_rpm"] > v["speed_rpm"]:
+        raise CatalogueError(
+            f"{where}: min_speed_rpm {row['min_speed_rpm']:g} is above speed_rpm "
+            f"{row['speed_rpm']:g}; expected min_speed_rpm <= speed_rpm"
+        )
+    points = _points(row, "efficiency_points", where, ("pressure [bar]", "volumetric", "overall"))
+    if any(p[2] > p[1] for p in points):
+        raise CatalogueError(
+            f"{where}: efficiency_points has an overall efficiency above the volumetric one; "
+            "expected [pressure bar, volumetric, overall] with overall <= volumetric"
+        )
     prefix = "" if control == "fixed" else f"{control} "
     name = _text(row, "name", where) or (
         f"{prefix}pump {row['displacement_cm3']:g} cm³/rev {row['speed_rpm']:g} rpm"
     )
+    optional = {
+        "rated_pressure": None
+        if v["rated_pressure_bar"] is None
+        else gauge_to_abs(v["rated_pressure_bar"], P_AMBIENT),
+        "efficiency_points": tuple(
+            (gauge_to_abs(p * BAR, P_AMBIENT), ev, eo) for p, ev, eo in points
+        ),
+        "drag_share": v["drag_share"],
+        "min_speed": v["min_speed_rpm"],
+        "control_flow": v["control_flow_lpm"],
+        "load_sensing_margin": v["load_sensing_margin_bar"],
+    }
     return PumpOption(
         displacement=v["displacement_cm3"],
         speed=v["speed_rpm"],
@@ -512,6 +433,7 @@ def _pump(row: dict, where: str) -> PumpOption:
         price=v["price"],
         name=name,
         control=control,
+        **{k: x for k, x in optional.items() if x is not None and x != ()},
     )
 
 
@@ -523,7 +445,61 @@ def _motor(row: dict, where: str) -> MotorOption:
         price=v["price"],
         name=_text(row, "name", where) or f"motor {row['rated_kw']:g} kW",
         efficiency_class=_text(row, "efficiency_class", where),
+        part_load=_points(row, "part_load_efficiency", where, ("load", "efficiency")),
     )
+
+
+def _drive(row: dict, where: str) -> DriveOption:
+    v = _values(row, where, _DRIVE_KEYS)
+    return DriveOption(
+        rated_power=v["rated_kw"],
+        efficiency=v["efficiency"],
+        price=v["price"],
+        name=_text(row, "name", where) or f"drive {row['rated_kw']:g} kW",
+        part_load=_points(row, "part_load_efficiency", where, ("load", "efficiency")),
+    )
+
+
+#: Range of each column of a points key: (lowest, highest, lowest allowed itself).
+_POINT_RANGES = {
+    "pressure [bar]": (0.0, 2_000.0, False),
+    "load": (0.0, 2.0, False),
+    "volumetric": (0.0, 1.0, False),
+    "overall": (0.0, 1.0, False),
+    "efficiency": (0.0, 1.0, False),
+}
+
+
+def _points(row: dict, key: str, where: str, columns: tuple[str, ...]) -> tuple:
+    """A table of points such as ``[[0.5, 0.9], [1.0, 0.92]]``: at least two rows whose first
+    column differs, each of ``columns`` numbers in range (empty tuple when absent)."""
+    if key not in row:
+        return ()
+    value = row[key]
+    example = "[[" + ", ".join(columns) + "], ...]"
+    if not isinstance(value, list) or not all(
+        isinstance(r, list)
+        and len(r) == len(columns)
+        and all(isinstance(x, int | float) and not isinstance(x, bool) for x in r)
+        for r in value
+    ):
+        raise CatalogueError(
+            f"{where}: {key} must be a list of [{', '.join(columns)}] numbers, found "
+            f"{value!r}; expected e.g. {key} = {example}"
+        )
+    for r in value:
+        for x, col in zip(r, columns, strict=True):
+            low, high, _ = _POINT_RANGES[col]
+            if not (math.isfinite(x) and low < x <= high):
+                raise CatalogueError(
+                    f"{where}: {key} has {col} {x:g}; expected above {low:g} and at most {high:g}"
+                )
+    if len({r[0] for r in value}) < 2:
+        raise CatalogueError(
+            f"{where}: {key} needs at least two points with different {columns[0]}; found "
+            f"{len(value)}"
+        )
+    return tuple(tuple(float(x) for x in r) for r in value)
 
 
 def _unique(items, rows) -> None:

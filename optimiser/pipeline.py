@@ -376,7 +376,7 @@ def run(study: Study, *, progress: Callable[[float, str], None] | None = None) -
     result = _outcome(loop.result, verification, loop.attempts, loop.notes)
     report(0.9, "costs")
     t1 = time.perf_counter()
-    comparison = compare(result, verification, cycle, study.costs)
+    comparison = compare(result, verification, cycle, study.costs, design_settings=study.settings)
     t_costs = time.perf_counter() - t1
     report(1.0, "done")
     return StudyResult(

@@ -399,9 +399,17 @@ def test_design_tables(press):
     assert s["capex"] == d["costs"]["capex"] and s["currency"] == d["costs"]["currency"]
     assert press.schedule.index.name == "time [s]"
     assert press.schedule.shape == (press.study.cycle.n_steps, 11)
-    assert list(press.costs.index) == ["design", "fixed", "compensated"]
+    assert list(press.costs.index) == [
+        "design", "fixed", "compensated", "variable-speed", "load-sensing"
+    ]  # fmt: skip
     assert press.costs.loc["design", "capex"] == d["costs"]["capex"]
-    assert press.costs.loc["fixed", "payback_years"] == d["costs"]["payback_years"]
+    kind = d["costs"]["payback_against"]
+    assert press.costs["strongest"].sum() == 1 and press.costs.loc[kind, "strongest"]
+    years = press.costs.loc[kind, "payback_years"]
+    expected = d["costs"]["payback_years"]
+    assert pd.isna(years) if expected is None else years == expected
+    assert press.costs.loc[kind, "verdict_note"] == d["costs"]["verdict_note"] == s["verdict"]
+    assert s["pump_only_kind"] == kind
     v = press.verification
     assert len(v) == len(d["verification"]["runs"]) and v["recommended"].any()
     assert v["passed"][v["recommended"]].all()

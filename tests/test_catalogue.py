@@ -72,7 +72,8 @@ def test_demo_catalogue_loads_with_every_type():
     assert cat.accumulator_types == ACCUMULATOR_TYPES
     assert len(cat.pumps) >= 10 and len(cat.motors) >= 18
     assert cat.currency == "EUR" and "placeholder" in cat.notes[0]
-    assert {p.control for p in cat.pumps} == {"fixed", "pressure-compensated"}
+    assert {p.control for p in cat.pumps} == {"fixed", "pressure-compensated", "load-sensing"}
+    assert len(cat.drives) >= 18
 
 
 def test_demo_catalogue_says_it_is_invented():
@@ -135,6 +136,57 @@ def test_optional_keys_and_limits():
         "gas-over-oil": {"max_pressure_bar": 60.5},
     }
     assert cat.currency == "USD" and cat.notes == ("a", "b")
+
+
+def test_pump_motor_and_drive_loss_keys():
+    # New optional keys (duty_cycles/README.md) in SI; the loss model is fitted to the points.
+    text = (
+        "[[pump]]\ndisplacement_cm3 = 100\nspeed_rpm = 1500\nmax_pressure_bar = 280\n"
+        "volumetric_efficiency = 0.95\noverall_efficiency = 0.9\nprice = 1\n"
+        'control = "load-sensing"\nrated_pressure_bar = 250\ndrag_share = 0.2\n'
+        "min_speed_rpm = 300\ncontrol_flow_lpm = 2\nload_sensing_margin_bar = 20\n"
+        "[[pump]]\ndisplacement_cm3 = 50\nspeed_rpm = 1500\nmax_pressure_bar = 250\n"
+        "volumetric_efficiency = 0.95\noverall_efficiency = 0.9\nprice = 1\n"
+        "efficiency_points = [[250, 0.95, 0.9], [100, 0.98, 0.88]]\n"
+        "[[motor]]\nrated_kw = 10\nefficiency = 0.9\nprice = 1\n"
+        "part_load_efficiency = [[0.25, 0.8], [0.5, 0.87], [1.0, 0.9]]\n"
+        "[[drive]]\nrated_kw = 11\nefficiency = 0.97\nprice = 900\n"
+        "[[drive]]\nrated_kw = 15\nefficiency = 0.97\nprice = 1100\n"
+        'name = "vfd 15"\npart_load_efficiency = [[0.25, 0.93], [1, 0.97]]\n'
+    )
+    cat = parse_catalogue_text(text)
+    ls, pts = cat.pumps
+    assert ls.control == "load-sensing" and ls.variable
+    assert ls.rated_pressure == pytest.approx(250e5 + P_AMBIENT, rel=1e-12)
+    assert ls.drag_share == 0.2 and ls.min_speed == pytest.approx(5.0) == ls.lowest_speed
+    assert ls.control_flow == pytest.approx(2 / 60e3) and ls.load_sensing_margin == 20e5
+    # hand calculation: leakage coefficient (1 − η_v)·D·n / Δp_r = 0.05 × 100e-6 × 25 / 250e5
+    assert ls.losses.leakage == pytest.approx(0.05 * 100e-6 * 25 / 250e5, rel=1e-12)
+    assert pts.efficiency_points[1] == pytest.approx((100e5 + P_AMBIENT, 0.98, 0.88))
+    ev, _, eo = pts.losses.efficiencies(100e5)
+    assert 0.97 < ev < 0.99 and 0.85 < eo < 0.9  # fitted through two points
+    assert pts.lowest_speed == pytest.approx(0.2 * 25.0)  # default: a fifth of rated speed
+    motor = cat.motors[0]
+    assert motor.part_load == ((0.25, 0.8), (0.5, 0.87), (1.0, 0.9))
+    assert float(motor.losses.efficiency(0.5)) == pytest.approx(0.87, abs=0.01)
+    d11, d15 = cat.drives
+    assert d11.name == "drive 11 kW" and d11.rated_power == 11e3 and d11.part_load == ()
+    assert d15.name == "vfd 15" and float(d15.losses.efficiency(1.0)) == pytest.approx(
+        0.97, abs=1e-3
+    )
+
+
+def test_catalogue_without_drives_is_still_read():
+    cat = parse_catalogue_text(MINIMAL)
+    assert cat.drives == ()
+
+
+def test_demo_drives_follow_the_motor_ratings():
+    # IEC 60072-1 output ratings, as the motors.
+    cat = load_catalogue(default_catalogue_path())
+    for drive in cat.drives:
+        assert round(drive.rated_power / 1e3, 2) in IEC_60072_RATINGS
+    assert {d.rated_power for d in cat.drives} == {m.rated_power for m in cat.motors}
 
 
 def test_accumulators_may_be_empty(tmp_path):
@@ -337,6 +389,38 @@ BAD_CATALOGUES = [
     ),
     (_pumps(1, price=10**400) + MOTOR, r"price is far above 1e\+09; expected 0 to 1e\+09"),
     (_pumps(1, speed_rpm="１４５０") + MOTOR, r"speed_rpm must be a number, found text '１４５０'"),
+    (
+        _pumps(1) + "efficiency_points = 3\n" + MOTOR,
+        r"efficiency_points must be a list of \[pressure \[bar\], volumetric, overall\] numbers",
+    ),
+    (
+        _pumps(1) + "efficiency_points = [[250, 0.93, 0.85]]\n" + MOTOR,
+        r"efficiency_points needs at least two points with different pressure \[bar\]",
+    ),
+    (
+        _pumps(1) + "efficiency_points = [[250, 0.93, 0.85], [100, 0.9, 0.95]]\n" + MOTOR,
+        r"efficiency_points has an overall efficiency above the volumetric one",
+    ),
+    (
+        _pumps(1) + "efficiency_points = [[250, 0.93, 0.85], [100, 1.2, 0.8]]\n" + MOTOR,
+        r"efficiency_points has volumetric 1.2; expected above 0 and at most 1",
+    ),
+    (_pumps(1, drag_share=1.5) + MOTOR, r"drag_share 1.5 is above 1; expected 0 to 1"),
+    (_pumps(1, min_speed_rpm=2000) + MOTOR, r"min_speed_rpm 2000 is above speed_rpm 1450"),
+    (
+        _pumps(1) + MOTOR + "part_load_efficiency = [[0.5, 0.9], [0.5, 0.91]]\n",
+        r"\[\[motor\]\] #1: part_load_efficiency needs at least two points with different load",
+    ),
+    (
+        _pumps(1)
+        + MOTOR
+        + "\n[[drive]]\nrated_kw = 7.5\nefficiency = 0.97\nprice = 1\nspeed = 3\n",
+        r"\[\[drive\]\] #1: unknown key 'speed'",
+    ),
+    (
+        _pumps(1) + MOTOR + "\n[[drive]]\nrated_kw = 7.5\nprice = 1\n",
+        r"\[\[drive\]\] #1: missing key 'efficiency'",
+    ),
 ]
 
 

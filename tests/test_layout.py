@@ -31,6 +31,7 @@ LAYERS: dict[str, int] = {
     "stowflow.physics": 1,
     "stowflow.cycle": 2,
     "stowflow.catalogue": 2,
+    "stowflow.components": 2,
     "stowflow.fill": 3,
     "stowflow.duties": 3,
     "stowflow.search": 4,

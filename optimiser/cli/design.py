@@ -193,9 +193,11 @@ def print_summary(result, paths, stream=None) -> None:
                         "bar",
                     )
                 )
-        pump_only = d.baselines[0] if d.baselines else None
-        if pump_only is not None and pump_only.motor is not None:
-            rows.append(("pump-only motor", f"{pump_only.installed_power / 1e3:g}", "kW"))
+        best, ref = result.comparison.strongest, result.comparison.reference
+        if best is not None:
+            rows.append(("pump-only motor", f"{best.installed_power / 1e3:g} ({best.key})", "kW"))
+        if ref is not None:
+            rows.append((f"against {best.key}", ref.note, ""))
     rows.append(("time", f"{result.timings['total']:.2f}", "s"))
     print_table(rows, title=f"stowflow design: {result.name}", stream=stream)
     for note in d.notes:

@@ -1,16 +1,22 @@
 """Costs: capex, energy, total cost of ownership and payback against the pump-only supplies.
 
-Three options are priced side by side:
+Five options are priced side by side:
 
 * ``"design"``: the designed supply (accumulator bank, pump, motor; or a pump-only design when
   the search found no accumulator worth its price);
-* ``"fixed"``: a fixed pump for the peak flow, the excess over the relief valve;
-* ``"compensated"``: a pressure-compensated pump for the peak flow.
+* the pump-only alternatives of :mod:`stowflow.search.baseline`, each the least-power design
+  of its kind from the same catalogue: ``"fixed"`` (fixed pump with unloading and relief
+  valve), ``"compensated"`` (pressure-compensated pump), ``"variable-speed"`` (fixed pump on a
+  variable-speed drive), ``"load-sensing"`` (load-sensing pump).
 
-The energy per cycle of each option is electrical (motor input) and comes from the stage that
-computed it: the time-domain verification of the recommended controller (mean of its coldest
-and hottest run) when it was run, else the design's quasi-static schedule model; the
-baselines' from :mod:`stowflow.search.baseline`.  This module converts energy per cycle into money:
+The energy per cycle of each option is electrical (motor and drive input) with the part-load
+loss models of :mod:`stowflow.physics.machines`, and comes split into its parts
+(:class:`~stowflow.physics.machines.EnergyBreakdown`): the design's from the time-domain
+verification of the recommended controller (mean of its coldest and hottest run,
+:mod:`stowflow.costs.energy`) when it was run, else from the design's quasi-static schedule;
+the alternatives' from :mod:`stowflow.search.baseline`.  The design is judged against the
+alternative with the least total cost of ownership, the *strongest* (:attr:`Comparison.strongest`).
+This module converts energy per cycle into money:
 
 .. math::
     E_{year} = E_{cycle}\\, \\frac{t_{op}}{t_{cycle}}, \\qquad
@@ -37,20 +43,27 @@ from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
+from stowflow.costs.energy import design_energy
 from stowflow.costs.finance import (
     annuity_factor,
     discounted_payback,
     electrical_power,
     present_value,
     simple_payback,
+    verdict,
 )
 from stowflow.cycle.duty import DutyCycle
 from stowflow.errors import SettingsError
+from stowflow.physics.machines import EnergyBreakdown
+from stowflow.search.baseline import KINDS
+from stowflow.search.settings import DesignSettings
 from stowflow.search.solution import Baseline, Design
-from stowflow.units import HOUR, KWH, kelvin_to_celsius
+from stowflow.units import HOUR, KW, KWH
 
 __all__ = [
+    "KIND_WORDS",
     "OPTION_KEYS",
+    "OPTION_LABELS",
     "Comparison",
     "CostSettings",
     "OptionCost",
@@ -64,13 +77,25 @@ __all__ = [
     "simple_payback",
 ]
 
-#: The priced options, in the order the report shows them.
-OPTION_KEYS: tuple[str, ...] = ("design", "fixed", "compensated")
+#: The priced options, in the order the report shows them: the design, then the pump-only
+#: alternatives (:data:`stowflow.search.baseline.KINDS`).
+OPTION_KEYS: tuple[str, ...] = ("design", *KINDS)
 
+#: What each option is, in words.
 OPTION_LABELS: dict[str, str] = {
     "design": "accumulator supply (this design)",
-    "fixed": "pump-only: fixed pump + relief valve",
+    "fixed": "pump-only: fixed pump, unloading and relief valve",
     "compensated": "pump-only: pressure-compensated pump",
+    "variable-speed": "pump-only: fixed pump on a variable-speed drive",
+    "load-sensing": "pump-only: load-sensing pump",
+}
+
+#: Each pump-only kind in a sentence ("a pump-only <words> costs less ...").
+KIND_WORDS: dict[str, str] = {
+    "fixed": "fixed pump with unloading and relief valve",
+    "compensated": "pressure-compensated pump",
+    "variable-speed": "fixed pump on a variable-speed drive",
+    "load-sensing": "load-sensing pump",
 }
 
 
@@ -186,7 +211,7 @@ class OptionCost:
     Attributes
     ----------
     key : str
-        ``"design"``, ``"fixed"`` or ``"compensated"``.
+        One of :data:`OPTION_KEYS`.
     label : str
         What the option is, in words.
     feasible : bool
@@ -218,7 +243,8 @@ class OptionCost:
     motor_load : float
         Mean shaft power over rated motor power, [-].
     motor_efficiency : float
-        Motor efficiency from the catalogue (at rated load), [-].
+        Motor efficiency from the catalogue (at rated load), [-]; the energy uses the
+        motor's part-load loss model.
     motor_efficiency_class : str or None
         Efficiency class from the catalogue (e.g. IE3).
     pump_efficiency : float
@@ -226,8 +252,18 @@ class OptionCost:
     pump_flow : float
         Pump effective delivery, [m³/s].
     working_pressure : float
-        Pump-only options: the relief (fixed) or compensator setting; design: the unload
-        pressure; absolute, [Pa].
+        Pump-only options: the relief (fixed) or compensator / drive setting; design: the
+        highest working pressure; absolute, [Pa].
+    components : tuple of str
+        Catalogue names: accumulator bank (``"3 × name"``), pump, motor, drive.
+    breakdown : EnergyBreakdown or None
+        Where the energy per cycle goes (None when it could not be split).
+    heat_load : float
+        Mean heat put into the oil while the cycle runs, [W].
+    drive_price : float
+        Price of the drive (0 without one), [currency].
+    notes : tuple of str
+        How the option runs, in words.
     """
 
     key: str
@@ -251,16 +287,21 @@ class OptionCost:
     pump_efficiency: float = math.nan
     pump_flow: float = math.nan
     working_pressure: float = math.nan
+    components: tuple[str, ...] = ()
+    breakdown: EnergyBreakdown | None = None
+    heat_load: float = math.nan
+    drive_price: float = 0.0
+    notes: tuple[str, ...] = ()
 
 
 @dataclass(frozen=True)
 class Payback:
-    """The designed supply against one pump-only baseline.
+    """The designed supply against one pump-only alternative.
 
     Attributes
     ----------
     baseline : str
-        ``"fixed"`` or ``"compensated"``.
+        The alternative's kind (one of :data:`stowflow.search.baseline.KINDS`).
     installed_power_saved : float
         Baseline's rated motor power minus the design's, [W].
     extra_capex : float
@@ -276,7 +317,11 @@ class Payback:
     discounted_years : float or None
         Discounted payback, [year]; same conventions.
     note : str
-        The verdict in words.
+        The verdict in words (:func:`stowflow.costs.finance.verdict`).
+    verdict : str
+        The verdict's code, one of :data:`stowflow.costs.finance.VERDICTS`.
+    pays_off : bool
+        True when the design costs no more than the alternative over the horizon.
     """
 
     baseline: str
@@ -288,6 +333,8 @@ class Payback:
     simple_years: float | None
     discounted_years: float | None
     note: str
+    verdict: str = ""
+    pays_off: bool = False
 
 
 @dataclass(frozen=True)
@@ -313,9 +360,9 @@ class Comparison:
     options : tuple of OptionCost
         In :data:`OPTION_KEYS` order.
     paybacks : tuple of Payback
-        The design against each feasible baseline (empty when the design is infeasible).
+        The design against each feasible alternative (empty when the design is infeasible).
     notes : tuple of str
-        Assumptions behind the numbers (part-load and standby losses, energy sources).
+        Assumptions behind the numbers (loss models, standby losses, energy sources).
     """
 
     feasible: bool
@@ -341,12 +388,33 @@ class Comparison:
         return next((p for p in self.paybacks if p.baseline == baseline), None)
 
     @property
-    def reference(self) -> Payback | None:
-        """The payback against the pump-only supply a designer would otherwise install.
+    def alternatives(self) -> tuple[OptionCost, ...]:
+        """The pump-only options, in :data:`stowflow.search.baseline.KINDS` order."""
+        return tuple(o for o in self.options if o.key != "design")
 
-        The fixed-pump baseline when it exists, else the compensated one.
-        """
-        return self.payback("fixed") or self.payback("compensated")
+    @property
+    def strongest(self) -> OptionCost | None:
+        """The priced pump-only alternative with the least total cost of ownership (the
+        first in :data:`stowflow.search.baseline.KINDS` order among equals), or None."""
+        priced = [o for o in self.alternatives if o.feasible and math.isfinite(o.tco)]
+        return min(priced, key=lambda o: o.tco) if priced else None
+
+    @property
+    def reference(self) -> Payback | None:
+        """The payback against the strongest alternative (:attr:`strongest`), or None."""
+        best = self.strongest
+        return None if best is None else self.payback(best.key)
+
+    @property
+    def recommended(self) -> str | None:
+        """The option to build: ``"design"`` unless the strongest alternative costs less
+        over the horizon (then its kind); None when nothing is priced."""
+        d, best = self.option("design"), self.strongest
+        if best is None:
+            return "design" if d.feasible else None
+        if not d.feasible or best.tco < d.tco:
+            return best.key
+        return "design"
 
     def cost_timeline(self, years: int | None = None) -> pd.DataFrame:
         """Cumulative discounted cost of each feasible option, year by year.
@@ -391,21 +459,6 @@ def _priced(
     }
 
 
-def _design_energy(design: Design, verification) -> tuple[float, str]:
-    if verification is not None:
-        ctrl = verification.controller
-        cold, hot = verification.run(ctrl, "cold"), verification.run(ctrl, "hot")
-        runs = [r for r in (cold, hot) if r is not None]
-        runs = list({id(r): r for r in runs}.values())
-        energies = [r.energy_per_cycle for r in runs if math.isfinite(r.energy_per_cycle)]
-        if energies:
-            temps = " and ".join(f"{kelvin_to_celsius(r.temperature):.0f} °C" for r in runs)
-            return float(np.mean(energies)), (
-                f"time-domain verification, {ctrl} controller, mean of the runs at {temps}"
-            )
-    return float(design.energy_per_cycle), "design schedule model (quasi-static)"
-
-
 def _option(
     key: str,
     label: str,
@@ -418,9 +471,16 @@ def _option(
     *,
     has_accumulator: bool,
     price: float,
+    components: tuple[str, ...],
+    breakdown: EnergyBreakdown | None,
+    drive=None,
+    notes: tuple[str, ...] = (),
 ) -> OptionCost:
     """An option with its parts and energy, not yet priced."""
     mean_power = energy / duration
+    shaft = None
+    if breakdown is not None:
+        shaft = breakdown.electrical - breakdown.motor - breakdown.drive
     return OptionCost(
         key,
         label,
@@ -432,21 +492,30 @@ def _option(
         energy_per_cycle=energy,
         energy_source=source,
         mean_power=mean_power,
-        motor_load=mean_power * motor.efficiency / motor.rated_power,
+        motor_load=(mean_power * motor.efficiency if shaft is None else shaft / duration)
+        / motor.rated_power,
         motor_efficiency=motor.efficiency,
         motor_efficiency_class=motor.efficiency_class,
         pump_efficiency=pump.overall_efficiency,
         pump_flow=pump.flow,
         working_pressure=pressure,
+        components=components,
+        breakdown=breakdown,
+        heat_load=math.nan if breakdown is None else breakdown.heat_load,
+        drive_price=0.0 if drive is None else drive.price,
+        notes=notes,
     )
 
 
-def _design_option(design: Design, verification, duration: float) -> OptionCost:
+def _design_option(design: Design, verification, cycle: DutyCycle, standby: float) -> OptionCost:
     key = "design"
     if not design.feasible:
         return OptionCost(key, OPTION_LABELS[key], False, design.reason or "no design found")
-    energy, source = _design_energy(design, verification)
+    energy, breakdown, source = design_energy(design, verification, cycle, standby)
     label = OPTION_LABELS[key] if design.bank is not None else "pump-only supply (this design)"
+    parts = (design.pump.name, design.motor.name)
+    if design.bank is not None:
+        parts = (f"{design.bank.count} × {design.bank.option.name}", *parts)
     return _option(
         key,
         label,
@@ -454,57 +523,44 @@ def _design_option(design: Design, verification, duration: float) -> OptionCost:
         design.motor,
         energy,
         source,
-        duration,
+        cycle.duration,
         design.p_max,
         has_accumulator=design.bank is not None,
         price=design.capex,
+        components=parts,
+        breakdown=breakdown,
     )
 
 
 def _baseline_option(b: Baseline | None, key: str, duration: float) -> OptionCost:
     if b is None:
-        return OptionCost(key, OPTION_LABELS[key], False, "baseline not computed")
+        return OptionCost(key, OPTION_LABELS[key], False, "not computed")
     if b.pump is None or b.motor is None or not math.isfinite(b.energy_per_cycle):
         return OptionCost(key, OPTION_LABELS[key], False, b.reason or "no parts in the catalogue")
+    parts = (b.pump.name, b.motor.name) + ((b.drive.name,) if b.drive is not None else ())
     return _option(
         key,
         OPTION_LABELS[key],
         b.pump,
         b.motor,
         b.energy_per_cycle,
-        "pump-only model (quasi-static)",
+        "pump-only model (quasi-static); part-load loss models of pump and motor"
+        + (" and drive" if b.drive is not None else ""),
         duration,
         b.pressure,
         has_accumulator=False,
         price=b.capex,
+        components=parts,
+        breakdown=b.breakdown,
+        drive=b.drive,
+        notes=b.notes,
     )
 
 
 def _payback(d: OptionCost, b: OptionCost, settings: CostSettings, currency: str) -> Payback:
     extra = d.capex - b.capex
     saved = b.energy_cost_per_year - d.energy_cost_per_year
-    simple = simple_payback(extra, saved)
-    disc = discounted_payback(extra, saved, settings.discount_rate)
-    cur = f" {currency}" if currency else ""
-    if extra <= 0 and saved >= 0:
-        note = "cheaper to buy and to run: pays back at once"
-    elif extra <= 0:
-        note = (
-            f"cheaper to buy by {-extra:,.0f}{cur} but dearer to run by {-saved:,.0f}{cur} per year"
-        )
-    elif simple is None:
-        note = "costs more to buy and saves nothing per year: never pays back"
-    elif disc is None:
-        note = (
-            f"simple payback {simple:.1f} years, but at {settings.discount_rate:.1%} discount "
-            "the savings never repay the extra capex"
-        )
-    else:
-        within = "within" if disc <= settings.years else "beyond"
-        note = (
-            f"pays back in {simple:.1f} years ({disc:.1f} years discounted, {within} the "
-            f"{settings.years}-year horizon)"
-        )
+    code, note, pays_off = verdict(extra, saved, settings.discount_rate, settings.years, currency)
     return Payback(
         baseline=b.key,
         installed_power_saved=b.installed_power - d.installed_power,
@@ -512,9 +568,11 @@ def _payback(d: OptionCost, b: OptionCost, settings: CostSettings, currency: str
         energy_saved_per_year=b.energy_per_year - d.energy_per_year,
         savings_per_year=saved,
         tco_saving=b.tco - d.tco,
-        simple_years=simple,
-        discounted_years=disc,
+        simple_years=simple_payback(extra, saved),
+        discounted_years=discounted_payback(extra, saved, settings.discount_rate),
         note=note,
+        verdict=code,
+        pays_off=pays_off,
     )
 
 
@@ -523,8 +581,10 @@ def compare(
     verification,
     cycle: DutyCycle,
     cost_settings: CostSettings | None = None,
+    *,
+    design_settings: DesignSettings | None = None,
 ) -> Comparison:
-    """Price the designed supply against the pump-only baselines.
+    """Price the designed supply against the pump-only alternatives.
 
     Parameters
     ----------
@@ -537,6 +597,9 @@ def compare(
         The duty cycle (its length is the cycle time unless the settings give one).
     cost_settings : CostSettings, optional
         Prices and operating time; default :class:`CostSettings`.
+    design_settings : DesignSettings, optional
+        The design's settings (the standby pressure of an unloaded pump); default
+        :class:`~stowflow.search.settings.DesignSettings`.
 
     Returns
     -------
@@ -557,11 +620,11 @@ def compare(
         )
     cycles = s.operating_time / cycle_time
     af = annuity_factor(s.discount_rate, s.years)
+    standby = (design_settings or DesignSettings()).standby_pressure
     by_kind = {b.kind: b for b in design.baselines}
     raw = [
-        _design_option(design, verification, duration),
-        _baseline_option(by_kind.get("fixed"), "fixed", duration),
-        _baseline_option(by_kind.get("compensated"), "compensated", duration),
+        _design_option(design, verification, cycle, standby),
+        *(_baseline_option(by_kind.get(k), k, duration) for k in KINDS),
     ]
     options = []
     for o in raw:
@@ -595,14 +658,17 @@ def _notes(s: CostSettings, options: list[OptionCost], cycle_time: float, durati
         f"prices × {s.installation_factor:g} (installation factor); TCO over {s.years} years "
         f"at {s.discount_rate:.1%} discount (present value of an annuity, energy paid at each "
         "year's end)",
-        "motor efficiency taken at its catalogue (rated-load) value at every load; real motors "
-        "lose efficiency at part load, most below about half load, so all energies are "
-        "optimistic there (common practice, no published source)",
-        "pump overall efficiency taken from the catalogue at every pressure and flow",
-        "standby losses: an unloaded pump of the accumulator supply circulates its flow at "
-        "the standby pressure; the fixed pump-only supply spills its excess over the relief "
-        "valve; the compensated pump pays its leakage at the compensator setting; motor "
-        "no-load losses beyond these are not modelled",
+        "part-load efficiencies: motor losses split into constant and load losses "
+        "(IEC 60034-2-1's summation of losses; constant share 36 % of the rated losses, which "
+        "puts the best efficiency at 75 % load as the U.S. DOE fact sheet 'Determining "
+        "Electric Motor Load and Efficiency' says), pump leakage growing with pressure and "
+        "friction and drag torque (Wilson's loss structure, from the catalogue's efficiencies "
+        "at the pump's rated pressure), drive losses constant plus in proportion to current; "
+        "catalogue points override each curve",
+        "standby losses: an unloaded pump circulates its flow at the standby pressure; a "
+        "variable pump at zero stroke pays its leakage and drag at its setting and its "
+        "control flow; the fixed pump-only supply unloads only in idle stretches the switching "
+        "limits allow",
     ]
     if cycle_time > duration * (1 + 1e-9):
         notes.append(
@@ -610,13 +676,13 @@ def _notes(s: CostSettings, options: list[OptionCost], cycle_time: float, durati
             "cycles are costed; the supplies are taken as stopped between them"
         )
     for o in options:
-        if o.feasible and o.motor_load < 0.5:
-            notes.append(
-                f"{o.label}: mean motor load {o.motor_load:.0%} of rating, where the rated "
-                "efficiency overstates what the motor achieves"
-            )
         if not o.feasible:
             notes.append(f"{o.label}: not priced ({o.reason})")
+        elif o.breakdown is not None:
+            notes.append(
+                f"{o.label}: heat into the oil {o.heat_load / KW:.3g} kW while the cycle runs"
+                + (f"; {'; '.join(o.notes)}" if o.notes else "")
+            )
     sources = sorted({o.energy_source for o in options if o.feasible})
     if sources:
         notes.append("energy per cycle from: " + "; ".join(sources))

@@ -1,8 +1,8 @@
 """Money over time: the pure functions behind :mod:`stowflow.costs.comparison`.
 
-Electrical input of a motor, the present value of a constant annual amount (annuity), and the
-simple and discounted payback of an extra purchase price.  Inputs and outputs in SI units and
-the user's currency; no state.
+Electrical input of a motor, the present value of a constant annual amount (annuity), the
+simple and discounted payback of an extra purchase price, and the verdict in words.  Inputs
+and outputs in SI units and the user's currency; no state.
 
 References
 ----------
@@ -17,11 +17,14 @@ import math
 from stowflow.errors import SettingsError
 
 __all__ = [
+    "VERDICTS",
     "annuity_factor",
     "discounted_payback",
     "electrical_power",
+    "payback_words",
     "present_value",
     "simple_payback",
+    "verdict",
 ]
 
 
@@ -138,3 +141,106 @@ def discounted_payback(extra_capex: float, savings_per_year: float, rate: float)
     if k <= 0:
         return None  # the annuity's limit s/r never reaches the extra capex
     return -math.log(k) / math.log(1.0 + rate)
+
+
+def payback_words(years: float | None) -> str:
+    """A payback time in words: "at once", "under 1 month", "5 months", "2.3 years", "never".
+
+    Parameters
+    ----------
+    years : float or None
+        Payback time, [year]; None: never.
+
+    Returns
+    -------
+    str
+    """
+    if years is None or not math.isfinite(years):
+        return "never"
+    if years <= 0:
+        return "at once"
+    months = 12.0 * years
+    if months < 1.0:
+        return "under 1 month"
+    if round(months) < 12:
+        k = round(months)
+        return f"{k} month" if k == 1 else f"{k} months"
+    return f"{years:.1f} years"
+
+
+#: The verdicts of one comparison: the accumulator supply against one alternative.
+VERDICTS: tuple[str, ...] = ("cheaper", "pays-back", "cheaper-to-buy", "no-payback")
+
+
+def verdict(
+    extra_capex: float,
+    savings_per_year: float,
+    rate: float,
+    years: int,
+    currency: str = "",
+) -> tuple[str, str, bool]:
+    """The verdict of an option against an alternative, in a code and in words.
+
+    * ``"cheaper"``: it costs no more to buy and no more to run: "costs less to buy and to
+      run";
+    * ``"pays-back"``: it costs more to buy, and the discounted savings repay that within the
+      horizon: "pays back in 1.4 years (1.5 discounted)" (payback times by
+      :func:`payback_words`: "under 1 month" rather than "0.0 years");
+    * ``"no-payback"``: it costs more to buy, and the discounted savings do not repay that
+      within the horizon: "does not pay back within 10 years (...)";
+    * ``"cheaper-to-buy"``: it costs less to buy but more to run; the words say which costs
+      less over the horizon.
+
+    Parameters
+    ----------
+    extra_capex : float
+        Capex of the option over the alternative's, [currency].
+    savings_per_year : float
+        Running cost saved per year, [currency/year].
+    rate : float
+        Discount rate, [1/year].
+    years : int
+        Horizon, [year].
+    currency : str
+        Currency label for the words.
+
+    Returns
+    -------
+    code : str
+        One of :data:`VERDICTS`.
+    words : str
+        The verdict in words.
+    pays_off : bool
+        True when the option costs no more than the alternative over the horizon.
+    """
+    cur = f" {currency}" if currency else ""
+    simple = simple_payback(extra_capex, savings_per_year)
+    disc = discounted_payback(extra_capex, savings_per_year, rate)
+    if extra_capex <= 0 and savings_per_year >= 0:
+        return "cheaper", "costs less to buy and to run", True
+    if extra_capex <= 0:
+        over = annuity_factor(rate, years) * -savings_per_year + extra_capex
+        less = over <= 0
+        return (
+            "cheaper-to-buy",
+            f"costs {-extra_capex:,.0f}{cur} less to buy but {-savings_per_year:,.0f}{cur} a "
+            f"year more to run: costs {'less' if less else 'more'} over {years} years",
+            less,
+        )
+    if disc is not None and disc <= years:
+        when = payback_words(simple)
+        if abs(disc - simple) * 12 >= 0.5:
+            when += f" ({payback_words(disc)} discounted)"
+        return "pays-back", f"pays back in {when}", True
+    if savings_per_year < 0:
+        why = "it costs more to buy and more to run"
+    elif simple is None:
+        why = "it costs more to buy and saves nothing a year"
+    elif disc is None:
+        why = (
+            f"simple payback {payback_words(simple)}, but at {rate:.1%} discount the savings "
+            "never repay the extra capex"
+        )
+    else:
+        why = f"simple payback {payback_words(simple)}, {payback_words(disc)} discounted"
+    return "no-payback", f"does not pay back within {years} years ({why})", False

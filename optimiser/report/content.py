@@ -16,6 +16,9 @@ from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
+from stowflow.costs.comparison import KIND_WORDS
+from stowflow.costs.finance import payback_words
+from stowflow.physics.machines import ENERGY_PARTS
 from stowflow.units import (
     bar_gauge,
     kelvin_to_celsius,
@@ -23,12 +26,14 @@ from stowflow.units import (
 )
 
 __all__ = [
+    "BREAKDOWN_LABELS",
     "DISCLAIMER",
     "SAFETY_CAUTIONS",
     "OperationFrames",
     "assumptions",
     "bar_delta",
     "bar_g",
+    "breakdown_rows",
     "currency",
     "fmt",
     "key_figures",
@@ -121,12 +126,27 @@ def money(value, result, spec: str = ",.0f") -> str:
 
 
 def years(value) -> str:
-    """A payback time in words."""
-    if value is None:
-        return "never"
-    if value == 0:
-        return "at once"
-    return f"{value:.1f} years"
+    """A payback time in words ("under 1 month", "5 months", "2.3 years", "never")."""
+    return payback_words(value)
+
+
+#: The parts of an energy breakdown in words, in the order the report stacks them.
+BREAKDOWN_LABELS: dict[str, str] = dict(
+    zip(
+        ENERGY_PARTS,
+        (
+            "useful work at the consumer",
+            "throttling to the consumer's pressure",
+            "relief valve and compensator",
+            "standby circulation",
+            "gas heat loss in the accumulator",
+            "pump losses",
+            "motor losses",
+            "drive losses",
+        ),
+        strict=True,
+    )
+)
 
 
 # -- summary -------------------------------------------------------------------------------
@@ -142,41 +162,65 @@ def _bank_words(result) -> str:
     )
 
 
+def _supply_words(o) -> str:
+    """What a pump-only option buys, in words: its kind and its catalogue parts."""
+    parts = " on ".join(o.components[:2])
+    if len(o.components) > 2:
+        parts += " with " + ", ".join(o.components[2:])
+    return f"a pump-only {KIND_WORDS.get(o.key, o.label)} ({parts})"
+
+
+def _capital(text: str) -> str:
+    return text[:1].upper() + text[1:]
+
+
 def recommendation(result) -> str:
-    """The recommendation in one sentence."""
-    d = result.design
+    """The recommendation in one sentence, judged against the strongest alternative.
+
+    The strongest alternative is the pump-only supply with the least total cost of ownership;
+    when it costs less than the design over the horizon, the sentence recommends it instead.
+    """
+    d, c = result.design, result.comparison
+    n = c.settings.years
+    best = c.strongest
+    why = d.reason or "no design was found"
+    if not d.feasible and best is None:
+        return f"No supply from this catalogue meets the cycle: {why}."
     if not d.feasible:
         return (
-            f"No supply from this catalogue meets the cycle: {d.reason or 'no design was found'}."
+            f"The search found no design: {why}. {_capital(_supply_words(best))} would supply "
+            f"the cycle at a total cost of {money(best.tco, result)} over {n} years."
         )
     pump = f"a {to_unit(d.pump.displacement, 'cm3', 'displacement'):g} cm³/rev pump"
     motor = f"a {kilowatts(d.motor.rated_power):g} kW motor"
     if d.bank is not None:
         head = f"Use {_bank_words(result)} with {pump} on {motor}"
+        what = "the accumulator supply"
     else:
         head = f"Use {pump} on {motor} without an accumulator"
-    ref = result.comparison.reference
-    if ref is None:
+        what = "this supply"
+    ref = c.reference
+    if best is None or ref is None:
         return head + "; no pump-only supply from this catalogue could be priced against it."
-    saved = kilowatts(ref.installed_power_saved)
-    which = "a pump-only supply" if ref.baseline == "fixed" else "a compensated pump-only supply"
-    if saved > 0:
-        power = f"{saved:g} kW less installed power than {which}"
-    elif saved < 0:
-        power = f"{-saved:g} kW more installed power than {which}"
-    else:
-        power = f"the same installed power as {which}"
-    if ref.simple_years is None:
-        pay = "never pays back on energy at these prices"
-    elif ref.simple_years == 0:
-        pay = (
-            "costs less to buy and to run"
-            if ref.savings_per_year >= 0
-            else "costs less to buy but more to run"
+    mine = c.option("design")
+    if c.recommended != "design":
+        return (
+            f"{_capital(_supply_words(best))} costs less over {n} "
+            f"years: {money(best.tco, result)} against {money(mine.tco, result)} for "
+            f"{what}. Against it {what} {ref.note}. Use the pump-only supply; {what} is "
+            "shown for comparison."
         )
+    saved = kilowatts(ref.installed_power_saved)
+    if saved > 0:
+        power = f"{saved:g} kW less installed power than"
+    elif saved < 0:
+        power = f"{-saved:g} kW more installed power than"
     else:
-        pay = f"pays back in {ref.simple_years:.1f} years"
-    return f"{head}: {power}, {pay}."
+        power = "the same installed power as"
+    return (
+        f"{head}: {power} the strongest pump-only alternative, {_supply_words(best)}; against "
+        f"it, {what} {ref.note}."
+    )
 
 
 def status_line(result) -> str:
@@ -222,6 +266,31 @@ def key_figures(result) -> list[dict]:
                 "mean_kw": kilowatts(o.mean_power),
                 "motor_load": o.motor_load,
                 "energy_source": o.energy_source,
+                "components": list(o.components),
+                "heat_load_kw": kilowatts(o.heat_load),
+            }
+        )
+    return rows
+
+
+def breakdown_rows(result) -> list[dict]:
+    """Per priced option with a breakdown: key, label, the parts per year [MWh], the
+    electrical energy per year [MWh] and the heat load [kW]."""
+    c = result.comparison
+    rows = []
+    for o in c.options:
+        if not o.feasible or o.breakdown is None:
+            continue
+        per_year = c.cycles_per_year
+        rows.append(
+            {
+                "key": o.key,
+                "label": o.label,
+                "parts_mwh": {
+                    k: to_unit(v * per_year, "MWh", "energy") for k, v in o.breakdown.parts.items()
+                },
+                "electrical_mwh": to_unit(o.breakdown.electrical * per_year, "MWh", "energy"),
+                "heat_load_kw": kilowatts(o.heat_load),
             }
         )
     return rows
@@ -410,9 +479,24 @@ def assumptions(result) -> list[tuple[str, str]]:
                 f"pump overall {100 * d.pump.overall_efficiency:.1f} %, volumetric "
                 f"{100 * d.pump.volumetric_efficiency:.1f} %; motor "
                 f"{100 * d.motor.efficiency:.1f} % "
-                f"({d.motor.efficiency_class or 'class not stated'}), from the catalogue",
+                f"({d.motor.efficiency_class or 'class not stated'}), from the catalogue, at "
+                "rated pressure and load",
             )
         )
+    rows.append(
+        (
+            "part-load efficiencies",
+            "pump: leakage in proportion to pressure, friction torque in proportion to the "
+            "ideal torque, drag torque in proportion to speed (the loss structure of W. E. "
+            "Wilson, Trans. ASME 71, 1949, from memory), through the catalogue's efficiencies "
+            "at the rated pressure, 30 % of the torque loss pressure-independent (from "
+            "memory); motor: constant losses (36 % of the rated losses) plus load losses "
+            "growing with the square of the torque (IEC 60034-2-1 summation of losses; peak "
+            "efficiency at 75 % load as the U.S. DOE fact sheet 'Determining Electric Motor "
+            "Load and Efficiency' says); drive: 25 % of its rated losses constant, the rest in "
+            "proportion to current (from memory); catalogue points override each curve",
+        )
+    )
     rows += [
         (
             "energy and money",

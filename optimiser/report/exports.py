@@ -110,7 +110,7 @@ def design_record(result) -> dict:
         "pump": None,
         "motor": None,
         "setpoints": _setpoints_record(result),
-        "baseline": _baseline_record(result, "fixed"),
+        "baseline": _baseline_record(result, _strongest_kind(result)),
         "verification": _verification_record(result),
         "costs": _costs_record(result),
     }
@@ -120,6 +120,9 @@ def design_record(result) -> dict:
         rec["relief_bar"] = _num(content.bar_g(d.relief, result), 3)
         rec["installed_power_kw"] = _num(to_unit(d.installed_power, "kW", "power"), 6)
     rec |= _power_records(result)
+    design_option = result.comparison.option("design")
+    rec["energy_breakdown"] = _breakdown_record(design_option, result)
+    rec["heat_load_kw"] = _num(to_unit(design_option.heat_load, "kW", "power"), 4)
     rec["search"] = _search_record(d)
     rec["attempts"] = [
         {
@@ -206,7 +209,8 @@ def _verification_record(result) -> dict:
 
 
 def _power_records(result) -> dict:
-    """Lower bound of the installed power, the objective's levels and both baselines."""
+    """Lower bound of the installed power, the objective's levels and the pump-only
+    alternatives."""
     d = result.design
     lb = d.lower_bound_power
     return {
@@ -223,7 +227,7 @@ def _power_records(result) -> dict:
                 to_unit(d.levels.get("energy_per_cycle [J]", math.nan), "kJ", "energy"), 4
             ),
         },
-        "baselines": [_baseline_record(result, k) for k in ("fixed", "compensated")],
+        "baselines": [_baseline_record(result, o.key) for o in result.comparison.alternatives],
     }
 
 
@@ -272,28 +276,89 @@ def _motor_record(motor) -> dict:
     }
 
 
+def _strongest_kind(result) -> str:
+    """The kind the headline compares against: the least-TCO alternative, else the first."""
+    c = result.comparison
+    best = c.strongest
+    return best.key if best is not None else c.alternatives[0].key
+
+
+def _breakdown_record(o, result) -> dict | None:
+    """Where an option's energy goes: per cycle [kJ] and per year [kWh]."""
+    b = o.breakdown
+    if not o.feasible or b is None:
+        return None
+    per_year = result.comparison.cycles_per_year
+    return {
+        "per_cycle_kj": {k: _num(to_unit(v, "kJ", "energy"), 4) for k, v in b.parts.items()},
+        "per_year_kwh": {k: _kwh(v * per_year) for k, v in b.parts.items()},
+        "electrical_per_cycle_kj": _num(to_unit(b.electrical, "kJ", "energy"), 4),
+        "electrical_per_year_kwh": _kwh(b.electrical * per_year),
+        "parts_sum_per_cycle_kj": _num(to_unit(b.total, "kJ", "energy"), 4),
+        "source": o.energy_source,
+    }
+
+
+def _verdict_record(p) -> dict | None:
+    """The design against one alternative: the verdict, its words and its numbers."""
+    if p is None:
+        return None
+    return {
+        "code": p.verdict,
+        "note": p.note,
+        "pays_back": bool(p.pays_off),
+        "installed_power_saved_kw": _num(to_unit(p.installed_power_saved, "kW", "power"), 6),
+        "extra_capex": _num(p.extra_capex, 2),
+        "savings_per_year": _num(p.savings_per_year, 2),
+        "energy_saved_per_year_kwh": _kwh(p.energy_saved_per_year),
+        "tco_saving": _num(p.tco_saving, 2),
+        "simple_payback_years": _num(p.simple_years, 3),
+        "discounted_payback_years": _num(p.discounted_years, 3),
+    }
+
+
 def _baseline_record(result, kind: str) -> dict:
+    """One pump-only alternative: what to buy, what it costs, its verdict and energy."""
     b = next((b for b in result.design.baselines if b.kind == kind), None)
-    o = result.comparison.option(kind)
+    c = result.comparison
+    o = c.option(kind)
     rec = {
         "kind": kind,
+        "label": o.label,
+        "feasible": o.feasible,
+        "reason": o.reason,
+        "components": list(o.components),
         "pump": {"flow_lpm": None},
         "motor": {"rated_kw": None},
-        "reason": o.reason,
+        "drive": None,
+        "installed_power_kw": _num(to_unit(o.installed_power, "kW", "power"), 6),
+        "capex": _num(o.capex, 2),
+        "energy_per_year_kwh": _kwh(o.energy_per_year),
+        "energy_cost_per_year": _num(o.energy_cost_per_year, 2),
+        "tco": _num(o.tco, 2),
+        "mean_power_kw": _num(to_unit(o.mean_power, "kW", "power"), 4),
+        "verdict": _verdict_record(c.payback(kind)),
+        "energy_breakdown": _breakdown_record(o, result),
+        "heat_load_kw": _num(to_unit(o.heat_load, "kW", "power"), 4),
+        "notes": list(o.notes),
     }
     if b is not None and b.pump is not None and b.motor is not None:
         rec["pump"] = _pump_record(b.pump, result)
         rec["motor"] = _motor_record(b.motor)
+        if b.drive is not None:
+            rec["drive"] = {
+                "rated_kw": _num(to_unit(b.drive.rated_power, "kW", "power"), 6),
+                "efficiency": b.drive.efficiency,
+                "name": b.drive.name,
+            }
         rec["pressure_bar"] = _num(content.bar_g(b.pressure, result), 3)
-        rec["capex"] = _num(o.capex, 2)
-        rec["energy_per_year_kwh"] = _kwh(o.energy_per_year)
     return rec
 
 
 def _costs_record(result) -> dict:
     c = result.comparison
     d = c.option("design")
-    fixed = c.option("fixed")
+    best = c.option(_strongest_kind(result))
     ref = c.reference
     options = {}
     for o in c.options:
@@ -311,35 +376,28 @@ def _costs_record(result) -> dict:
             "tco": _num(o.tco, 2),
             "mean_power_kw": _num(to_unit(o.mean_power, "kW", "power"), 4),
             "motor_load": _num(o.motor_load, 4),
+            "components": list(o.components),
+            "heat_load_kw": _num(to_unit(o.heat_load, "kW", "power"), 4),
         }
-    paybacks = {
-        p.baseline: {
-            "installed_power_saved_kw": _num(to_unit(p.installed_power_saved, "kW", "power"), 6),
-            "extra_capex": _num(p.extra_capex, 2),
-            "savings_per_year": _num(p.savings_per_year, 2),
-            "energy_saved_per_year_kwh": _kwh(p.energy_saved_per_year),
-            "tco_saving": _num(p.tco_saving, 2),
-            "simple_payback_years": _num(p.simple_years, 3),
-            "discounted_payback_years": _num(p.discounted_years, 3),
-            "pays_back": p.simple_years is not None,
-            "note": p.note,
-        }
-        for p in c.paybacks
-    }
+    paybacks = {p.baseline: _verdict_record(p) for p in c.paybacks}
     return {
         "capex": _num(d.capex, 2),
         "energy_per_year": _kwh(d.energy_per_year),
-        "baseline_capex": _num(fixed.capex, 2),
-        "baseline_energy_per_year": _kwh(fixed.energy_per_year),
+        "baseline_capex": _num(best.capex, 2),
+        "baseline_energy_per_year": _kwh(best.energy_per_year),
         "currency": content.currency(result),
         "energy_unit": "kWh",
         "energy_cost_per_year": _num(d.energy_cost_per_year, 2),
-        "baseline_energy_cost_per_year": _num(fixed.energy_cost_per_year, 2),
+        "baseline_energy_cost_per_year": _num(best.energy_cost_per_year, 2),
         "tco": _num(d.tco, 2),
-        "baseline_tco": _num(fixed.tco, 2),
+        "baseline_tco": _num(best.tco, 2),
         "payback_years": None if ref is None else _num(ref.simple_years, 3),
         "discounted_payback_years": None if ref is None else _num(ref.discounted_years, 3),
-        "payback_against": None if ref is None else ref.baseline,
+        "payback_against": None if c.strongest is None else c.strongest.key,
+        "verdict": None if ref is None else ref.verdict,
+        "verdict_note": None if ref is None else ref.note,
+        "pays_back": None if ref is None else bool(ref.pays_off),
+        "recommended": c.recommended,
         "settings": c.settings.as_dict() | {"currency": content.currency(result)},
         "cycle_time_s": _num(c.cycle_time),
         "cycles_per_year": _num(c.cycles_per_year, 3),

@@ -18,13 +18,15 @@ from stowflow.units import to_unit
 __all__ = [
     "COLOURS",
     "FONT",
+    "breakdown_figure",
     "comparison_figure",
     "cycle_figure",
     "operation_figure",
     "timeline_figure",
 ]
 
-#: The report's palette (our own): ink, rules, the design and the two baselines, cold and hot.
+#: The report's palette (our own): ink, rules, the design and the pump-only alternatives, cold
+#: and hot, and the parts of an energy breakdown.
 COLOURS = {
     "ink": "#1f2a30",
     "muted": "#6b7780",
@@ -32,6 +34,8 @@ COLOURS = {
     "design": "#0e7c66",
     "fixed": "#8c5a3c",
     "compensated": "#b7a98f",
+    "variable-speed": "#6d5a8c",
+    "load-sensing": "#3c6f8c",
     "cold": "#2c64a8",
     "hot": "#c2452d",
     "required": "#1f2a30",
@@ -49,11 +53,27 @@ _OPTION_NAMES = {
     "design": "accumulator supply",
     "fixed": "fixed pump + relief",
     "compensated": "compensated pump",
+    "variable-speed": "variable-speed pump",
+    "load-sensing": "load-sensing pump",
 }
 _BAR_NAMES = {
     "design": "accumulator<br>supply",
     "fixed": "fixed pump<br>+ relief",
     "compensated": "compensated<br>pump",
+    "variable-speed": "variable-<br>speed pump",
+    "load-sensing": "load-sensing<br>pump",
+}
+
+#: Colours of the parts of an energy breakdown (our own), in the stacking order.
+_PART_COLOURS = {
+    "useful": "#0e7c66",
+    "throttling": "#d9a441",
+    "relief": "#c2452d",
+    "standby": "#e8c7a0",
+    "gas_heat": "#2c64a8",
+    "pump": "#8c5a3c",
+    "motor": "#8a96a0",
+    "drive": "#6d5a8c",
 }
 
 
@@ -372,7 +392,7 @@ def comparison_figure(result) -> go.Figure | None:
         ("energy per year [MWh]", lambda o: to_unit(o.energy_per_year, "MWh", "energy"), ",.1f"),
         (f"total cost over {years} years [{cur}]", lambda o: o.tco, ",.0f"),
     )
-    axes, titles = _grid([p[0] for p in panels], cols=4, hspace=0.07)
+    axes, titles = _grid([p[0] for p in panels], cols=2, rows=2, hspace=0.1, vspace=0.2)
     names = [_BAR_NAMES[o.key] for o in opts]
     colours = [COLOURS[o.key] for o in opts]
     data = []
@@ -395,7 +415,51 @@ def comparison_figure(result) -> go.Figure | None:
         n = "" if k == 1 else str(k)
         axes[f"yaxis{n}"] |= {"rangemode": "tozero"}
         axes[f"xaxis{n}"] |= {"tickangle": 0, "tickfont": {"size": 10}}
-    return _figure(data, axes, 360, titles, bargap=0.35)
+    return _figure(data, axes, 560, titles, bargap=0.35)
+
+
+def breakdown_figure(result) -> go.Figure | None:
+    """Stacked bars per option: where the electrical energy of a year goes."""
+    rows = content.breakdown_rows(result)
+    if not rows:
+        return None
+    names = [_BAR_NAMES.get(r["key"], html.escape(r["label"])) for r in rows]
+    data = []
+    for part, label in content.BREAKDOWN_LABELS.items():
+        values = [r["parts_mwh"][part] for r in rows]
+        if not any(abs(v) > 0 for v in values):
+            continue
+        data.append(
+            {
+                "type": "bar",
+                "name": label,
+                "x": names,
+                "y": values,
+                "marker": {"color": _PART_COLOURS[part]},
+                "hovertemplate": f"{label}: %{{y:,.1f}} MWh<extra></extra>",
+            }
+        )
+    totals = {
+        "type": "scatter",
+        "mode": "text",
+        "x": names,
+        "y": [r["electrical_mwh"] for r in rows],
+        "text": [
+            f"{r['electrical_mwh']:,.1f} MWh<br>heat {r['heat_load_kw']:.3g} kW" for r in rows
+        ],
+        "textposition": "top center",
+        "cliponaxis": False,
+        "showlegend": False,
+        "hoverinfo": "skip",
+    }
+    axes = {
+        "xaxis": {"tickangle": 0, "tickfont": {"size": 10}},
+        "yaxis": {
+            "title": {"text": "energy per year [MWh]"},
+            "range": [0.0, 1.25 * max(r["electrical_mwh"] for r in rows)],
+        },
+    }
+    return _figure([*data, totals], axes, 460, barmode="relative", bargap=0.35)
 
 
 def timeline_figure(result) -> go.Figure | None:
@@ -426,7 +490,7 @@ def timeline_figure(result) -> go.Figure | None:
         },
     }
     ref = result.comparison.reference
-    if ref is None or ref.discounted_years in (None, 0.0):
+    if ref is None or ref.discounted_years in (None, 0.0) or ref.discounted_years > len(tl) - 1:
         return _figure(data, axes, 340)
     x = ref.discounted_years
     line = {"type": "line", "xref": "x", "x0": x, "x1": x, "yref": "y domain", "y0": 0, "y1": 1,
@@ -438,7 +502,7 @@ def timeline_figure(result) -> go.Figure | None:
         "y": 1,
         "yref": "y domain",
         "yanchor": "top",
-        "text": f"discounted payback {x:.1f} years",
+        "text": f"discounted payback against the strongest: {content.years(x)}",
         "showarrow": False,
         "font": {"size": 10, "color": COLOURS["muted"]},
     }

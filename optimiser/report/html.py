@@ -18,6 +18,7 @@ from pathlib import PurePath
 
 import plotly.graph_objects as go
 import plotly.offline
+from stowflow.costs.comparison import KIND_WORDS
 from stowflow.cycle.duty import summarize
 from stowflow.report import content, figures, spec
 from stowflow.report.content import fmt, money
@@ -93,7 +94,7 @@ def _section_summary(result) -> str:
         )
     )
     cards = []
-    ref = c.reference
+    ref, best = c.reference, c.strongest
     for row in content.key_figures(result):
         if not row["feasible"]:
             cards.append(
@@ -101,27 +102,26 @@ def _section_summary(result) -> str:
                 f"<p>not available: {e(row['reason'])}</p></div>"
             )
             continue
+        tag = " (strongest alternative)" if best is not None and row["key"] == best.key else ""
         cards.append(
-            f"<div class='card {e(row['key'])}'><h4>{e(row['label'])}</h4>"
+            f"<div class='card {e(row['key'])}'><h4>{e(row['label'])}{e(tag)}</h4>"
             f"<div class='big'>{fmt(row['installed_kw'], 'g')} <small>kW installed</small></div>"
             "<dl>"
             f"<dt>capex</dt><dd>{e(money(row['capex'], result))}</dd>"
             f"<dt>energy per year</dt><dd>{fmt(row['energy_mwh'], ',.1f', 'MWh')}</dd>"
             f"<dt>energy cost per year</dt><dd>{e(money(row['energy_cost'], result))}</dd>"
             f"<dt>total over {c.settings.years} years</dt><dd>{e(money(row['tco'], result))}</dd>"
+            + f"<dt>heat into the oil</dt><dd>{fmt(row['heat_load_kw'], '.3g', 'kW')}</dd>"
+            + "</dl>"
             + (
-                f"<dt>payback</dt><dd>{e(content.years(ref.simple_years))}</dd>"
+                f"<p class='note'>against the strongest alternative: {e(ref.note)}</p>"
                 if row["key"] == "design" and ref is not None
                 else ""
             )
-            + "</dl></div>"
+            + "</div>"
         )
     pays = "".join(
-        f"<li>against the {e(content_label(result, p.baseline))}: {e(p.note)}; saves "
-        f"{e(money(p.savings_per_year, result))} and "
-        f"{fmt(to_unit(p.energy_saved_per_year, 'MWh', 'energy'), ',.1f', 'MWh')} a year, "
-        f"{fmt(to_unit(p.installed_power_saved, 'kW', 'power'), 'g', 'kW')} less installed "
-        "power</li>"
+        f"<li>against a {e(KIND_WORDS[p.baseline])}: {e(p.note)}; {e(_saves(p, result))}</li>"
         for p in c.paybacks
     )
     return (
@@ -134,6 +134,22 @@ def _section_summary(result) -> str:
         "stops. Read the <a href='#safety'>safety cautions</a> before commissioning or any "
         "work on the circuit.</p></section>"
     )
+
+
+def _saves(p, result) -> str:
+    """A payback's yearly saving and installed power in words (negative: costs more)."""
+    money_part = (
+        f"saves {money(p.savings_per_year, result)} a year"
+        if p.savings_per_year >= 0
+        else f"costs {money(-p.savings_per_year, result)} a year more to run"
+    )
+    kw = to_unit(p.installed_power_saved, "kW", "power")
+    power = (
+        f"{fmt(kw, 'g', 'kW')} less installed power"
+        if kw >= 0
+        else f"{fmt(-kw, 'g', 'kW')} more installed power"
+    )
+    return f"{money_part}, {power}"
 
 
 def content_label(result, key: str) -> str:
@@ -275,6 +291,33 @@ def _runs_table(rows: list[dict]) -> str:
     )
 
 
+def _comparison_lede(result) -> str:
+    """The verdict against the strongest alternative, first thing in the section."""
+    c = result.comparison
+    best, ref = c.strongest, c.reference
+    if best is None:
+        return (
+            "<p class='lede'>No pump-only supply from this catalogue could be priced: "
+            + "; ".join(e(f"{o.label}: {o.reason}") for o in c.alternatives)
+            + ".</p>"
+        )
+    years = c.settings.years
+    head = (
+        f"The strongest pump-only alternative, the one with the least total cost over {years} "
+        f"years, is a {KIND_WORDS[best.key]} ({', '.join(best.components)}): "
+        f"{money(best.tco, result)}."
+    )
+    if ref is None:
+        return f"<p class='lede'>{e(head)}</p>"
+    verdict = (
+        f"Against it the accumulator supply {ref.note}."
+        if c.recommended == "design"
+        else "It costs less than the accumulator supply: the pump-only supply is the "
+        f"recommendation. Against it the accumulator supply {ref.note}."
+    )
+    return f"<p class='lede'>{e(head)} {e(verdict)}</p>"
+
+
 def _section_comparison(result) -> str:
     c = result.comparison
     head = "<section id='comparison'><h2><span class='num'>3</span>Against a pump-only supply</h2>"
@@ -284,32 +327,40 @@ def _section_comparison(result) -> str:
             rows.append([e(o.label), e(f"not available: {o.reason}")])
             classes.append("dim")
             continue
+        p = c.payback(o.key)
         rows.append(
             [
-                f"{e(o.label)}<br><span class='note'>energy: {e(o.energy_source)}</span>",
+                f"{e(o.label)}<br><span class='note'>{e(', '.join(o.components))}</span>",
                 fmt(to_unit(o.installed_power, "kW", "power"), "g", "kW"),
                 e(money(o.capex, result)),
-                fmt(to_unit(o.mean_power, "kW", "power"), ".2f", "kW"),
                 fmt(to_unit(o.energy_per_year, "MWh", "energy"), ",.1f", "MWh"),
-                e(money(o.energy_cost_per_year, result)),
                 e(money(o.tco, result)),
+                fmt(to_unit(o.heat_load, "kW", "power"), ".3g", "kW"),
+                "this design" if o.key == "design" else e(p.note) if p is not None else "–",
             ]
         )
-        classes.append("rec" if o.key == "design" else "")
+        best = c.strongest
+        classes.append(
+            "rec" if o.key == (c.recommended or "design") else "best" if best and o is best else ""
+        )
     table = _table(
         [
             "option",
             "installed",
             "capex",
-            "mean electrical power",
             "energy per year",
-            "energy cost per year",
             f"total over {c.settings.years} years",
+            "heat into the oil",
+            "accumulator supply against it",
         ],
         rows,
-        numeric={1, 2, 3, 4, 5, 6},
+        numeric={1, 2, 3, 4, 5},
         row_classes=classes,
     )
+    sources = "; ".join(
+        f"{o.key}: {o.energy_source}" for o in c.options if o.feasible and o.energy_source
+    )
+    table += f"<p class='note'>Energy per cycle from {e(sources)}.</p>"
     pay_rows = [
         [
             e(content_label(result, p.baseline)),
@@ -335,15 +386,24 @@ def _section_comparison(result) -> str:
             ],
             pay_rows,
             numeric={1, 2, 3, 4, 5, 6},
-            caption="Payback",
+            caption="Payback (negative savings: the accumulator supply costs more)",
         )
         if pay_rows
         else f"<p>No payback: {e(c.reason or 'no pump-only supply could be priced')}.</p>"
     )
     return (
         head
+        + _comparison_lede(result)
         + table
         + figure_html(figures.comparison_figure(result), "fig-comparison")
+        + figure_html(
+            figures.breakdown_figure(result),
+            "fig-breakdown",
+            "Where the electrical energy goes, per year. Throttling, relief and compensator "
+            "flow, standby circulation and pump losses heat the oil (the heat load a cooler "
+            "must remove); motor and drive losses heat the air; the gas's heat leaves through "
+            "the accumulator shell.",
+        )
         + pay
         + figure_html(
             figures.timeline_figure(result),

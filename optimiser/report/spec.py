@@ -28,7 +28,11 @@ from stowflow.units import T_REF, celsius_to_kelvin, kelvin_to_celsius, si_facto
 
 __all__ = ["SpecItem", "category_hint", "precharge_table", "spec_items"]
 
-_PUMP_WORDS = {"fixed": "fixed-displacement", "pressure-compensated": "pressure-compensated"}
+_PUMP_WORDS = {
+    "fixed": "fixed-displacement",
+    "pressure-compensated": "pressure-compensated",
+    "load-sensing": "load-sensing",
+}
 
 
 @dataclass(frozen=True)

@@ -23,7 +23,7 @@ from stowflow.cycle.duty import DutyCycle
 from stowflow.physics import accumulator as acc
 from stowflow.physics import gas
 from stowflow.physics.valves import RELIEF_OVERRIDE
-from stowflow.search.baseline import compensated_baseline, fixed_baseline
+from stowflow.search.baseline import pump_only_alternatives
 from stowflow.search.milp import VALVE_MODES, ScheduleProblem, hidden_load_events, solve_schedule
 from stowflow.search.problem import Problem, make_problem
 from stowflow.search.schedule import (
@@ -469,10 +469,7 @@ def design(
     report(0.0, "screening the catalogue")
     problem = make_problem(cycle, s, extra_pressure)
     lb_power = _power_lower_bound(problem, catalogue)
-    baselines = (
-        fixed_baseline(problem.demand, problem.p_step, problem.dt, catalogue, s),
-        compensated_baseline(problem.demand, problem.p_step, problem.dt, catalogue, s),
-    )
+    baselines = pump_only_alternatives(problem.demand, cycle.pressure, problem.dt, catalogue, s)
     sr = screen(problem, catalogue, report=lambda f, lab: report(0.4 * f, lab), min_power=min_power)
     notes = [f"gas process: {problem.process_note}"]
     search = _Search(problem, sr, lb_power, baselines, notes, t_start)

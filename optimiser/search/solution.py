@@ -9,8 +9,9 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import pandas as pd
-from stowflow.catalogue import AccumulatorOption, MotorOption, PumpOption
+from stowflow.catalogue import AccumulatorOption, DriveOption, MotorOption, PumpOption
 from stowflow.physics.accumulator import TypeRules, nominal_gas_volume
+from stowflow.physics.machines import EnergyBreakdown
 
 __all__ = ["Alternative", "Bank", "Baseline", "Design", "SearchStats"]
 
@@ -89,16 +90,27 @@ class Baseline:
     Attributes
     ----------
     kind : str
-        ``"fixed"`` (fixed-displacement pump, excess over the relief valve) or
-        ``"compensated"`` (pressure-compensated variable pump).
+        One of :data:`stowflow.search.baseline.KINDS`: ``"fixed"`` (fixed pump, unloaded in
+        the idle stretches, the excess over the relief valve), ``"compensated"``
+        (pressure-compensated variable pump), ``"variable-speed"`` (fixed pump on a
+        variable-speed drive) or ``"load-sensing"`` (load-sensing variable pump).
     pump, motor : PumpOption, MotorOption
         Chosen rows (None with ``reason`` when no row fits).
     pressure : float
-        Pressure the pump works against (relief or compensator setting), absolute, [Pa].
+        Pressure the pump works against (relief, compensator or drive setting), absolute,
+        [Pa].
     energy_per_cycle : float
-        Electrical energy over one cycle, [J].
+        Electrical energy over one cycle, [J] (from the part-load loss models).
+    shaft_power_peak : float
+        Shaft power the motor is sized for: the largest torque at rated speed, [W].
     reason : str | None
         Why no baseline could be built, else None.
+    drive : DriveOption | None
+        The variable-frequency drive (``"variable-speed"`` only).
+    breakdown : EnergyBreakdown | None
+        Where the energy per cycle goes.
+    notes : tuple[str, ...]
+        How the supply runs, in words.
     """
 
     kind: str
@@ -108,6 +120,9 @@ class Baseline:
     energy_per_cycle: float
     shaft_power_peak: float = 0.0
     reason: str | None = None
+    drive: DriveOption | None = None
+    breakdown: EnergyBreakdown | None = None
+    notes: tuple[str, ...] = ()
 
     @property
     def installed_power(self) -> float:
@@ -116,10 +131,11 @@ class Baseline:
 
     @property
     def capex(self) -> float:
-        """Pump plus motor price, [currency]."""
+        """Pump plus motor (plus drive) price, [currency]."""
         if self.pump is None or self.motor is None:
             return float("nan")
-        return self.pump.price + self.motor.price
+        drive = self.drive.price if self.drive is not None else 0.0
+        return self.pump.price + self.motor.price + drive
 
 
 @dataclass(frozen=True)

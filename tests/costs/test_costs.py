@@ -250,11 +250,11 @@ def test_compare_by_hand():
     assert p.savings_per_year == pytest.approx(16_000.0, rel=REL)
     assert p.simple_years == 0.0 and p.discounted_years == 0.0
     assert p.installed_power_saved == pytest.approx(22_500.0)
-    assert "at once" in p.note
+    assert p.note == "costs less to buy and to run" and p.verdict == "cheaper" and p.pays_off
     assert c.payback("compensated") is None
     assert not c.option("compensated").feasible
     assert c.option("compensated").reason == "no compensated pump"
-    assert c.reference is p
+    assert c.reference is p and c.strongest is f and c.recommended == "design"
 
 
 def test_compare_payback_when_the_design_costs_more():

@@ -124,15 +124,19 @@ def test_design_json_units(written):
     assert rec["pump"]["displacement_cm3"] == pytest.approx(d.pump.displacement * 1e6, rel=TOL)
     assert rec["pump"]["speed_rpm"] == pytest.approx(d.pump.speed * 60, rel=TOL)
     assert rec["motor"]["rated_kw"] == pytest.approx(d.motor.rated_power / KW, rel=TOL)
-    fixed = d.baselines[0]
-    assert rec["baseline"]["motor"]["rated_kw"] == pytest.approx(fixed.installed_power / KW)
-    assert rec["baseline"]["pump"]["flow_lpm"] == pytest.approx(fixed.pump.flow / LPM, abs=1e-4)
     c = result.comparison
+    # "baseline" and costs.baseline_* are the strongest alternative (the least TCO), the one
+    # costs.payback_against names.
+    best = next(b for b in d.baselines if b.kind == c.strongest.key)
+    assert rec["costs"]["payback_against"] == best.kind == rec["baseline"]["kind"]
+    assert rec["baseline"]["motor"]["rated_kw"] == pytest.approx(best.installed_power / KW)
+    assert rec["baseline"]["pump"]["flow_lpm"] == pytest.approx(best.pump.flow / LPM, abs=1e-4)
     assert rec["costs"]["capex"] == pytest.approx(c.option("design").capex, abs=0.01)
     # energy per year in kWh: J / 3.6e6 (1 kWh = 3.6 MJ by definition)
     e_kwh = c.option("design").energy_per_year / 3.6e6
     assert rec["costs"]["energy_per_year"] == pytest.approx(e_kwh, abs=1e-3)
-    assert rec["costs"]["baseline_capex"] == pytest.approx(c.option("fixed").capex, abs=0.01)
+    assert rec["costs"]["baseline_capex"] == pytest.approx(c.strongest.capex, abs=0.01)
+    assert rec["costs"]["baseline_tco"] == pytest.approx(c.strongest.tco, abs=0.01)
     assert rec["costs"]["energy_unit"] == "kWh"
     assert rec["installed_to_lower_bound_ratio"] >= 1.0
     # precharge table: 20 °C row is the design precharge

@@ -21,6 +21,7 @@ from _report_studies import (
     hostile,
     infeasible,
 )
+from stowflow.costs import KIND_WORDS
 from stowflow.report import content, render_html, spec
 from stowflow.report.html import SECTIONS
 from stowflow.units import T_REF
@@ -62,7 +63,8 @@ def test_plotly_js_is_inlined_exactly_once(page):
     # one <script> for plotly.js, one per figure (its Plotly.newPlot call) and the print hook
     scripts = page.count("<script")
     assert scripts == 2 + page.count("Plotly.newPlot(")
-    assert page.count("Plotly.newPlot(") == 4  # cycle, design at work, bars, cost over time
+    # cycle, design at work, comparison bars, energy breakdown, cost over time
+    assert page.count("Plotly.newPlot(") == 5
 
 
 def test_report_has_no_external_resources(page):
@@ -86,18 +88,25 @@ def test_report_has_every_section_in_order(page):
 
 
 def test_summary_states_the_recommendation_from_the_result(page):
+    # The sentence judges the design against the strongest alternative (least TCO) and
+    # recommends the cheaper of the two over the horizon.
     r = forming_press()
-    d, ref = r.design, r.comparison.reference
+    c = r.comparison
+    d, best, ref = r.design, c.strongest, c.reference
+    assert best.tco == min(o.tco for o in c.alternatives if o.feasible)
     sentence = content.recommendation(r)
-    assert sentence.startswith(f"Use {d.bank.count} × ")
-    assert f"{d.motor.rated_power / 1e3:g} kW motor" in sentence
-    assert f"{d.pump.displacement * 1e6:g} cm³/rev pump" in sentence
-    saved = (ref.installed_power_saved) / 1e3
-    assert f"{saved:g} kW less installed power" in sentence
-    if ref.simple_years == 0:  # cheaper to buy as well: no payback period to state
-        assert "costs less to buy" in sentence
+    if c.recommended == "design":
+        assert sentence.startswith(f"Use {d.bank.count} × ")
+        assert f"{d.motor.rated_power / 1e3:g} kW motor" in sentence
+        assert f"{d.pump.displacement * 1e6:g} cm³/rev pump" in sentence
+        assert "strongest pump-only alternative" in sentence
     else:
-        assert f"pays back in {ref.simple_years:.1f} years" in sentence
+        assert best.tco < c.option("design").tco
+        assert sentence.startswith(f"A pump-only {KIND_WORDS[best.key]} (")
+        assert f"costs less over {c.settings.years} years" in sentence
+        assert f"{best.tco:,.0f} EUR against {c.option('design').tco:,.0f} EUR" in sentence
+        assert "Use the pump-only supply" in sentence
+    assert ref.note in sentence
     assert sentence.replace("'", "&#x27;") in page
     assert "status optimal" in page
 

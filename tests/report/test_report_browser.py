@@ -127,8 +127,9 @@ def chromium():
 @pytest.mark.parametrize(
     ("study", "plots"),
     [
-        (forming_press, 4),  # cycle, design at work, comparison bars, cost over time
-        (hostile, 4),
+        # cycle, design at work, comparison bars, energy breakdown, cost over time
+        (forming_press, 5),
+        (hostile, 5),
         (infeasible, 1),  # the cycle only: neither a design nor a baseline to draw
     ],
     ids=["forming-press", "hostile-strings", "infeasible"],
@@ -153,7 +154,7 @@ def test_verified_report_in_the_browser(chromium, tmp_path):
     paths = write_study(result, tmp_path / "out")
     probe, log = _probe(paths["report.html"], tmp_path)
     assert probe["errors"] == [] and _console_errors(log) == []
-    assert probe["plots"] == (4 if result.design.feasible else 2)
+    assert probe["plots"] == (5 if result.design.feasible else 2)
 
 
 def test_report_screenshot(chromium, tmp_path):
