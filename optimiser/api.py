@@ -694,7 +694,7 @@ def design(
     >>> import stowflow
     >>> r = stowflow.design("duty_cycles/forming_press.csv", temperature="10..50")
     >>> r.summary[["status", "accumulator_count", "motor_rated_kw"]].tolist()
-    ['optimal', 3, 15.0]
+    ['optimal', 5, 22.0]
     >>> float(r.costs.loc["fixed", "installed_power_kw"])
     132.0
     """
@@ -863,8 +863,8 @@ def simulate(
     >>> import stowflow
     >>> r = stowflow.design("duty_cycles/forming_press.csv")
     >>> sim = stowflow.simulate(r, temperature="0..60", controllers=["pressure-switch"])
-    >>> sim.verification[["controller", "temperature_c"]].values.tolist()
-    [['pressure-switch', 0.0], ['pressure-switch', 60.0]]
+    >>> sim.verification[["temperature_c", "pump_flow"]].values.tolist()
+    [[0.0, 'catalogue'], [60.0, 'catalogue'], [0.0, 'worn'], [60.0, 'worn']]
     """
     from stowflow.catalogue import Catalogue
     from stowflow.cycle.duty import DutyCycle

@@ -257,6 +257,9 @@ TEXT = {
     "min_unloaded_dwell": "0.5s",
     "max_load_events": "200/h",
     "flow_margin": "5%",
+    "switch_differential": "12%",
+    "switch_tolerance": "2%",
+    "motor_sizing": "working",
     "max_count": "6",
     "types": "bladder,piston",
     "precharge_step": "2bar",
@@ -281,6 +284,9 @@ SI = {
     "min_unloaded_dwell": 0.5,
     "max_load_events": 200,
     "flow_margin": 0.05,
+    "switch_differential": 0.12,
+    "switch_tolerance": 0.02,
+    "motor_sizing": "working",
     "max_count": 6,
     "types": ["bladder", "piston"],
     "precharge_step": 2e5,
@@ -308,7 +314,7 @@ def test_settings_as_text_and_as_si_numbers_are_the_same_objects():
 
 
 def test_every_option_is_a_keyword_and_every_number_has_a_unit():
-    text_only = {"temperature", "gas", "process", "types", "currency"}
+    text_only = {"temperature", "gas", "process", "types", "currency", "motor_sizing"}
     options = set(DESIGN_OPTIONS) | set(COST_OPTIONS)
     assert set(api.NUMBER_UNITS) == options - text_only
     assert set(TEXT) | {"process", "cycles_per_hour"} == options
@@ -415,7 +421,8 @@ def test_design_tables(press):
     assert v["passed"][v["recommended"]].all()
     runs = press.study.verification.runs
     assert len(press.traces) == sum(len(r.trace) for r in runs)
-    assert press.feasible and press.name == "demo" and "15 kW" in repr(press)
+    kw = f"{press.study.design.motor.rated_power / 1e3:g} kW"
+    assert press.feasible and press.name == "demo" and kw in repr(press)
 
 
 def test_design_refuses_read_options_for_a_cycle_already_read():
@@ -451,13 +458,19 @@ def test_simulate_a_design_result_and_its_design_json(press, tmp_path):
     )
     cols = ["controller", "temperature_c", "passed"]
     assert from_file.verification[cols].equals(again.verification[cols])
-    assert again.traces.columns[:3].tolist() == ["controller", "temperature [°C]", "time [s]"]
+    assert again.traces.columns[:4].tolist() == [
+        "controller",
+        "temperature [°C]",
+        "pump_flow_state",
+        "time [s]",
+    ]
     assert "passed" in repr(again)
 
 
 def test_simulate_settings_and_controllers(press):
     sim = stowflow.simulate(press, temperature="0..60", controllers=["pressure-switch"])
-    assert sim.verification["temperature_c"].tolist() == [0.0, 60.0]
+    # Both temperature ends, at catalogue and at worn pump flow.
+    assert sim.verification["temperature_c"].tolist() == [0.0, 60.0, 0.0, 60.0]
     assert sim.summary["temperature_min_c"] == 0.0 and sim.settings.t_max == 333.15
     with pytest.raises(SettingsError, match="unknown setting 'energy_price'"):
         stowflow.simulate(press, energy_price="0.3/kWh")

@@ -172,7 +172,14 @@ def design_energy(
         temps = " and ".join(f"{kelvin_to_celsius(r.temperature):.0f} °C" for r in runs)
         source = f"time-domain verification, {ctrl} controller, mean of the runs at {temps}"
         if runs and all(_COLUMNS <= set(r.trace.columns) for r in runs):
-            accounts = [_run_account(design, cycle, r.trace, standby_pressure) for r in runs]
+            # Each run's account is the mean over the cycles of its periodic steady state
+            # (a switch may load every other cycle), as its energy per cycle is.
+            accounts = [
+                EnergyBreakdown.mean(
+                    [_run_account(design, cycle, tr, standby_pressure) for tr in r.cycle_traces]
+                )
+                for r in runs
+            ]
             b = EnergyBreakdown.mean(accounts)
             return b.electrical, b, f"{source}; {part_load}"
         energies = [r.energy_per_cycle for r in runs if math.isfinite(r.energy_per_cycle)]

@@ -276,6 +276,7 @@ def assess(
         relief_volume=f.v_relief,
         cycles_to_steady=int(orbit.cycles),
         trace=trace_frame(plant, rec),
+        period_traces=tuple(trace_frame(plant, r) for r in recs) if len(recs) > 1 else (),
         failures=tuple(fails),
         setpoints=dict(setpoints),
         periodic=orbit.periodic,

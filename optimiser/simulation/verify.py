@@ -165,6 +165,10 @@ class ControllerRun:
     worn : bool
         True for a run at the worn pump's flow (catalogue flow × (1 − flow margin)), False
         at the catalogue flow.
+    period_traces : tuple[pandas.DataFrame, ...]
+        When the steady state spans several cycles: every cycle of the period, each as
+        ``trace`` (whose one cycle is among them); empty for a period of one cycle.  The
+        per-cycle figures (``energy_per_cycle``, ``work``) are means over the period.
     """
 
     controller: str
@@ -197,6 +201,12 @@ class ControllerRun:
     start: tuple[float, float] = (math.nan, math.nan)
     shortfall: np.ndarray | None = field(default=None, repr=False)
     worn: bool = False
+    period_traces: tuple = field(default=(), repr=False)
+
+    @property
+    def cycle_traces(self) -> tuple:
+        """Every cycle of the steady state's period (``period_traces``, or ``trace``)."""
+        return self.period_traces or (self.trace,)
 
     @property
     def condition(self) -> str:
