@@ -160,8 +160,10 @@ OTIS_POURMOVAHED_1985 = Source(
     "from memory",
     "The thermal time-constant energy equation, with τ = m·cv/(h·Aw): "
     "dT/dt = (Tw - T)/τ - (T/cv)·(∂p/∂T)_v·dv/dt (ideal gas: (γ - 1)·T·(dV/dt)/V).  The "
-    "tests check only its exact mathematical limits (τ -> ∞: the isentrope, p·V^κ = const "
-    "for the ideal gas; τ -> 0: the isotherm; fixed volume: T - Tw decays as e^(-t/τ)).",
+    "tests check its exact mathematical limits (τ -> ∞: the isentrope, p·V^κ = const "
+    "for the ideal gas; τ -> 0: the isotherm; fixed volume: T - Tw decays as e^(-t/τ)), and "
+    "integrate a right-hand side written from this equation in tests/_textbook.py "
+    "(CoolProp's (∂p/∂T)_v and cv for the real gas) against the code's integrator.",
 )
 
 POURMOVAHED_OTIS_1990 = Source(

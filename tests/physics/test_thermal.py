@@ -6,6 +6,7 @@ import math
 
 import numpy as np
 import pytest
+from _textbook import otis_pourmovahed_rate
 from CoolProp.CoolProp import PropsSI
 from scipy.integrate import solve_ivp
 from sources import CODATA_2018, COOLPROP, POURMOVAHED_OTIS_1990, SPAN_2000
@@ -93,6 +94,7 @@ def test_exponential_relaxation_after_a_step(model):
     tau, t_wall, t0 = 3.0, T_REF, 360.0
     mass, vol = charge_mass(150 * BAR, 1e-3), 0.6e-3
     times = np.array([0.5, 3.0, 9.0])
+    # The code's own right-hand side integrated, against the closed form.
     sol = solve_ivp(
         lambda t, y: [temperature_rate(y[0], vol, 0.0, t_wall, tau, mass, model)],
         (0.0, 9.0), [t0], t_eval=times, rtol=1e-11, atol=1e-10,
@@ -102,13 +104,14 @@ def test_exponential_relaxation_after_a_step(model):
 
 
 def test_ideal_closed_form_matches_numerical_integration():
-    # Cross-check of our quadrature against scipy integrating temperature_rate.
+    # Cross-check of our quadrature against scipy integrating the energy equation of
+    # sources.OTIS_POURMOVAHED_1985 with the test's own right-hand side (tests/_textbook.py).
     for duration in (0.3, 4.0, 60.0):
         for v2 in (0.4, 1.8):
             rate = (v2 - 1.0) / duration
 
             def rhs(t, y, r=rate):
-                return [temperature_rate(y[0], 1.0 + r * t, r, T_REF, 5.0, 1.0, "ideal")]
+                return [otis_pourmovahed_rate(y[0], 1.0 + r * t, r, T_REF, 5.0, 1.0, "ideal")]
 
             sol = solve_ivp(rhs, (0.0, duration), [T_REF], method="Radau", rtol=1e-12, atol=1e-10)
             T2, _ = linear_volume_change(duration, 5.0, 1.0, v2, 1.0, T_REF, "ideal")
@@ -120,6 +123,29 @@ def test_effective_index_falls_from_kappa_to_one_with_duration():
     n = effective_polytropic_index(durations, DEFAULT_TIME_CONSTANT, 2.5)
     assert np.all(np.diff(n) < 0)
     assert 1.0 < n[-1] < n[0] < KAPPA
+
+
+@pytest.mark.parametrize("model", ["ideal", "real"])
+@pytest.mark.parametrize(
+    ("T", "litres", "dvdt", "t_wall", "tau"),
+    [
+        (293.15, 1.0, 0.0, 320.0, 3.0),
+        (340.0, 0.6, -2e-4, 300.0, 5.0),
+        (250.0, 0.4, 5e-4, 280.0, 0.5),
+    ],
+)
+def test_rate_matches_the_energy_equation_written_from_the_paper(
+    model, T, litres, dvdt, t_wall, tau
+):
+    # temperature_rate against the right-hand side of the sources.OTIS_POURMOVAHED_1985 energy
+    # equation written independently in tests/_textbook.py (CoolProp 8.0.0 derivatives for the
+    # real gas, sources.COOLPROP).  150 bar precharge in 1 L: densities up to ~420 kg/m³.
+    # Tolerance: the code reads nitrogen from a table (TABLE_RTOL above; 3e-8 seen here).
+    mass = float(charge_mass(150 * BAR, 1e-3))
+    vol = litres * 1e-3
+    got = temperature_rate(T, vol, dvdt, t_wall, tau, mass, model)
+    ref = otis_pourmovahed_rate(T, vol, dvdt, t_wall, tau, mass, model)
+    assert got == pytest.approx(ref, rel=TABLE_RTOL)
 
 
 def test_real_gas_rate_matches_ideal_at_low_density():

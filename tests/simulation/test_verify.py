@@ -19,6 +19,8 @@ import math
 import numpy as np
 import pandas as pd
 import pytest
+from _textbook import otis_pourmovahed_rate
+from _textbook import pressure as textbook_pressure
 from CoolProp.CoolProp import PropsSI
 from scipy.integrate import solve_ivp
 from sources import COOLPROP, SPAN_2000
@@ -31,7 +33,7 @@ from stowflow.catalogue import (
 from stowflow.cycle.duty import cycle_from_arrays
 from stowflow.errors import SettingsError
 from stowflow.physics import gas
-from stowflow.physics.thermal import charge_mass, gas_pressure, temperature_rate
+from stowflow.physics.thermal import charge_mass, gas_pressure
 from stowflow.physics.valves import RELIEF_OVERRIDE
 from stowflow.search.designer import design
 from stowflow.search.settings import DesignSettings
@@ -170,8 +172,9 @@ def test_wall_relaxation_at_fixed_volume_is_exponential():
 
 @pytest.mark.parametrize("tau", [0.05, 1.0, 20.0])
 def test_integrator_matches_solve_ivp(tau):
-    # scipy solve_ivp (DOP853, rtol 1e-11) on the same energy equation
-    # (stowflow.physics.thermal.temperature_rate) and the same gas table, part by part.
+    # scipy solve_ivp (DOP853, rtol 1e-11), part by part, on the test's own right-hand side of
+    # the sources.OTIS_POURMOVAHED_1985 energy equation and nitrogen straight from CoolProp
+    # (tests/_textbook.py; sources.COOLPROP): no function shared with the integrator.
     rng = np.random.default_rng(3)
     n, dt, qp = 100, 0.02, 1.2e-3
     d = np.repeat(rng.uniform(0, 3e-3, 10), 10)
@@ -198,11 +201,11 @@ def test_integrator_matches_solve_ivp(tau):
             r = qp * u - d[k]
 
             def rhs(t, y, S0=S, r=r):
-                return [temperature_rate(y[0], Vg - (S0 + r * t), -r, 300.0, tau, m, "real")]
+                return [otis_pourmovahed_rate(y[0], Vg - (S0 + r * t), -r, 300.0, tau, m)]
 
             sol = solve_ivp(rhs, (0.0, h), [T], method="DOP853", rtol=1e-11, atol=1e-9)
             S, T = S + r * h, float(sol.y[0, -1])
-        ref.append(float(gas_pressure(m, Vg - S, T, "real")))
+        ref.append(textbook_pressure(m / (Vg - S), T))
     assert np.max(np.abs(rec.p - np.array(ref))) < ODE_ATOL_PA
 
 
