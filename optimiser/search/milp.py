@@ -245,9 +245,16 @@ def _solve_highs(m, warm: bool, *, time_limit: float, mip_gap: float, threads: i
         highspy.HighsVarType.kInteger if v.is_integer() else highspy.HighsVarType.kContinuous
         for v in cols
     ]
-    with capture_output(capture_fd=True):
-        h = highspy.Highs()
-        h.setOptionValue("output_flag", False)
+    try:
+        with capture_output(capture_fd=True):  # HiGHS prints a banner when it is made
+            h = highspy.Highs()
+            h.setOptionValue("output_flag", False)
+    except RuntimeError as exc:
+        # Pyomo's output capture reports a Ctrl+C that lands inside it as a RuntimeError
+        # ("KeyboardInterrupt: ..."): give the interruption back as what it is.
+        if "KeyboardInterrupt" in str(exc):
+            raise KeyboardInterrupt from exc
+        raise
     for key, value in (
         ("threads", int(threads)),
         ("time_limit", float(time_limit)),

@@ -371,3 +371,22 @@ def test_no_load_event_allowed_spills_over_the_relief_valve():
     # relief flow leaves only a full store
     assert np.all(sol.oil[sol.relief > 0] >= sp.upper * (1 - 1e-9))
     assert _least_energy_for(sp, sol.u) == pytest.approx(41e3, rel=1e-9)
+
+
+def test_ctrl_c_inside_the_output_capture_stays_an_interruption(monkeypatch):
+    # Pyomo's capture_output turns a KeyboardInterrupt that lands inside it into a RuntimeError
+    # ("KeyboardInterrupt: ..."); the solve gives it back as KeyboardInterrupt, so the CLI
+    # exits 130 instead of reporting an internal error (found by tests/cli/test_cli_interrupt).
+    import contextlib
+
+    import pyomo.common.tee as tee
+
+    @contextlib.contextmanager
+    def interrupted(*args, **kwargs):
+        yield
+        raise RuntimeError("KeyboardInterrupt:  (4: <pyomo.common.tee.TeeStream object>)")
+
+    monkeypatch.setattr(tee, "capture_output", interrupted)
+    sp = _sp([0, 0, 3, 0], 0.0, 2.0)
+    with pytest.raises(KeyboardInterrupt):
+        solve_schedule(sp, mip_gap=HAND_GAP)
