@@ -170,7 +170,6 @@ class _Loop:
     previous: Design | None = None
     stuck: int = 0  # passes in a row that left the design unchanged
     notes: list[str] = field(default_factory=list)  # what the loop changed, for the reader
-    settings: DesignSettings | None = None  # the settings of the last pass
 
 
 def _raise_requirement(loop: _Loop, d: Design, shortfall: np.ndarray) -> None:
@@ -237,7 +236,6 @@ def _design_and_verify(study: Study, cycle: DutyCycle, catalogue: Catalogue, rep
             loop.previous = d
             continue
         _raise_requirement(loop, d, cure)
-    loop.settings = settings
     return loop
 
 

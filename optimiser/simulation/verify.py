@@ -70,7 +70,7 @@ from stowflow.simulation.controllers import (
     SwitchSearch,
     derive_switch,
 )
-from stowflow.units import BAR, ZERO_CELSIUS, bar_text, to_unit
+from stowflow.units import BAR, bar_text, to_unit
 
 __all__ = [
     "CONTROLLERS",
@@ -207,12 +207,6 @@ class ControllerRun:
     def cycle_traces(self) -> tuple:
         """Every cycle of the steady state's period (``period_traces``, or ``trace``)."""
         return self.period_traces or (self.trace,)
-
-    @property
-    def condition(self) -> str:
-        """``"10 °C, catalogue flow"``: the temperature and the pump's state of the run."""
-        pump = "worn" if self.worn else "catalogue"
-        return f"{self.temperature - ZERO_CELSIUS:.4g} °C, {pump} flow"
 
 
 @dataclass(frozen=True)
