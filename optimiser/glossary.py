@@ -101,6 +101,7 @@ _TERMS = (
         "-",
         "none",
         "1 while the pump delivers into the system, 0 while it is unloaded to tank.",
+        (0.0, 1.0),
     ),
     Term(
         "accumulator_oil",
@@ -175,6 +176,25 @@ _TERMS = (
         "Difference between the unload (cut-out) and load (cut-in) settings of the pressure "
         "switch or accumulator charging valve; at least 10 % of the cut-out pressure by "
         "default (common practice, from memory).",
+    ),
+    Term(
+        "schedule_cut_out",
+        "p_co",
+        "bar",
+        "Pa",
+        "pressure",
+        "Pressure at which a timed load schedule unloads the pump before the planned end of a "
+        "loaded stretch (set at the pressure switch's unload setting); the pump then stays "
+        "unloaded until the next planned load start.",
+    ),
+    Term(
+        "schedule_pump_flow",
+        "Q_plan",
+        "L/min",
+        "m³/s",
+        "flow",
+        "Pump flow a timed load schedule is planned for: the worn pump's, catalogue flow less "
+        "the flow margin.",
     ),
     Term(
         "switch_tolerance",

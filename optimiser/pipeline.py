@@ -217,9 +217,17 @@ def _design_and_verify(study: Study, cycle: DutyCycle, catalogue: Catalogue, rep
             break
         t1 = time.perf_counter()
         v = verify(
-            d, cycle, settings, progress=lambda f, lab, stage=stage: stage(0.5 + 0.5 * f, lab)
+            d,
+            cycle,
+            settings,
+            progress=lambda f, lab, stage=stage: stage(0.5 + 0.5 * f, lab),
+            timed_schedule=True,
         )
         loop.t_verify += time.perf_counter() - t1
+        # The exported schedule is the timed one the verification proved, or none.
+        if d.bank is not None:
+            sch = v.schedule if v.schedule is not None else d.schedule.iloc[0:0]
+            d = replace(d, schedule=sch, schedule_timed=v.schedule is not None)
         loop.attempts.append(Attempt(float(extra.max()), d.status, v.passed, v.min_margin))
         loop.result, loop.verification = d, v
         if v.passed:

@@ -388,7 +388,7 @@ def test_to_dict_is_what_write_puts_in_design_json(press, tmp_path):
     written = json.loads(paths["design.json"].read_text(encoding="utf-8"))
     assert _steady(press.to_dict()) == _steady(written)
     assert press.to_dict() == press.to_dict() and press.to_dict() is not press.to_dict()
-    schedule = pd.read_csv(paths["schedule.csv"]).set_index("time [s]")
+    schedule = pd.read_csv(paths["schedule.csv"], comment="#").set_index("time [s]")
     assert list(schedule.columns) == list(press.schedule.columns)
     numbers = press.schedule.select_dtypes("number").columns
     pd.testing.assert_frame_equal(

@@ -109,7 +109,7 @@ def test_schedule_has_one_row_per_cycle_step(demo):
     n = round(duration / step)
     assert n * step == pytest.approx(duration, rel=1e-12)  # the phases sit on the grid
     with (out / "schedule.csv").open() as fh:
-        rows = list(csv.DictReader(fh))
+        rows = list(csv.DictReader(line for line in fh if not line.startswith("#")))
     assert len(rows) == n == design["cycle"]["steps"]
     t = np.array([float(r["time [s]"]) for r in rows])
     np.testing.assert_allclose(t, np.arange(n) * step, atol=1e-9)

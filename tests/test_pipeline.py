@@ -115,7 +115,9 @@ def test_an_empty_bank_is_cured_with_gas_not_pressure(monkeypatch, repo_root):
 
 
 @pytest.mark.slow
-@pytest.mark.parametrize(("name", "passes"), [("forming_press", 1), ("die_casting_shot", 2)])
+# Since the schedule model plans for the worn pump at the coldest temperature (or against
+# both ends), every demo's first design passes.
+@pytest.mark.parametrize(("name", "passes"), [("forming_press", 1), ("die_casting_shot", 1)])
 def test_the_demo_passes_after_the_expected_passes(repo_root, name, passes):
     res = run(Study(cycle=repo_root / "duty_cycles" / f"{name}.csv"))
     assert res.verification.passed

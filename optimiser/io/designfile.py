@@ -461,7 +461,21 @@ def load_design(
             "expected a switch setting at or below it",
         )
     process = _process(r, data)
-    schedule = _schedule(schedule_csv, cycle, pump, bank, notes, required=schedule_required)
+    planned = r.number(
+        data, "", "schedule_pump_flow_lpm", required=False, term="pump_flow", unit="L/min"
+    )
+    planned = pump.flow if planned is None else planned * si_factor("L/min", "flow")
+    if planned > pump.flow * (1 + 1e-6):
+        raise r.fail(
+            "schedule_pump_flow_lpm",
+            f"{to_unit(planned, 'L/min', 'flow'):g} L/min is above pump.flow_lpm "
+            f"{to_unit(pump.flow, 'L/min', 'flow'):g} L/min; expected the flow the schedule was "
+            "planned with (the worn pump's, at most the pump's)",
+        )
+    kind = data.get("schedule_kind", "plan")
+    if kind not in ("timed", "plan"):
+        raise r.fail("schedule_kind", f"expected 'timed' or 'plan', found {_shown(kind)}")
+    schedule = _schedule(schedule_csv, cycle, planned, bank, notes, required=schedule_required)
     design = Design(
         "feasible",
         None,
@@ -478,6 +492,8 @@ def load_design(
         math.nan,
         {},
         math.nan,
+        schedule_flow=planned,
+        schedule_timed=kind == "timed" and not schedule.empty,
     )
     return design, s, notes
 
@@ -560,6 +576,7 @@ SCHEDULE_INPUT_COLUMNS: dict[str, tuple[str, str]] = {
     "accumulator_oil [L]": ("accumulator_oil", "L"),
     "relief_flow [L/min]": ("flow", "L/min"),
     "excess_flow [L/min]": ("flow", "L/min"),
+    "pump_loaded": ("pump_loaded", "-"),
 }
 _SCHEDULE_REQUIRED = ("pump_flow [L/min]", "accumulator_oil [L]")
 
@@ -568,8 +585,9 @@ def read_schedule_csv(path: str | Path) -> dict[str, np.ndarray]:
     """The columns of a ``schedule.csv`` the schedule controller reads, checked, in trade units.
 
     The file is the export of ``stowflow design`` (quoted fields may hold line breaks, e.g. in
-    labels).  Numbers are written with the ASCII digits 0-9, finite, ≥ 0 and inside the
-    glossary's plausible range of their column (:data:`SCHEDULE_INPUT_COLUMNS`).
+    labels; lines starting with ``#`` before the header are comments).  Numbers are written
+    with the ASCII digits 0-9, finite, ≥ 0 and inside the glossary's plausible range of their
+    column (:data:`SCHEDULE_INPUT_COLUMNS`).
 
     Parameters
     ----------
@@ -579,7 +597,8 @@ def read_schedule_csv(path: str | Path) -> dict[str, np.ndarray]:
     Returns
     -------
     dict of str to numpy.ndarray
-        Column name → values (L/min, L); the relief column only when present.
+        Column name → values (L/min, L); the relief column only when present; empty when the
+        file's schedule columns are all empty (a design without a schedule).
 
     Raises
     ------
@@ -596,7 +615,14 @@ def read_schedule_csv(path: str | Path) -> dict[str, np.ndarray]:
         DesignFileError,
         expected,
     )
+    # Leading '#' lines are the export's comments (what the schedule is, its temperatures).
+    skipped = 0
+    while text.startswith("#"):
+        cut = text.find("\n")
+        text = "" if cut < 0 else text[cut + 1 :]
+        skipped += 1
     reader = csv.reader(io.StringIO(text, newline=""), strict=True)
+    first = skipped + 1  # the header's line number
     try:
         header = [h.strip() for h in next(reader, [])]
         if not any(header):
@@ -604,20 +630,24 @@ def read_schedule_csv(path: str | Path) -> dict[str, np.ndarray]:
         missing = [c for c in _SCHEDULE_REQUIRED if c not in header]
         if missing:
             raise DesignFileError(
-                f"{path}, line 1: no column {_shown(missing[0])}; expected {expected} (columns "
-                f"{', '.join(_SCHEDULE_REQUIRED)}, …)"
+                f"{path}, line {first}: no column {_shown(missing[0])}; expected {expected} "
+                f"(columns {', '.join(_SCHEDULE_REQUIRED)}, …)"
             )
         index = {c: header.index(c) for c in SCHEDULE_INPUT_COLUMNS if c in header}
         values: dict[str, list[float]] = {c: [] for c in index}
+        blank = 0
         for row in reader:
-            line = reader.line_num
+            line = reader.line_num + skipped
             if not any(cell.strip() for cell in row):
                 continue
             if len(row) != len(header):
                 raise DesignFileError(
                     f"{path}, line {line}: found {len(row)} fields; expected {len(header)} as in "
-                    "the header on line 1"
+                    f"the header on line {first}"
                 )
+            if all(not row[index[c]].strip() for c in index):
+                blank += 1  # a design without a schedule leaves its columns empty
+                continue
             for col, i in index.items():
                 where = f"{path}, line {line}, column {i + 1} '{col}'"
                 cell = row[i].strip()
@@ -635,12 +665,20 @@ def read_schedule_csv(path: str | Path) -> dict[str, np.ndarray]:
                 values[col].append(value)
     except csv.Error as exc:
         raise DesignFileError(
-            f"{path}, line {reader.line_num}: cannot split the row ({exc}); expected {expected}"
+            f"{path}, line {reader.line_num + skipped}: cannot split the row ({exc}); "
+            f"expected {expected}"
         ) from None
+    if blank and any(values.values()):
+        raise DesignFileError(
+            f"{path}: {blank} of the rows leave the schedule columns empty while others fill them; "
+            f"expected {expected}"
+        )
+    if blank:
+        return {}
     return {c: np.asarray(v, dtype=float) for c, v in values.items()}
 
 
-def _schedule(csv_path, cycle, pump, bank, notes, *, required: bool = False) -> pd.DataFrame:
+def _schedule(csv_path, cycle, planned, bank, notes, *, required: bool = False) -> pd.DataFrame:
     """The design's schedule from a schedule.csv export, on the cycle's grid (else empty).
 
     The file is read by :func:`read_schedule_csv` (a bad file is refused); a missing file is
@@ -651,8 +689,9 @@ def _schedule(csv_path, cycle, pump, bank, notes, *, required: bool = False) -> 
     a litre); the pump flow is taken from the oil balance so that the cycle closes exactly,
     after checking that it agrees with the exported pump flow.  The relief flow over a full
     store (``relief_flow [L/min]``) leaves the balance: oil change = (pump flow − relief
-    flow − demand)·Δt.  The loaded fraction is the balanced pump flow over the pump's, [-],
-    clipped to 0 … 1 once it is inside the export's rounding of that range.
+    flow − demand)·Δt.  The loaded fraction is the balanced pump flow over ``planned``, the
+    pump flow the schedule was planned with [m³/s], [-], clipped to 0 … 1 once it is inside
+    the export's rounding of that range.
     """
     if csv_path is None:
         return pd.DataFrame()
@@ -661,6 +700,9 @@ def _schedule(csv_path, cycle, pump, bank, notes, *, required: bool = False) -> 
         return pd.DataFrame()
     t = read_schedule_csv(csv_path)
     if cycle is None or bank is None:
+        return pd.DataFrame()
+    if not t:
+        notes.append(f"{csv_path}: carries no schedule; schedule controller skipped")
         return pd.DataFrame()
     csv = csv_path
     lpm, litre = si_factor("L/min", "flow"), si_factor("L", "volume")
@@ -692,25 +734,37 @@ def _schedule(csv_path, cycle, pump, bank, notes, *, required: bool = False) -> 
             "schedule controller skipped"
         )
         return pd.DataFrame()
-    fraction = balanced / pump.flow
-    tol = _rounding_flow(dt) / pump.flow
+    fraction = balanced / planned
+    tol = _rounding_flow(dt) / planned
     if np.any(fraction > 1 + tol) or np.any(fraction < -tol):
         i = int(np.argmax((fraction > 1 + tol) | (fraction < -tol)))
         notes.append(
             f"{csv}: at t = {cycle.time[i]:.4g} s the schedule asks "
             f"{to_unit(balanced[i], 'L/min', 'flow'):.6g} L/min of the pump, outside 0 … "
-            f"{to_unit(pump.flow, 'L/min', 'flow'):.6g} L/min; schedule controller skipped"
+            f"{to_unit(planned, 'L/min', 'flow'):.6g} L/min; schedule controller skipped"
         )
         return pd.DataFrame()
     # A loaded or unloaded step whose fraction the export's rounding moved off 1 or 0 is
     # loaded or unloaded: a sliver would count as a load event of its own.
     fraction = np.where(np.abs(fraction - 1.0) <= tol, 1.0, fraction)
     fraction = np.clip(np.where(np.abs(fraction) <= tol, 0.0, fraction), 0.0, 1.0)
+    command = fraction
+    if "pump_loaded" in t:  # the load command (a cut-out may unload a loaded step early)
+        command = t["pump_loaded"]
+        bad = (command != 0) & (command != 1) | ((command == 0) & (fraction > 0))
+        if np.any(bad):
+            i = int(np.argmax(bad))
+            notes.append(
+                f"{csv}: at t = {cycle.time[i]:.4g} s pump_loaded is {command[i]:g} with the "
+                f"pump delivering {to_unit(balanced[i], 'L/min', 'flow'):.6g} L/min; expected "
+                "0 or 1, and 1 wherever the pump delivers; schedule controller skipped"
+            )
+            return pd.DataFrame()
     return pd.DataFrame(
         {
             "demand [m³/s]": d,
-            "pump_loaded [-]": fraction,
-            "pump_flow [m³/s]": fraction * pump.flow,
+            "pump_loaded [-]": command,
+            "pump_flow [m³/s]": fraction * planned,
             "spill [m³/s]": spill,
             "accumulator_oil [m³]": oil,
         },

@@ -21,7 +21,14 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from stowflow.report.exports import design_json, design_record, schedule_frame, spec_csv, spec_rows
+from stowflow.report.exports import (
+    design_json,
+    design_record,
+    schedule_csv,
+    schedule_frame,
+    spec_csv,
+    spec_rows,
+)
 from stowflow.report.folder import DESIGN_OUTPUTS, check_out_dir, write_set
 from stowflow.report.html import render_html
 
@@ -30,6 +37,7 @@ __all__ = [
     "check_out_dir",
     "design_record",
     "render_html",
+    "schedule_csv",
     "schedule_frame",
     "spec_rows",
     "write_study",
@@ -64,7 +72,7 @@ def write_study(result, out_dir: str | Path, option: str = "--out") -> dict[str,
         The folder cannot be used or written; the previous files are then unchanged.
     """
     check_out_dir(out_dir, option, OUTPUTS)  # before the rendering's seconds
-    schedule = schedule_frame(result).to_csv(index=False, lineterminator="\n", na_rep="")
+    schedule = schedule_csv(result)
     texts = {
         "design.json": design_json(result),
         "schedule.csv": schedule,

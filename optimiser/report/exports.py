@@ -29,7 +29,9 @@ __all__ = [
     "design_json",
     "design_record",
     "neutralise",
+    "schedule_csv",
     "schedule_frame",
+    "schedule_header",
     "spec_csv",
     "spec_rows",
     "traces_frame",
@@ -118,6 +120,10 @@ def design_record(result) -> dict:
         rec["pump"] = _pump_record(d.pump, result)
         rec["motor"] = _motor_record(d.motor)
         rec["relief_bar"] = _num(content.bar_g(d.relief, result), 3)
+        # schedule.csv's loaded share of each step is of this flow (the worn pump's).
+        rec["schedule_pump_flow_lpm"] = _num(to_unit(d.planned_flow, "L/min", "flow"), 6)
+        # "timed": pump_loaded is the load command (with the cut-out); "plan": pump_flow is.
+        rec["schedule_kind"] = "timed" if d.schedule_timed else "plan"
         rec["installed_power_kw"] = _num(to_unit(d.installed_power, "kW", "power"), 6)
     rec |= _power_records(result)
     design_option = result.comparison.option("design")
@@ -412,6 +418,82 @@ def design_json(result) -> str:
     return json.dumps(design_record(result), indent=2, ensure_ascii=False, allow_nan=False) + "\n"
 
 
+def schedule_header(result) -> list[str]:
+    """The comment lines at the top of ``schedule.csv``: what the schedule is, which pump
+    flow it was planned for and which temperature each pressure column is for."""
+    d, s, v = result.design, result.settings, result.verification
+    t_lo, t_hi = (f"{kelvin_to_celsius(T):g} °C" for T in (s.t_min, s.t_max))
+    sch = d.schedule
+    # One text per line for a spreadsheet too: the name loses what would split or quote it.
+    name = "".join(" " if ch in ',;"\t\r\n' else ch for ch in str(result.name))
+    lines = [f"stowflow {__version__} load schedule for {name!r}"]
+    if not d.feasible:
+        return [*lines, "no design: the schedule columns are empty"]
+    if sch is None or sch.empty:
+        return [
+            *lines,
+            "no timed load schedule held at both temperature ends with a new and a worn pump: "
+            "the schedule columns are empty; run the pump on the pressure switch "
+            "(design.json setpoints)",
+        ]
+    runs = [r for r in (v.runs if v is not None else ()) if r.controller == "schedule"]
+    cut = next((r.setpoints["cut_out"] for r in runs if "cut_out" in r.setpoints), None)
+    if d.bank is None:
+        lines.append("pump-only supply: the pump stays loaded; the relief valve holds the pressure")
+    elif not d.schedule_timed:
+        lines.append(
+            "the schedule model's plan (pump_flow: what the pump delivers in each step); not a "
+            "timed schedule proved in the time domain"
+            + ("" if runs else " (the design was not verified)")
+        )
+    elif cut is None:
+        lines.append(
+            "the pump stays loaded (pump_loaded 1); the relief valve takes what the full "
+            "accumulator cannot"
+        )
+    else:
+        lines.append(
+            "load the pump where pump_loaded is 1 and unload it where it is 0, or earlier at the "
+            f"cut-out {content.bar_g(cut, result):.1f} bar (the pressure switch's unload "
+            "setting); after a cut-out the pump stays unloaded until the next step where "
+            "pump_loaded turns 1"
+        )
+    planned = to_unit(d.planned_flow, "L/min", "flow")
+    if d.bank is not None and d.planned_flow < d.pump.flow * (1 - 1e-9):
+        lines.append(
+            f"planned for the worn pump, {planned:.2f} L/min (catalogue "
+            f"{to_unit(d.pump.flow, 'L/min', 'flow'):.2f} L/min less the "
+            f"{s.flow_margin:.0%} flow margin); a new pump reaches the cut-out sooner"
+        )
+    worn = " with the worn pump" if d.bank is not None and s.flow_margin > 0 else ""
+    if sch.attrs.get("source") == "simulation":
+        lines.append(
+            f"pump_flow, accumulator_oil and relief_flow are simulated at {t_lo}{worn}; "
+            f"pressure and pressure_cold too, pressure_hot at {t_hi}{worn}"
+        )
+    else:
+        lines.append(
+            f"pump_flow, accumulator_oil and relief_flow are the quasi-static plan{worn}; its "
+            f"pressure and pressure_cold are at {t_lo}, pressure_hot at {t_hi}"
+        )
+    if runs:
+        worst = min(r.min_margin for r in runs)
+        verdict = "passes" if all(r.passed for r in runs) else "FAILS"
+        lines.append(
+            f"verified at {t_lo} and {t_hi} with catalogue and worn pump flow: {verdict}, least "
+            f"pressure margin {to_unit(worst, 'bar', 'pressure'):.2f} bar (design.json "
+            "verification)"
+        )
+    return lines
+
+
+def schedule_csv(result) -> str:
+    """``schedule.csv`` as text: ``#`` comment lines (:func:`schedule_header`), then the
+    table of :func:`schedule_frame`."""
+    head = "".join(f"# {line}\n" for line in schedule_header(result))
+    return head + schedule_frame(result).to_csv(index=False, lineterminator="\n", na_rep="")
+
+
 def schedule_frame(result) -> pd.DataFrame:
     """``schedule.csv`` as a table: one row per time step of the cycle grid.
 
@@ -449,7 +531,11 @@ def schedule_frame(result) -> pd.DataFrame:
     for col in out.columns:
         if out[col].dtype.kind == "f":
             out[col] = out[col].round(9 if col == "time [s]" else 6)
-    out["label"] = [neutralise(x) for x in cyc["label"]]
+    # '#' opens a comment for readers of the file's header (pandas' comment="#"): written as
+    # the full-width sign in labels.
+    out["label"] = [
+        neutralise(x.replace("#", "＃") if isinstance(x, str) else x) for x in cyc["label"]
+    ]
     return out
 
 

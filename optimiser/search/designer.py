@@ -146,7 +146,10 @@ def family_problems(problem: Problem, cand: Candidate, p0s, p_maxs, catalogue) -
     nominal = cand.count * opt.nominal_volume  # the bounds' basis; the gas fills a share of it
     volume = cand.count * acc.nominal_gas_volume(opt.type, opt.nominal_volume, rules)
     swept = cand.count * opt.swept_volume if opt.swept_volume else np.inf
-    deficit = deficit_from_full((cand.pump.flow - problem.demand) * problem.dt)
+    # The schedule is planned with the worn pump (the screen sized the bank for it): it then
+    # holds with a worn pump, and a new pump's surplus goes over the relief valve.
+    q_plan = cand.pump.flow * (1.0 - s.flow_margin)
+    deficit = deficit_from_full((q_plan - problem.demand) * problem.dt)
     q_bank = cand.count * acc.unit_flow_limit(
         opt.type, opt.nominal_volume, opt.bore, opt.max_flow, rules
     )
@@ -156,14 +159,15 @@ def family_problems(problem: Problem, cand: Candidate, p0s, p_maxs, catalogue) -
     for i in diag:
         # One open-loop schedule for the whole temperature range when the bank allows it
         # (the store then keeps the coldest lower bound and the hottest upper bound);
-        # otherwise the schedule is planned at the middle temperature and the pressure switch
-        # adapts at the extremes (the screen has proven each temperature feasible on its own).
+        # otherwise it is planned at the coldest temperature, where the gas holds the least
+        # pressure for its oil (the screen has proven that end feasible on its own): at the
+        # hot end the same oil stands at a higher pressure and the relief valve caps the store.
         lower = nominal * np.max(lo[:2, i, :], axis=0)[inverse]
         upper = min(nominal * float(np.min(up[:2, i])), swept)
         robust = deficit is not None and bool(np.all(upper - lower >= deficit - 1e-12 * volume))
         if not robust:
-            lower = nominal * lo[2, i, :][inverse]
-            upper = min(nominal * float(up[2, i]), swept)
+            lower = nominal * lo[0, i, :][inverse]
+            upper = min(nominal * float(up[0, i]), swept)
         s_lo = float(max(lower.min(), 0.0))
         shape.append((lower, upper, robust, np.linspace(s_lo, upper, CHORDS + 1)))
     knots = np.array([k for *_, k in shape])
@@ -185,7 +189,7 @@ def family_problems(problem: Problem, cand: Candidate, p0s, p_maxs, catalogue) -
             demand=problem.demand,
             lower=lower,
             upper=upper,
-            qp=pump.flow,
+            qp=q_plan,
             discharge_limit=q_bank,
             pressure_cuts=tuple(cuts),
             relief_gauge=s.relief_setting(p_maxs[i]) - s.p_ambient,
@@ -398,11 +402,11 @@ def _feasible(
         Alternative(c.pump, c.motor, c.option, c.count, c.capex) for c in sr.frontier
     )
     if fam is not None and not fam.robust:
-        t_mid = kelvin_to_celsius(0.5 * (s.t_min + s.t_max))
         notes.append(
-            f"one open-loop schedule cannot hold at both temperature ends with this bank; the "
-            f"schedule is planned at {t_mid:.0f} °C and the pressure switch keeps the window at "
-            "the extremes"
+            "the bank's oil windows at the two temperature ends overlap too little for one "
+            f"schedule planned against both: it is planned at {kelvin_to_celsius(s.t_min):.0f} "
+            f"°C, and at {kelvin_to_celsius(s.t_max):.0f} °C the warmer gas holds more "
+            "pressure and the relief valve caps the store"
         )
     return Design(
         status=status if status in ("optimal", "feasible") else "feasible",
@@ -425,6 +429,7 @@ def _feasible(
         notes=tuple(notes),
         alternatives=alternatives,
         robust_schedule=fam is None or fam.robust,
+        schedule_flow=cand.pump.flow if fam is None else fam.sp.qp,
     )
 
 
@@ -682,7 +687,7 @@ def _assemble(problem: Problem, fam: Family | None, cand: Candidate, u, oil, ret
     s = problem.settings
     n, dt = problem.n, problem.dt
     time_s = np.arange(n) * dt
-    qp = cand.pump.flow
+    qp = cand.pump.flow if fam is None else fam.sp.qp
     if fam is None:
         p_sys = float(problem.p_end.max())
         relief = s.relief_setting(p_sys)

@@ -214,9 +214,21 @@ class Design:
         The power–capex trade-off behind the lexicographic choice: the chosen level first,
         then each larger motor rating that buys a cheaper supply.
     robust_schedule : bool
-        True when the one open-loop schedule holds at every temperature of the range; False
-        when it is planned at the middle temperature (the pressure switch then adapts at the
-        extremes, as the verification shows).
+        True when the open-loop schedule is planned against the bounds of both temperature
+        ends at once; False when the bank's window at the two ends does not overlap widely
+        enough and it is planned at the coldest temperature (at the hot end the gas holds more
+        pressure and the relief valve caps the store; the verification shows whether it
+        holds there).
+    schedule_flow : float | None
+        Pump flow the schedule was planned with, [m³/s]: the worn pump's (catalogue flow ×
+        (1 − flow margin)), so that the schedule holds with a worn pump; a new pump's surplus
+        goes over the relief valve.  ``pump_loaded × schedule_flow − returned`` is the
+        schedule's ``pump_flow``; None: the pump's catalogue flow.
+    schedule_timed : bool
+        True when ``schedule`` is a timed load schedule proved by the verification
+        (:func:`stowflow.simulation.verify.verify` with ``timed_schedule``): its
+        ``pump_loaded`` is the load command, which a latching cut-out may end early; False for
+        the schedule model's plan, whose ``pump_flow`` gives the share of each step loaded.
     lower_bound_power : float
         Mean hydraulic power of the cycle (line loss included) over the best pump overall
         efficiency in the catalogue, [W]: a motor's rating is its shaft output, so no supply
@@ -243,11 +255,21 @@ class Design:
     notes: tuple[str, ...] = ()
     alternatives: tuple[Alternative, ...] = ()
     robust_schedule: bool = True
+    schedule_flow: float | None = None
+    schedule_timed: bool = False
 
     @property
     def feasible(self) -> bool:
         """True when a design was found."""
         return self.status in ("optimal", "feasible")
+
+    @property
+    def planned_flow(self) -> float:
+        """Pump flow the schedule was planned with, [m³/s] (:attr:`schedule_flow`, else the
+        pump's catalogue flow; nan without a pump)."""
+        if self.schedule_flow is not None:
+            return float(self.schedule_flow)
+        return self.pump.flow if self.pump is not None else float("nan")
 
     @property
     def installed_power(self) -> float:

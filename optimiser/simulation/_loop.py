@@ -198,7 +198,9 @@ def scalar_step(
             out["p_lo"] = min(out["p_lo"], line)
             out["p_hi"] = max(out["p_hi"], line)
             S, T, p, G = S1, T1, p1, G1
-    u_end = next((u for h, u in reversed(parts) if h > 0), st.u)
+    # The state after the step is its last part's (an empty last part carries a controller's
+    # state, e.g. the schedule's cut-out latch).
+    u_end = parts[-1][1] if parts else st.u
     return State(S, T, p, G, int(u_end)), out
 
 

@@ -122,7 +122,9 @@ def schedule_fraction(design: Design, cycle: DutyCycle) -> np.ndarray | None:
     ``pump_flow`` is what the pump puts into the pressure line and ``spill`` what leaves it
     over the relief valve at a full store; the stored oil of the schedule must follow
     ``pump_flow − spill − demand``, which is checked.  The fraction is ``pump_flow`` over the
-    full pump flow: the simulator's own relief valve takes the spill.
+    flow the schedule was planned with (:attr:`~stowflow.search.solution.Design.planned_flow`,
+    the worn pump's): the share of each step the pump is loaded, which the simulator applies
+    to the pump flow of its run (catalogue or worn); its own relief valve takes the spill.
 
     Parameters
     ----------
@@ -149,7 +151,7 @@ def schedule_fraction(design: Design, cycle: DutyCycle) -> np.ndarray | None:
         raise SettingsError(
             f"design schedule has {len(sch)} steps but cycle '{cycle.name}' has {n}"
         )
-    qp = design.pump.flow
+    qp = design.planned_flow  # the fraction is of the flow the schedule was planned with
     pf = sch["pump_flow [m³/s]"].to_numpy(float)
     spill = sch["spill [m³/s]"].to_numpy(float) if "spill [m³/s]" in sch else np.zeros(n)
     oil = sch["accumulator_oil [m³]"].to_numpy(float)

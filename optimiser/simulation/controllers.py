@@ -21,6 +21,7 @@ bisection on full simulations.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Callable
 from dataclasses import dataclass
 
@@ -40,30 +41,118 @@ MAX_EVALUATIONS = 7
 
 
 class ScheduleController(Controller):
-    """The design's load/unload schedule, followed open loop.
+    """The design's load/unload schedule, followed open loop, with a high-pressure cut-out.
 
-    In each step the pump delivers the schedule's flow, ``fraction × full flow``, spread
-    evenly over the step, so that the stored oil follows the schedule model's straight line
-    between step ends (:mod:`stowflow.search.schedule`).  Physically: where the fraction is below 1
-    the unloading valve opens part-way through the step and the pump idles at the standby
-    pressure for ``(1 − fraction)·dt`` (its energy is counted so); for the switching limits
-    each such step counts as one unload and one load (the fewest the valve can make).
+    In each step the pump delivers ``fraction × full flow`` of the run's pump (catalogue or
+    worn), spread evenly over the step, so that the stored oil follows the schedule model's
+    straight line between step ends (:mod:`stowflow.search.schedule`).  Physically: where the
+    fraction is below 1 the unloading valve opens part-way through the step and the pump idles
+    at the standby pressure for ``(1 − fraction)·dt`` (its energy is counted so); for the
+    switching limits each such step counts as one unload and one load (the fewest the valve
+    can make).
+
+    With ``cut_out`` the schedule is a timed load schedule with a latching high-pressure
+    cut-out, the way a control system runs one: the pump loads at each planned load start and
+    unloads at the planned end of the loaded stretch, or earlier when the pressure reaches the
+    cut-out; after a cut-out it stays unloaded until the next planned load start.  A pump
+    that delivers more than the schedule was planned for (a new pump against a schedule
+    planned for a worn one) so unloads early instead of pushing its surplus over the relief
+    valve, and the cut-out makes no load event of its own.  The cut-out acts in fully loaded
+    steps.
 
     Parameters
     ----------
     fraction : numpy.ndarray
-        Per step, the schedule's delivery over the full pump flow, [-].
+        Per step, the schedule's delivery over the flow it was planned with, [-].
+    cut_out : float, optional
+        Where the cut-out acts, absolute, [Pa] (None: open loop throughout).
+    nominal : float, optional
+        The cut-out setting as stated, when it acts elsewhere within its repeatability;
+        :meth:`setpoints` reports it, [Pa].  Default: ``cut_out``.
+    min_off : float
+        Least time the pump stays unloaded after a cut-out, [s] (the least unloaded dwell).
     """
 
     name = "schedule"
 
-    def __init__(self, fraction: np.ndarray) -> None:
+    def __init__(
+        self,
+        fraction: np.ndarray,
+        cut_out: float | None = None,
+        nominal: float | None = None,
+        min_off: float = 0.0,
+    ) -> None:
         self.fraction = np.asarray(fraction, dtype=float)
+        self.cut_out = None if cut_out is None else float(cut_out)
+        self.nominal = self.cut_out if nominal is None else float(nominal)
+        self.min_off = float(min_off)
+        loaded = self.fraction > 0.0
+        n = self.fraction.size
+        # next_start[k]: the first load start ≥ k (n: none left in the cycle).  A loaded
+        # stretch starts where the step before is unloaded; a schedule loaded throughout
+        # starts at the cycle start (the machine's cycle signal re-arms the cut-out).
+        always = bool(loaded.all())
+        nxt = np.full(n + 1, n, dtype=int)
+        for k in range(n - 1, -1, -1):
+            nxt[k] = k if loaded[k] and (not loaded[k - 1] or (k == 0 and always)) else nxt[k + 1]
+        self._next_start, self._always = nxt, always
+        self._latched_in: int | None = None  # step of a cut-out found in the last pass
+        self._plan_k = 0  # first step of the last plan
+        self._prev_u = 1  # state given to the last plan
+        self._rearm = -np.inf  # earliest reload after the last cut-out, from cycle start, [s]
+
+    def initial_u(self) -> int:
+        """Armed (1): the pump follows the schedule until a cut-out latches it (0)."""
+        self._rearm, self._prev_u, self._latched_in = -np.inf, 1, None
+        return 1
 
     def plan(self, plant: Plant, k: int, u: int):
-        """One part per step, delivering ``fraction`` of the full flow."""
-        f = self.fraction[k:]
-        return np.full(f.size, plant.dt), f.copy(), np.zeros(f.size)
+        """One part per step, delivering ``fraction`` of the full flow; the state (second,
+        empty part) is 1 while armed and 0 from a cut-out to the next load start."""
+        f = self.fraction[k:].copy()
+        armed = np.ones(f.size)
+        if self.cut_out is not None:
+            if k == 0 and self._latched_in != 0:  # a new cycle
+                self._rearm -= plant.n * plant.dt
+            if u == 0 and self._prev_u == 1 and self._latched_in is None:
+                # Latched at the end of the step before, stepping through the relief valve.
+                self._rearm = k * plant.dt + self.min_off
+            if u == 0:
+                first = k + 1 if self._latched_in == k else k
+                stop = int(self._next_start[min(first, self.fraction.size)])
+                if self._always and stop < self.fraction.size:
+                    # Re-armed at the cycle start, but not before the least unloaded dwell.
+                    stop = max(stop, min(math.ceil(self._rearm / plant.dt - 1e-9), plant.n))
+                f[: stop - k] = 0.0
+                armed[: stop - k] = 0.0
+        self._latched_in, self._plan_k, self._prev_u = None, k, u
+        return np.full(f.size, plant.dt), f, armed
+
+    def find_switch(self, plant: Plant, st: State, ps: Pass) -> tuple[int, float] | None:
+        """The first fully loaded, armed step whose pressure reaches the cut-out, and where in
+        the step (linear interpolation)."""
+        if self.cut_out is None or ps.p_end.size == 0:
+            return None
+        cond = (ps.u1 >= 1.0) & (ps.u2 >= 1.0) & (ps.h1 >= plant.dt) & (ps.p_end >= self.cut_out)
+        if not cond.any():
+            return None
+        j = int(np.argmax(cond))
+        p0 = float(st.p) if j == 0 else float(ps.p_end[j - 1])
+        den = float(ps.p_end[j]) - p0
+        theta = 1.0 if den <= 0.0 else min(1.0, max(0.0, (self.cut_out - p0) / den))
+        self._latched_in = self._plan_k + j
+        self._rearm = (self._latched_in + theta) * plant.dt + self.min_off
+        self._prev_u = 0
+        return j, theta
+
+    def switch_at_end(self, plant: Plant, st: State) -> bool:
+        """At a step end reached step by step: an armed pump at or above the cut-out latches
+        (:meth:`plan` re-arms it at the next planned load start)."""
+        return self.cut_out is not None and st.u == 1 and st.p >= self.cut_out
+
+    def setpoints(self) -> dict:
+        """``cut_out`` [Pa] (the stated setting) when the schedule has one."""
+        return {} if self.cut_out is None else {"cut_out": self.nominal}
 
 
 class HysteresisController(Controller):

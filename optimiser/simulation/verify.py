@@ -78,6 +78,7 @@ __all__ = [
     "ControllerRun",
     "Verification",
     "plant_for",
+    "schedule_command",
     "schedule_fraction",
     "simulate",
     "switch_controller",
@@ -248,6 +249,10 @@ class Verification:
         Wall-clock time of the verification, [s].
     notes : tuple[str, ...]
         What a reader should know (e.g. the steady-state criterion).
+    schedule : pandas.DataFrame or None
+        The timed load schedule this verification derived and proved (``timed_schedule``),
+        in the columns of :attr:`Design.schedule <stowflow.search.solution.Design.schedule>`;
+        None when none was derived or none held.
     """
 
     passed: bool
@@ -261,6 +266,7 @@ class Verification:
     gas_model: str
     elapsed: float = 0.0
     notes: tuple[str, ...] = ()
+    schedule: pd.DataFrame | None = field(default=None, repr=False)
 
     def run(self, controller: str, which: str, worn: bool = False) -> ControllerRun | None:
         """The run of ``controller`` at the ``"cold"`` or ``"hot"`` end, if simulated (at
@@ -287,12 +293,12 @@ def _check_design(design: Design) -> None:
 def _make_controller(name, design, cycle, settings, setpoints):
     """The controller object for a name and its settings ([Pa] absolute / stroke [-])."""
     if name == "schedule":
-        f = schedule_fraction(design, cycle)
+        f = schedule_command(design, cycle)
         if f is None:
             raise SettingsError(
                 "the design carries no schedule; the schedule controller cannot be simulated"
             )
-        return ScheduleController(f)
+        return schedule_controller(f, design, cycle, settings, setpoints)
     if name == "pressure-switch":
         return switch_controller(
             name, "pressure", setpoints["load_below"], setpoints["unload_above"], settings
@@ -393,6 +399,38 @@ def worn_design(design: Design, settings: DesignSettings) -> Design:
         overall_efficiency=pump.overall_efficiency * keep,
     )
     return replace(design, pump=worn)
+
+
+def schedule_controller(
+    fraction: np.ndarray,
+    design: Design,
+    cycle: DutyCycle,
+    settings: DesignSettings,
+    setpoints: dict | None = None,
+) -> ScheduleController:
+    """The design's schedule with its latching high-pressure cut-out.
+
+    The cut-out is set where the pressure switch unloads (``setpoints["cut_out"]`` or
+    ``setpoints["unload_above"]`` when given, else the design's maximum working pressure,
+    capped like the switch's, :func:`~stowflow.simulation._setup.pressure_search`), and acts at
+    the low end of its repeatability, the store's worst case.  A pump-only design has none,
+    nor a plan that keeps the pump loaded throughout with the relief valve as its planned
+    overflow.
+    """
+    if design.bank is None or _relief_by_design(design):
+        return ScheduleController(fraction)
+    given = setpoints or {}
+    cut = given.get("cut_out", given.get("unload_above"))
+    if cut is None:
+        cut = pressure_search(
+            design, settings, plant_for(design, cycle, settings, settings.t_min)
+        ).off
+    return ScheduleController(
+        fraction,
+        float(settings.worst_setting(cut)),
+        nominal=float(cut),
+        min_off=settings.min_unloaded_dwell,
+    )
 
 
 def switch_controller(
@@ -519,18 +557,142 @@ def _wanted_controllers(controllers: Iterable[str]) -> tuple[str, ...]:
     return wanted
 
 
-def _schedule_runs(runner: _Runner, tick: _Progress, notes: list[str]) -> list[ControllerRun]:
+def _schedule_runs(
+    runner: _Runner, given: dict, tick: _Progress, notes: list[str]
+) -> list[ControllerRun]:
     """The design's own schedule, open loop, at every temperature (none without one)."""
-    f = schedule_fraction(runner.design, runner.cycle)
+    f = schedule_command(runner.design, runner.cycle)
     if f is None:
         notes.append("the design carries no schedule: schedule controller not simulated")
         return []
-    ctrl = ScheduleController(f)
+    ctrl = schedule_controller(f, runner.design, runner.cycle, runner.s, given)
     runs = []
     for cond in runner.plants:
         tick("schedule")
         runs.append(runner.run("schedule", ctrl, cond, "schedule"))
     return runs
+
+
+def schedule_command(design: Design, cycle: DutyCycle) -> np.ndarray | None:
+    """What the schedule controller follows, per step (None without a schedule).
+
+    For a timed schedule (:attr:`Design.schedule_timed
+    <stowflow.search.solution.Design.schedule_timed>`) the load command, ``pump_loaded`` (1:
+    loaded; the cut-out of :func:`schedule_controller` may unload it earlier); otherwise the
+    share of each step the pump delivers
+    (:func:`~stowflow.simulation._setup.schedule_fraction`).  Both are checked against the
+    cycle and the volume balance first, [-].
+    """
+    f = schedule_fraction(design, cycle)
+    if f is None or not design.schedule_timed or design.bank is None or _relief_by_design(design):
+        return f
+    return (design.schedule["pump_loaded [-]"].to_numpy(float) > 0) * 1.0
+
+
+def _relief_by_design(design: Design) -> bool:
+    """Whether the design's plan keeps the pump loaded throughout with the relief valve as
+    its planned overflow (the switching limits allow no load event in a cycle): its schedule
+    then runs without a cut-out."""
+    sch = design.schedule
+    if sch is None or sch.empty:
+        return False
+    loaded = sch["pump_loaded [-]"].to_numpy(float)
+    spill = sch["spill [m³/s]"].to_numpy(float)
+    return bool(np.all(loaded > 0) and np.any(spill > 0))
+
+
+def _timing_candidates(runner: _Runner, sw_runs: list) -> list[tuple[str, np.ndarray]]:
+    """Binary load plans to derive a timed schedule from, in order: the design's own plan,
+    then the pressure switch's timing at the coldest temperature with the worn pump."""
+    out = []
+    sch = runner.design.schedule
+    if sch is not None and not sch.empty and len(sch) == runner.cycle.n_steps:
+        out.append(("the design's plan", (sch["pump_loaded [-]"].to_numpy(float) > 0) * 1.0))
+    worn = any(r.worn for r in sw_runs)
+    ps = [r for r in sw_runs if r.controller == "pressure-switch" and r.worn == worn]
+    if ps:
+        r = min(ps, key=lambda r: r.temperature)
+        if r.period_cycles == 1:
+            loaded = r.trace["pump_loaded [-]"].to_numpy(float)
+            out.append(("the pressure switch's timing", (loaded > 1e-9) * 1.0))
+    return out
+
+
+def _schedule_from_runs(runner: _Runner, command: np.ndarray, cold, hot) -> pd.DataFrame:
+    """A timed schedule in the columns of ``Design.schedule``: the load command, and what
+    the pump and the store do at the coldest temperature with the worn pump (the flows, the
+    stored oil) and at the hottest (its pressure)."""
+    tr, plant = cold.trace, runner.plants[(cold.temperature, cold.worn)]
+    oil = tr["accumulator_oil [m³]"].to_numpy()
+    # The steady state repeats within the periodic tolerance: spread what is left of the
+    # cycle's closure over its steps, so that the table's oil balance closes exactly.
+    oil = oil + (cold.start[0] - oil[-1]) * np.arange(1, oil.size + 1) / oil.size
+    out = pd.DataFrame(
+        {
+            "demand [m³/s]": tr["demand [m³/s]"].to_numpy(),
+            "required_pressure [Pa]": plant.required,
+            "pump_loaded [-]": np.asarray(command, float).astype(int),
+            "pump_flow [m³/s]": tr["pump_flow [m³/s]"].to_numpy(),
+            "spill [m³/s]": tr["relief_flow [m³/s]"].to_numpy(),
+            "accumulator_oil [m³]": oil,
+            "pressure_cold [Pa]": tr["pressure [Pa]"].to_numpy(),
+            "pressure_hot [Pa]": hot.trace["pressure [Pa]"].to_numpy(),
+        },
+        index=tr.index,
+    )
+    out.attrs["source"] = "simulation"
+    return out
+
+
+def _timed_schedule_runs(
+    runner: _Runner, given: dict, sw_runs: list, tick: _Progress, notes: list[str]
+) -> tuple[list[ControllerRun], pd.DataFrame | None]:
+    """The timed load schedule to export, and its runs in every condition.
+
+    Each binary load command (:func:`_timing_candidates`) runs with the latching
+    high-pressure cut-out (:func:`schedule_controller`) in every condition (both temperature
+    ends, catalogue and worn flow), the coldest with the worn pump first; the first that
+    passes them all is the timed schedule, with the flows and the stored oil of that
+    first run.  When none does, the last one's runs are returned with no schedule: a
+    schedule that failed is never exported.
+    """
+    design, s = runner.design, runner.s
+    if _relief_by_design(design):
+        return _schedule_runs(runner, given, tick, notes), design.schedule
+    conds = list(runner.plants)
+    worn = any(w for _, w in conds)
+    cold = (min(T for T, _ in conds), worn)
+    hot = (max(T for T, _ in conds), worn)
+    runs: list[ControllerRun] = []
+    for label, u in _timing_candidates(runner, sw_runs):
+        ctrl = schedule_controller(u, design, runner.cycle, s, given)
+        runs = []
+        for cond in [cold, *(c for c in conds if c != cold)]:
+            tick("schedule")
+            runs.append(runner.run("schedule", ctrl, cond, f"schedule:{label}"))
+            if not runs[-1].passed:
+                break
+        if len(runs) == len(conds) and all(r.passed for r in runs):
+            by = {(r.temperature, r.worn): r for r in runs}
+            runs = [by[c] for c in conds]  # in the order of the other controllers' runs
+            notes.append(
+                f"schedule: timed from {label} with a latching cut-out at "
+                f"{bar_text(ctrl.nominal, s.p_ambient)}; it holds at both temperature ends with "
+                "a new and a worn pump"
+            )
+            if by[cold].period_cycles == 1 and by[hot].period_cycles == 1:
+                return runs, _schedule_from_runs(runner, u, by[cold], by[hot])
+            # Cycles that differ in the steady state (the cut-out acts in some): the flows and
+            # the stored oil shown are the design's quasi-static plan, the command its own.
+            plan = design.schedule.copy()
+            plan["pump_loaded [-]"] = u.astype(int)
+            plan.attrs["source"] = "plan"
+            return runs, plan
+    notes.append(
+        "schedule: no timed load schedule held at both temperature ends with a new and a worn "
+        "pump; none is exported (the pressure switch carries the cycle)"
+    )
+    return runs, None
 
 
 def _switch_runs(
@@ -592,13 +754,26 @@ def _check_switch_settings(runs: list, setpoints: dict, design: Design, s: Desig
 
 
 def _bank_runs(
-    runner: _Runner, wanted: tuple[str, ...], setpoints: dict | None, report, notes: list[str]
-) -> tuple[list[ControllerRun], dict]:
+    runner: _Runner,
+    wanted: tuple[str, ...],
+    setpoints: dict | None,
+    report,
+    notes: list[str],
+    derive: bool = False,
+) -> tuple[list[ControllerRun], dict, pd.DataFrame | None]:
     """Every wanted controller of a design with a bank, each run with its integration error
-    estimated; returns the runs and the switch settings."""
+    estimated; returns the runs, the switch settings and the timed schedule derived (with
+    ``derive``, else None)."""
     tick = _Progress(report, len(wanted))
-    runs = _schedule_runs(runner, tick, notes) if "schedule" in wanted else []
-    sw_runs, derived = _switch_runs(runner, wanted, setpoints or {}, tick, notes)
+    given = setpoints or {}
+    timed = None
+    sw_runs, derived = _switch_runs(runner, wanted, given, tick, notes)
+    if "schedule" not in wanted:
+        runs = []
+    elif derive:
+        runs, timed = _timed_schedule_runs(runner, given | derived, sw_runs, tick, notes)
+    else:
+        runs = _schedule_runs(runner, given, tick, notes)
     runs += sw_runs
     report(0.96, "estimating the integration error")
     for i, r in enumerate(runs):
@@ -615,7 +790,7 @@ def _bank_runs(
     )
     if runner.limits is None:
         notes.append("discharge limits: catalogue rows and default type rules")
-    return runs, derived
+    return runs, derived, timed
 
 
 def _verdict(
@@ -669,6 +844,7 @@ def verify(
     progress: Callable[[float, str], None] | None = None,
     limits: dict | None = None,
     setpoints: dict | None = None,
+    timed_schedule: bool = False,
 ) -> Verification:
     """Verify a design in the time domain at the coldest and the hottest temperature.
 
@@ -690,6 +866,10 @@ def verify(
     setpoints : dict, optional
         Switch settings to check instead of deriving them: ``load_below``/``unload_above``
         [Pa] absolute and/or ``load_below_stroke``/``unload_above_stroke`` [-].
+    timed_schedule : bool
+        Derive the timed load schedule to export from the design's plan (or, when that does
+        not hold, from the pressure switch's timing) and verify it in place of the plan
+        (:func:`_timed_schedule_runs`); the schedule is in :attr:`Verification.schedule`.
 
     Returns
     -------
@@ -719,5 +899,8 @@ def verify(
         notes.append("pump-only supply: always loaded against the relief valve (no switching)")
     else:
         runner = _Runner(design, cycle, s, limits)
-        runs, derived = _bank_runs(runner, wanted, setpoints, report, notes)
+        runs, derived, timed = _bank_runs(
+            runner, wanted, setpoints, report, notes, derive=timed_schedule
+        )
+        return replace(_verdict(design, s, runs, derived, notes, t0, report), schedule=timed)
     return _verdict(design, s, runs, derived, notes, t0, report)

@@ -165,7 +165,7 @@ def test_design_json_of_an_infeasible_study():
 
 def test_schedule_csv_columns_and_rows(written):
     result, paths = written
-    df = pd.read_csv(paths["schedule.csv"], encoding="utf-8")
+    df = pd.read_csv(paths["schedule.csv"], encoding="utf-8", comment="#")
     assert tuple(df.columns[: len(SCHEDULE_COLUMNS)]) == SCHEDULE_COLUMNS
     cyc = result.cycle
     assert len(df) == cyc.n_steps
@@ -294,3 +294,23 @@ def test_design_json_of_a_verified_study():
     if result.design.feasible:
         source = rec["costs"]["options"]["design"]["energy_source"]
         assert source.startswith("time-domain verification")
+
+
+def test_schedule_csv_header_says_what_each_pressure_column_is_for(tmp_path):
+    # The comment lines name the temperature of each pressure column, the cut-out, the pump
+    # flow the schedule is planned for and its verdict; design.json says the schedule is timed.
+    result = forming_press_verified()
+    paths = write_study(result, tmp_path / "verified")
+    text = paths["schedule.csv"].read_text(encoding="utf-8")
+    head = [line[2:] for line in text.splitlines() if line.startswith("# ")]
+    s = result.settings
+    cold, hot = (f"{T - 273.15:g} °C" for T in (s.t_min, s.t_max))
+    joined = " ".join(head)
+    assert f"simulated at {cold}" in joined or f"pressure_cold are at {cold}" in joined
+    assert f"pressure_hot at {hot}" in joined
+    assert "cut-out" in joined and "worn pump" in joined
+    assert "passes" in joined
+    record = json.loads(paths["design.json"].read_text(encoding="utf-8"))
+    assert record["schedule_kind"] == "timed"
+    worn = result.design.pump.flow * (1 - s.flow_margin) / LPM
+    assert record["schedule_pump_flow_lpm"] == pytest.approx(worn, rel=1e-6)

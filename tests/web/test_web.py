@@ -204,7 +204,8 @@ def test_demo_button_runs_a_study_with_all_four_downloads(client):
     assert design["status"] == status["summary"]["status"]
     assert design["gas_model"] == "ideal"
     assert design["accumulator"]["type"] == "bladder"
-    header = client.get(f"{location}/files/schedule.csv").text.splitlines()[0]
+    lines = client.get(f"{location}/files/schedule.csv").text.splitlines()
+    header = next(line for line in lines if not line.startswith("#"))
     assert header.startswith("time [s],demand [L/min],pump_loaded")
 
     # The report for the page's frame: sandboxed, may fetch nothing.
@@ -239,6 +240,11 @@ def test_hostile_names_and_formula_cells_stay_inert(client):
 
     for name in ("spec.csv", "schedule.csv"):
         text = client.get(f"{location}/files/{name}").text
+        comments = [line for line in text.splitlines() if line.startswith("#")]
+        # schedule.csv's comment lines: no cell of theirs may start a formula either.
+        cells_c = [c for line in csv.reader(comments) for c in line]
+        assert not [c for c in cells_c if c.startswith(FORMULA_START)], name
+        text = "\n".join(line for line in text.splitlines() if not line.startswith("#"))
         rows = list(csv.DictReader(io.StringIO(text)))
         assert rows, name
         cells = [v for row in rows for k, v in row.items() if k in ("label", "item", "notes")]
