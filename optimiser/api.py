@@ -89,6 +89,9 @@ NUMBER_UNITS: dict[str, str] = {
     "precharge_step": "Pa",
     "time_limit": "s",
     "mip_gap": "",
+    "motor_voltage": "",
+    "motor_frequency": "",
+    "motor_poles": "",
     # cost settings (stowflow.io.options.COST_OPTIONS)
     "energy_price": "/J",
     "hours_per_year": "",

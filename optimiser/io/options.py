@@ -125,6 +125,21 @@ DESIGN_OPTIONS: dict[str, tuple[str, str, str]] = {
     ),
     "time_limit": ("time_limit", "time", "time limit of one schedule solve, e.g. 60s"),
     "mip_gap": ("mip_gap", "fraction", "relative MIP gap of the schedule model, e.g. 0.1%"),
+    "motor_voltage": (
+        "motor_voltage",
+        "number",
+        "motor supply voltage in V for the specification, e.g. 400 (default 400)",
+    ),
+    "motor_frequency": (
+        "motor_frequency",
+        "number",
+        "motor supply frequency in Hz for the specification, e.g. 50 (default 50)",
+    ),
+    "motor_poles": (
+        "motor_poles",
+        "integer",
+        "motor poles for the specification, e.g. 4 (default 4: 1500 rpm at 50 Hz)",
+    ),
 }
 
 
@@ -163,6 +178,9 @@ _DESIGN_PARSERS: dict[str, Callable[[str, str], Any]] = {
     ),
     "time_limit": lambda text, flag: parse_duration(text, flag, above=0.0),
     "mip_gap": lambda text, flag: parse_fraction(text, flag, above=0.0, below=0.5),
+    "motor_voltage": lambda text, flag: parse_number(text, flag, at_least=24.0, at_most=15000.0),
+    "motor_frequency": lambda text, flag: parse_number(text, flag, at_least=10.0, at_most=400.0),
+    "motor_poles": lambda text, flag: parse_whole(text, flag, at_least=2, at_most=16),
 }
 
 

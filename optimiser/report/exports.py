@@ -525,10 +525,10 @@ def neutralise(cell):
 def spec_rows(result) -> list[dict]:
     """The procurement line items of ``spec.csv``, one dict per row (cells not yet neutralised).
 
-    Columns: ``item``, ``description``, ``quantity [-]``, ``unit_price [CUR]``, ``total [CUR]``
-    and ``notes``, with CUR the currency label.  Unpriced items have empty prices; an
-    installation line appears when the installation factor is not 1, and a last line gives the
-    total of the priced lines (the capex of the comparison).
+    Columns: ``item``, ``description``, ``quantity [-]``, ``unit_price [CUR]``, ``total [CUR]``,
+    ``notes`` and ``sizing_rule``, with CUR the currency label.  Unpriced items have empty
+    prices; an installation line appears when the installation factor is not 1, and a last
+    line gives the total of the priced lines (the capex of the comparison).
     """
     cur = content.currency(result)
     up, tot = f"unit_price [{cur}]", f"total [{cur}]"
@@ -543,6 +543,7 @@ def spec_rows(result) -> list[dict]:
                 up: None,
                 tot: None,
                 "notes": f"study: {result.name}",
+                "sizing_rule": "",
             }
         )
         return rows
@@ -555,6 +556,7 @@ def spec_rows(result) -> list[dict]:
                 up: it.unit_price,
                 tot: it.total,
                 "notes": it.notes,
+                "sizing_rule": it.rule,
             }
         )
     o = result.comparison.option("design")
@@ -568,6 +570,7 @@ def spec_rows(result) -> list[dict]:
                 up: o.capex - o.component_price,
                 tot: o.capex - o.component_price,
                 "notes": "cost setting, not a quote",
+                "sizing_rule": "",
             }
         )
     rows.append(
@@ -578,6 +581,7 @@ def spec_rows(result) -> list[dict]:
             up: None,
             tot: o.capex if o.feasible else None,
             "notes": f"study: {result.name}; unpriced lines to be quoted",
+            "sizing_rule": "",
         }
     )
     return rows

@@ -426,13 +426,14 @@ def _section_specification(result) -> str:
     cur = content.currency(result)
     blocks = []
     for it in items:
-        rows = "".join(f"<tr><th>{e(k)}</th><td>{e(v)}</td></tr>" for k, v in it.details)
+        rule = (("sizing rule", it.rule),) if it.rule else ()
+        rows = "".join(f"<tr><th>{e(k)}</th><td>{e(v)}</td></tr>" for k, v in it.details + rule)
         blocks.append(
             f"<table><caption>{e(it.item)}</caption><tbody>{rows}"
             f"<tr><th>quantity</th><td>{it.quantity}</td></tr></tbody></table>"
         )
     bill = spec_rows(result)
-    keys = list(bill[0])
+    keys = [k for k in bill[0] if k != "sizing_rule"]  # the rules are in the items
     body, classes = [], []
     for r in bill:
         body.append(

@@ -101,6 +101,13 @@ class DesignSettings:
         steps into blocks (certified block aggregation), [-].
     p_ambient : float
         Ambient pressure, [Pa].  Default 101 325 Pa (standard atmosphere).
+    motor_voltage : float
+        Supply voltage of the electric motor, line to line, [V].  Default 400 V (the European
+        low-voltage three-phase supply); it goes into the specification, not the search.
+    motor_frequency : float
+        Supply frequency, [Hz].  Default 50 Hz.
+    motor_poles : int
+        Poles of the motor, [-].  Default 4 (synchronous speed 1500 rpm at 50 Hz).
     """
 
     t_min: float = celsius_to_kelvin(10.0)
@@ -129,6 +136,9 @@ class DesignSettings:
     time_limit: float = 60.0
     max_model_steps: int = 3000
     p_ambient: float = P_AMBIENT
+    motor_voltage: float = 400.0
+    motor_frequency: float = 50.0
+    motor_poles: int = 4
     extra: dict = field(default_factory=dict, compare=False, hash=False)
 
     def __post_init__(self) -> None:
@@ -199,6 +209,14 @@ class DesignSettings:
             raise bad(f"MIP gap must be in (0, 0.5), got {self.mip_gap}")
         if self.max_model_steps < 50:
             raise bad("max_model_steps must be ≥ 50")
+        if not (math.isfinite(self.motor_voltage) and 24.0 <= self.motor_voltage <= 15000.0):
+            raise bad(f"motor voltage must be 24 … 15000 V, got {self.motor_voltage!r}")
+        if not (math.isfinite(self.motor_frequency) and 10.0 <= self.motor_frequency <= 400.0):
+            raise bad(f"motor frequency must be 10 … 400 Hz, got {self.motor_frequency!r}")
+        if int(self.motor_poles) != self.motor_poles or not (
+            2 <= self.motor_poles <= 16 and self.motor_poles % 2 == 0
+        ):
+            raise bad(f"motor poles must be an even number 2 … 16, got {self.motor_poles!r}")
 
     def with_(self, **changes) -> DesignSettings:
         """Return a copy with some settings changed (validated again)."""
@@ -233,6 +251,9 @@ class DesignSettings:
             "mip_gap": self.mip_gap,
             "time_limit_s": self.time_limit,
             "ambient_pressure_bar": self.p_ambient / BAR,
+            "motor_voltage_v": self.motor_voltage,
+            "motor_frequency_hz": self.motor_frequency,
+            "motor_poles": self.motor_poles,
         }
         return out
 
