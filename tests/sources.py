@@ -39,6 +39,7 @@ __all__ = [
     "IEC_60034_30_1",
     "IEC_60072_1",
     "ISO_3",
+    "ISO_1219_1",
     "ISO_4413",
     "JOUKOWSKY_1900",
     "KORTEWEG_1878",
@@ -314,6 +315,18 @@ PED_2014_68_EU = Source(
     "1000-3000 III, > 3000 IV; V ≤ 1 L: PS ≤ 1000 bar sound engineering practice, above it "
     "III.  Article 4(1)(a)(i): 'volume greater than 1 L'.  Defer to the directive's text and "
     "to local codes.",
+)
+
+ISO_1219_1 = Source(
+    "ISO 1219-1",
+    'ISO 1219-1, "Fluid power systems and components - Graphical symbols and circuit '
+    "diagrams - Part 1: Graphical symbols for conventional use and data-processing "
+    'applications", International Organization for Standardization (2012).',
+    "from memory",
+    "Which graphical symbol stands for tank, electric motor, fixed and variable pump, filter, "
+    "cooler, relief valve, 2/2 solenoid valve, non-return valve, pressure switch, "
+    "accumulators with bladder, diaphragm, piston and gas bottle, shut-off valve, gauge and "
+    "enclosure (recalled, no copy at hand; edition not checked).",
 )
 
 ISO_4413 = Source(
