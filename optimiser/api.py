@@ -193,7 +193,7 @@ def _build_settings(
         if key == "temperature" and not isinstance(value, str):
             changes["t_min"], changes["t_max"] = _kelvin_pair(value)
             continue
-        if key == "types" and not isinstance(value, str):
+        if key in ("types", "prefer_types") and not isinstance(value, str):
             value = ",".join(str(t) for t in value)
         if not isinstance(value, str):
             if key not in NUMBER_UNITS and key != "min_dwell":

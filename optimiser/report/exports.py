@@ -20,6 +20,7 @@ from stowflow.errors import StowflowError
 from stowflow.io.jsonable import to_jsonable
 from stowflow.physics.gas import parse_process
 from stowflow.report import content, spec
+from stowflow.report.objective import objective_record
 from stowflow.units import kelvin_to_celsius, to_unit
 from stowflow.version import __version__
 
@@ -124,6 +125,7 @@ def design_record(result) -> dict:
     rec["energy_breakdown"] = _breakdown_record(design_option, result)
     rec["heat_load_kw"] = _num(to_unit(design_option.heat_load, "kW", "power"), 4)
     rec["search"] = _search_record(d)
+    rec["objective"] = objective_record(result)
     rec["attempts"] = [
         {
             "extra_pressure_max_bar": _num(to_unit(a.extra_pressure_max, "bar", "pressure"), 3),

@@ -20,7 +20,7 @@ import plotly.graph_objects as go
 import plotly.offline
 from stowflow.costs.comparison import KIND_WORDS
 from stowflow.cycle.duty import summarize
-from stowflow.report import content, figures, schematic, spec
+from stowflow.report import content, figures, objective, schematic, spec
 from stowflow.report.content import fmt, money
 from stowflow.report.exports import spec_rows
 from stowflow.units import kelvin_to_celsius, to_unit
@@ -468,7 +468,7 @@ def _section_specification(result) -> str:
         "quotes). Unpriced lines are not in the catalogue and must be quoted. The same lines "
         "are in <code>spec.csv</code>.</p>"
     )
-    parts.append(schematic.schematics_html(result))
+    parts.append(schematic.schematics_html(result) + objective.objective_html(result))
     parts.append("<h3>Items</h3>")
     parts.append(f"<div class='spec-grid'>{''.join(blocks)}</div>")
     table = spec.precharge_table(result)

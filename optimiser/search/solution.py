@@ -18,7 +18,8 @@ __all__ = ["Alternative", "Bank", "Baseline", "Design", "SearchStats"]
 
 @dataclass(frozen=True)
 class Alternative:
-    """A point of the power–capex trade-off: the cheapest supply at one motor rating.
+    """A supply the search found besides the chosen one: a point of the power–capex trade-off
+    (the cheapest supply at one motor rating) or a runner-up of the objective.
 
     Attributes
     ----------
@@ -30,6 +31,11 @@ class Alternative:
         Accumulators in the bank, [-].
     capex : float
         Bank + pump + motor price, [currency].
+    energy : float
+        Energy per cycle under an ideal pressure switch (quasi-static), [J] (nan: not
+        estimated).
+    gas_volume : float
+        Gas volume at precharge of the bank, [m³] (nan: not computed).
     """
 
     pump: PumpOption
@@ -37,6 +43,8 @@ class Alternative:
     option: AccumulatorOption | None
     count: int
     capex: float
+    energy: float = float("nan")
+    gas_volume: float = float("nan")
 
     @property
     def installed_power(self) -> float:
@@ -213,6 +221,9 @@ class Design:
     alternatives : tuple[Alternative, ...]
         The power–capex trade-off behind the lexicographic choice: the chosen level first,
         then each larger motor rating that buys a cheaper supply.
+    runners_up : tuple[Alternative, ...]
+        The next component sets in the order of the settings' objective, with their energy
+        and gas volume (the runners-up the report lists).
     robust_schedule : bool
         True when the one open-loop schedule holds at every temperature of the range; False
         when it is planned at the middle temperature (the pressure switch then adapts at the
@@ -243,6 +254,7 @@ class Design:
     notes: tuple[str, ...] = ()
     alternatives: tuple[Alternative, ...] = ()
     robust_schedule: bool = True
+    runners_up: tuple[Alternative, ...] = ()
 
     @property
     def feasible(self) -> bool:
