@@ -37,7 +37,7 @@ def _tco(result, capex: float, energy: float) -> float:
     )
 
 
-def _row(result, label, motor, option, count, capex, energy, gas) -> dict:
+def _row(result, label, pump, motor, option, count, capex, energy, gas) -> dict:
     bank = (
         "pump only"
         if option is None
@@ -46,6 +46,7 @@ def _row(result, label, motor, option, count, capex, energy, gas) -> dict:
     return {
         "design": label,
         "accumulators": bank,
+        "pump": pump.name,
         "installed power [kW]": kilowatts(motor.rated_power),
         "capex": capex,
         "tco": _tco(result, capex, energy),
@@ -57,7 +58,8 @@ def _row(result, label, motor, option, count, capex, energy, gas) -> dict:
 def runner_rows(result) -> list[dict]:
     """The chosen design and its runners-up, one dict per design (empty when infeasible).
 
-    Keys: ``design`` (chosen / runner-up k), ``accumulators``, ``installed power [kW]``,
+    Keys: ``design`` (chosen / runner-up k), ``accumulators``, ``pump`` (catalogue name),
+    ``installed power [kW]``,
     ``capex`` (catalogue prices), ``tco`` (with the cost settings, from the search's energy),
     ``gas volume [L]`` and ``energy per cycle [kWh]`` (quasi-static, ideal pressure switch,
     part-load losses: the same estimate for every row).
@@ -70,6 +72,7 @@ def runner_rows(result) -> list[dict]:
         _row(
             result,
             "chosen",
+            d.pump,
             d.motor,
             d.bank.option if d.bank else None,
             d.bank.count if d.bank else 0,
@@ -80,7 +83,9 @@ def runner_rows(result) -> list[dict]:
     ]
     for k, a in enumerate(d.runners_up, 1):
         label = f"runner-up {k}"
-        row = _row(result, label, a.motor, a.option, a.count, a.capex, a.energy, a.gas_volume)
+        row = _row(
+            result, label, a.pump, a.motor, a.option, a.count, a.capex, a.energy, a.gas_volume
+        )
         rows.append(row)
     return rows
 
@@ -108,6 +113,7 @@ def _rounded(v):
 _COLUMNS = (
     ("design", "design", ""),
     ("accumulators", "accumulators", ""),
+    ("pump", "pump", ""),
     ("installed power [kW]", "installed power [kW]", "g"),
     ("capex", "capex [{cur}]", ",.0f"),
     ("tco", "TCO [{cur}]", ",.0f"),
@@ -137,7 +143,7 @@ def objective_html(result) -> str:
 
     def cells(tag: str, values) -> str:
         return "".join(
-            f"<{tag} class='n'>{v}</{tag}>" if i > 1 else f"<{tag}>{v}</{tag}>"
+            f"<{tag} class='n'>{v}</{tag}>" if i > 2 else f"<{tag}>{v}</{tag}>"
             for i, v in enumerate(values)
         )
 
