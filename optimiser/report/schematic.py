@@ -357,6 +357,12 @@ def _valve_branch(parts, x: float, make) -> None:
     parts.append(_tank(x, 379))
 
 
+def _unloading_branch(parts, flow_lpm: float) -> None:
+    """The solenoid unloading valve to tank, labelled with the pump flow [L/min]."""
+    label = ["unloading valve", f"{flow_lpm:.1f} L/min"]
+    _valve_branch(parts, 380, lambda x, y: _two_way(x, y, label, "unloading valve"))
+
+
 def design_svg(result) -> str:
     """The schematic of the designed supply (empty string when there is no design)."""
     d, s = result.design, result.settings
@@ -370,13 +376,7 @@ def design_svg(result) -> str:
     x_end = 440.0
     if d.bank is not None:
         flow = lpm(d.pump.flow)
-        _valve_branch(
-            parts,
-            380,
-            lambda x, y: _two_way(
-                x, y, ["unloading valve", f"{flow:.1f} L/min"], "unloading valve"
-            ),
-        )
+        _unloading_branch(parts, flow)
         parts.append(_line((140, _BUS), (x_end - 14, _BUS)))
         parts.append(_check(x_end, _BUS, [f"{flow:.1f} L/min"]))
         parts.append(_bank(result, sizes))
@@ -466,14 +466,7 @@ def alternative_svg(result, baseline) -> str:
     setting = bar_g(b.pressure, result)
     _valve_branch(parts, 260, lambda x, y: _relief(x, y, ["relief valve"]))
     if b.kind == "fixed":
-        flow = lpm(b.pump.flow)
-        _valve_branch(
-            parts,
-            380,
-            lambda x, y: _two_way(
-                x, y, ["unloading valve", f"{flow:.1f} L/min"], "unloading valve"
-            ),
-        )
+        _unloading_branch(parts, lpm(b.pump.flow))
     x_cons = 900.0
     parts.append(_line((140, _BUS), (x_cons - 30, _BUS), (x_cons - 30, _BUS + 12)))
     parts.append(_consumer(x_cons, _BUS + 24, ["consumer", f"set {setting:.0f} bar"]))
