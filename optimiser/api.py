@@ -89,6 +89,9 @@ NUMBER_UNITS: dict[str, str] = {
     "precharge_step": "Pa",
     "time_limit": "s",
     "mip_gap": "",
+    "motor_voltage": "",
+    "motor_frequency": "",
+    "motor_poles": "",
     # cost settings (stowflow.io.options.COST_OPTIONS)
     "energy_price": "/J",
     "hours_per_year": "",
@@ -190,7 +193,7 @@ def _build_settings(
         if key == "temperature" and not isinstance(value, str):
             changes["t_min"], changes["t_max"] = _kelvin_pair(value)
             continue
-        if key == "types" and not isinstance(value, str):
+        if key in ("types", "prefer_types") and not isinstance(value, str):
             value = ",".join(str(t) for t in value)
         if not isinstance(value, str):
             if key not in NUMBER_UNITS and key != "min_dwell":

@@ -17,7 +17,7 @@ from pathlib import Path
 
 import numpy as np
 from stowflow.catalogue import Catalogue, default_catalogue_path, load_catalogue
-from stowflow.costs.comparison import Comparison, CostSettings, compare
+from stowflow.costs.comparison import Comparison, CostSettings, compare, energy_value
 from stowflow.cycle.duty import DutyCycle, load_cycle
 from stowflow.search.designer import design
 from stowflow.search.settings import DesignSettings
@@ -190,6 +190,8 @@ def _design_and_verify(study: Study, cycle: DutyCycle, catalogue: Catalogue, rep
     """Design, verify, and raise the requirement where the pressure fell short, at most
     :data:`MAX_TIGHTENINGS` times."""
     settings = study.settings
+    if settings.objective == "tco" and settings.energy_value == 0:
+        settings = settings.with_(energy_value=energy_value(study.costs, cycle.duration))
     loop = _Loop(extra=np.zeros(cycle.n_steps))
     for k in range(MAX_TIGHTENINGS + 1):
         span = 0.8 / (MAX_TIGHTENINGS + 1)

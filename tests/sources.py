@@ -33,10 +33,13 @@ __all__ = [
     "CONFIDENCE",
     "COOLPROP",
     "DEL_GROSSO_MADER_1972",
+    "EN_837_1",
+    "EN_10305_4",
     "ESPOSITO_2009",
     "IEC_60034_30_1",
     "IEC_60072_1",
     "ISO_3",
+    "ISO_1219_1",
     "ISO_4413",
     "JOUKOWSKY_1900",
     "KORTEWEG_1878",
@@ -188,7 +191,28 @@ ESPOSITO_2009 = Source(
     "against 73.4 gpm without.  Example 5-10: the pump of example 5-9 takes 12.57 kW; with "
     "an 85 % motor the motor input is 14.8 kW; 3000 h a year at 0.11 $/kWh cost about $4884. "
     "Inputs and printed results recalled (example numbers and the edition they belong to not "
-    "re-checked); the arithmetic between them is computed in the tests.",
+    "re-checked); the arithmetic between them is computed in the tests.  Chapter on hydraulic "
+    "conductors: recommended mean velocities, pump inlet lines 2-4 ft/s and working (pressure) "
+    "lines 7-20 ft/s (recalled; the line-sizing limits of 1 and 5 m/s lie inside them).",
+)
+
+EN_10305_4 = Source(
+    "EN 10305-4",
+    'EN 10305-4, "Steel tubes for precision applications - Technical delivery conditions - '
+    'Part 4: Seamless cold drawn tubes for hydraulic and pneumatic power systems", CEN.',
+    "from memory",
+    "Commonly stocked outside diameter x wall sizes of hydraulic tubes (6 x 1 ... 80 x 8 mm) "
+    "and the steel grade E235 with a least yield strength of 235 MPa (recalled, edition not "
+    "checked).",
+)
+
+EN_837_1 = Source(
+    "EN 837-1",
+    'EN 837-1, "Pressure gauges - Part 1: Bourdon tube pressure gauges - Dimensions, '
+    'metrology, requirements and testing", CEN.',
+    "from memory",
+    "The scale ranges 0-1, 1.6, 2.5, 4, 6, 10, 16, 25, 40, 60, 100, 160, 250, 400, 600, "
+    "1000 bar (recalled, edition not checked).",
 )
 
 WYLIE_STREETER_1993 = Source(
@@ -291,6 +315,18 @@ PED_2014_68_EU = Source(
     "1000-3000 III, > 3000 IV; V ≤ 1 L: PS ≤ 1000 bar sound engineering practice, above it "
     "III.  Article 4(1)(a)(i): 'volume greater than 1 L'.  Defer to the directive's text and "
     "to local codes.",
+)
+
+ISO_1219_1 = Source(
+    "ISO 1219-1",
+    'ISO 1219-1, "Fluid power systems and components - Graphical symbols and circuit '
+    "diagrams - Part 1: Graphical symbols for conventional use and data-processing "
+    'applications", International Organization for Standardization (2012).',
+    "from memory",
+    "Which graphical symbol stands for tank, electric motor, fixed and variable pump, filter, "
+    "cooler, relief valve, 2/2 solenoid valve, non-return valve, pressure switch, "
+    "accumulators with bladder, diaphragm, piston and gas bottle, shut-off valve, gauge and "
+    "enclosure (recalled, no copy at hand; edition not checked).",
 )
 
 ISO_4413 = Source(

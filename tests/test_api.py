@@ -265,6 +265,12 @@ TEXT = {
     "precharge_step": "2bar",
     "time_limit": "30s",
     "mip_gap": "0.5%",
+    "motor_voltage": "460",
+    "motor_frequency": "60",
+    "motor_poles": "6",
+    "objective": "capex",
+    "max_category": "iii",
+    "prefer_types": "piston,bladder",
     "energy_price": "0.2/kWh",
     "hours_per_year": "3000",
     "cycle_time": "40s",
@@ -292,6 +298,12 @@ SI = {
     "precharge_step": 2e5,
     "time_limit": 30,
     "mip_gap": 0.005,
+    "motor_voltage": 460,
+    "motor_frequency": 60,
+    "motor_poles": 6,
+    "objective": "capex",
+    "max_category": "III",
+    "prefer_types": ["piston", "bladder"],
     "energy_price": 0.2 / 3.6e6,
     "hours_per_year": 3000,
     "cycle_time": 40.0,
@@ -315,6 +327,7 @@ def test_settings_as_text_and_as_si_numbers_are_the_same_objects():
 
 def test_every_option_is_a_keyword_and_every_number_has_a_unit():
     text_only = {"temperature", "gas", "process", "types", "currency", "motor_sizing"}
+    text_only |= {"objective", "max_category", "prefer_types"}
     options = set(DESIGN_OPTIONS) | set(COST_OPTIONS)
     assert set(api.NUMBER_UNITS) == options - text_only
     assert set(TEXT) | {"process", "cycles_per_hour"} == options

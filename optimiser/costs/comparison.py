@@ -73,6 +73,7 @@ __all__ = [
     "compare",
     "discounted_payback",
     "electrical_power",
+    "energy_value",
     "present_value",
     "simple_payback",
 ]
@@ -179,6 +180,32 @@ class CostSettings:
 
 
 # -- yearly energy cost ---------------------------------------------------------------
+
+
+def energy_value(settings: CostSettings, duration: float) -> float:
+    """Present value of one joule per cycle over the horizon, per unit of catalogue price.
+
+    The total cost of ownership of a supply is ``f·capex + c_e·n·a·E`` (installation factor
+    ``f``, energy price ``c_e``, cycles a year ``n``, annuity factor ``a``, energy per cycle
+    ``E``), so ranking by TCO is ranking by ``capex + w·E`` with this ``w = c_e·n·a / f``: the
+    weight of the design search's ``"tco"`` objective.
+
+    Parameters
+    ----------
+    settings : CostSettings
+        Price, operating time, cycle time, horizon, discount rate, installation factor.
+    duration : float
+        The cycle's own length, [s] (the cycle time when the settings give none).
+
+    Returns
+    -------
+    float
+        ``w``, [currency/J].
+    """
+    cycle_time = duration if settings.cycle_time is None else max(settings.cycle_time, duration)
+    cycles = settings.operating_time / cycle_time
+    af = annuity_factor(settings.discount_rate, settings.years)
+    return settings.energy_price * cycles * af / settings.installation_factor
 
 
 def annual_energy_cost(power: float, settings: CostSettings) -> float:

@@ -30,6 +30,7 @@ from stowflow.io.quantities import (
     parse_whole,
 )
 from stowflow.physics.gas import GAS_MODELS
+from stowflow.search.objective import CATEGORIES, OBJECTIVES
 from stowflow.search.settings import ACCUMULATOR_TYPES, MOTOR_SIZING, DesignSettings
 from stowflow.units import si_factor
 
@@ -117,6 +118,25 @@ DESIGN_OPTIONS: dict[str, tuple[str, str, str]] = {
         "stuck unloading valve cannot overload it) or at the working pressure only (working)",
     ),
     "max_count": ("max_count", "integer", "most accumulators of one size in a bank"),
+    "objective": (
+        "objective",
+        "choice",
+        "what the search puts first, e.g. capex; power (least installed power, then capex; "
+        "default), capex (least capex, then power), tco (least total cost of ownership with "
+        "the cost settings, then power) or volume (least gas volume, then power and capex)",
+    ),
+    "max_category": (
+        "max_category",
+        "category",
+        "highest pressure-equipment category of one accumulator, e.g. III; SEP, I, II, III or "
+        "IV (a hint from PS x volume, from memory of Directive 2014/68/EU)",
+    ),
+    "prefer_types": (
+        "prefer_types",
+        "types",
+        "accumulator types in order of preference among designs tied on the objective, "
+        "comma-separated, e.g. piston,bladder",
+    ),
     "types": ("types", "types", "accumulator types to consider, comma-separated"),
     "precharge_step": (
         "precharge_step",
@@ -125,11 +145,30 @@ DESIGN_OPTIONS: dict[str, tuple[str, str, str]] = {
     ),
     "time_limit": ("time_limit", "time", "time limit of one schedule solve, e.g. 60s"),
     "mip_gap": ("mip_gap", "fraction", "relative MIP gap of the schedule model, e.g. 0.1%"),
+    "motor_voltage": (
+        "motor_voltage",
+        "number",
+        "motor supply voltage in V for the specification, e.g. 400 (default 400)",
+    ),
+    "motor_frequency": (
+        "motor_frequency",
+        "number",
+        "motor supply frequency in Hz for the specification, e.g. 50 (default 50)",
+    ),
+    "motor_poles": (
+        "motor_poles",
+        "integer",
+        "motor poles for the specification, e.g. 4 (default 4: 1500 rpm at 50 Hz)",
+    ),
 }
 
 
 #: The options whose text is one of a few words, with those words.
-OPTION_CHOICES: dict[str, tuple[str, ...]] = {"gas": GAS_MODELS, "motor_sizing": MOTOR_SIZING}
+OPTION_CHOICES: dict[str, tuple[str, ...]] = {
+    "gas": GAS_MODELS,
+    "motor_sizing": MOTOR_SIZING,
+    "objective": OBJECTIVES,
+}
 
 
 def _flag(key: str) -> str:
@@ -158,12 +197,24 @@ _DESIGN_PARSERS: dict[str, Callable[[str, str], Any]] = {
     "motor_sizing": lambda text, flag: parse_choice(text, flag, MOTOR_SIZING),
     "max_count": lambda text, flag: parse_whole(text, flag, at_least=1, at_most=64),
     "types": lambda text, flag: parse_choices(text, flag, ACCUMULATOR_TYPES),
+    "objective": lambda text, flag: parse_choice(text, flag, OBJECTIVES),
+    "max_category": lambda text, flag: _category(text, flag),
+    "prefer_types": lambda text, flag: parse_choices(text, flag, ACCUMULATOR_TYPES),
     "precharge_step": lambda text, flag: parse_pressure_difference(
         text, flag, at_least=None, above=0.0
     ),
     "time_limit": lambda text, flag: parse_duration(text, flag, above=0.0),
     "mip_gap": lambda text, flag: parse_fraction(text, flag, above=0.0, below=0.5),
+    "motor_voltage": lambda text, flag: parse_number(text, flag, at_least=24.0, at_most=15000.0),
+    "motor_frequency": lambda text, flag: parse_number(text, flag, at_least=10.0, at_most=400.0),
+    "motor_poles": lambda text, flag: parse_whole(text, flag, at_least=2, at_most=16),
 }
+
+
+def _category(text: str, flag: str) -> str:
+    """``iv`` or ``IV`` → ``"IV"``: a pressure-equipment category as the hint spells it."""
+    words = {c.lower(): c for c in CATEGORIES[1:]}
+    return words[parse_choice(text, flag, tuple(words))]
 
 
 def _differential(text: str, flag: str) -> tuple[float, float]:

@@ -20,6 +20,7 @@ from stowflow.errors import StowflowError
 from stowflow.io.jsonable import to_jsonable
 from stowflow.physics.gas import parse_process
 from stowflow.report import content, spec
+from stowflow.report.objective import objective_record
 from stowflow.units import kelvin_to_celsius, to_unit
 from stowflow.version import __version__
 
@@ -130,6 +131,7 @@ def design_record(result) -> dict:
     rec["energy_breakdown"] = _breakdown_record(design_option, result)
     rec["heat_load_kw"] = _num(to_unit(design_option.heat_load, "kW", "power"), 4)
     rec["search"] = _search_record(d)
+    rec["objective"] = objective_record(result)
     rec["attempts"] = [
         {
             "extra_pressure_max_bar": _num(to_unit(a.extra_pressure_max, "bar", "pressure"), 3),
@@ -611,10 +613,10 @@ def neutralise(cell):
 def spec_rows(result) -> list[dict]:
     """The procurement line items of ``spec.csv``, one dict per row (cells not yet neutralised).
 
-    Columns: ``item``, ``description``, ``quantity [-]``, ``unit_price [CUR]``, ``total [CUR]``
-    and ``notes``, with CUR the currency label.  Unpriced items have empty prices; an
-    installation line appears when the installation factor is not 1, and a last line gives the
-    total of the priced lines (the capex of the comparison).
+    Columns: ``item``, ``description``, ``quantity [-]``, ``unit_price [CUR]``, ``total [CUR]``,
+    ``notes`` and ``sizing_rule``, with CUR the currency label.  Unpriced items have empty
+    prices; an installation line appears when the installation factor is not 1, and a last
+    line gives the total of the priced lines (the capex of the comparison).
     """
     cur = content.currency(result)
     up, tot = f"unit_price [{cur}]", f"total [{cur}]"
@@ -629,6 +631,7 @@ def spec_rows(result) -> list[dict]:
                 up: None,
                 tot: None,
                 "notes": f"study: {result.name}",
+                "sizing_rule": "",
             }
         )
         return rows
@@ -641,6 +644,7 @@ def spec_rows(result) -> list[dict]:
                 up: it.unit_price,
                 tot: it.total,
                 "notes": it.notes,
+                "sizing_rule": it.rule,
             }
         )
     o = result.comparison.option("design")
@@ -654,6 +658,7 @@ def spec_rows(result) -> list[dict]:
                 up: o.capex - o.component_price,
                 tot: o.capex - o.component_price,
                 "notes": "cost setting, not a quote",
+                "sizing_rule": "",
             }
         )
     rows.append(
@@ -664,6 +669,7 @@ def spec_rows(result) -> list[dict]:
             up: None,
             tot: o.capex if o.feasible else None,
             "notes": f"study: {result.name}; unpriced lines to be quoted",
+            "sizing_rule": "",
         }
     )
     return rows

@@ -20,7 +20,7 @@ import plotly.graph_objects as go
 import plotly.offline
 from stowflow.costs.comparison import KIND_WORDS
 from stowflow.cycle.duty import summarize
-from stowflow.report import content, figures, spec
+from stowflow.report import content, figures, objective, schematic, spec
 from stowflow.report.content import fmt, money
 from stowflow.report.exports import spec_rows
 from stowflow.units import kelvin_to_celsius, to_unit
@@ -426,13 +426,14 @@ def _section_specification(result) -> str:
     cur = content.currency(result)
     blocks = []
     for it in items:
-        rows = "".join(f"<tr><th>{e(k)}</th><td>{e(v)}</td></tr>" for k, v in it.details)
+        rule = (("sizing rule", it.rule),) if it.rule else ()
+        rows = "".join(f"<tr><th>{e(k)}</th><td>{e(v)}</td></tr>" for k, v in it.details + rule)
         blocks.append(
             f"<table><caption>{e(it.item)}</caption><tbody>{rows}"
             f"<tr><th>quantity</th><td>{it.quantity}</td></tr></tbody></table>"
         )
     bill = spec_rows(result)
-    keys = list(bill[0])
+    keys = [k for k in bill[0] if k != "sizing_rule"]  # the rules are in the items
     body, classes = [], []
     for r in bill:
         body.append(
@@ -467,6 +468,7 @@ def _section_specification(result) -> str:
         "quotes). Unpriced lines are not in the catalogue and must be quoted. The same lines "
         "are in <code>spec.csv</code>.</p>"
     )
+    parts.append(schematic.schematics_html(result) + objective.objective_html(result))
     parts.append("<h3>Items</h3>")
     parts.append(f"<div class='spec-grid'>{''.join(blocks)}</div>")
     table = spec.precharge_table(result)

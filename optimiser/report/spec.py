@@ -9,12 +9,12 @@ from the :class:`StudyResult`; the precharge at other temperatures comes from
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
 from stowflow.fill.precharge import precharge_table as isochore_table
 from stowflow.physics.accumulator import pressure_equipment_category
+from stowflow.report.bom import RULES, SpecItem, circuit_items, motor_details
 from stowflow.report.content import (
     bar_delta,
     bar_g,
@@ -33,39 +33,6 @@ _PUMP_WORDS = {
     "pressure-compensated": "pressure-compensated",
     "load-sensing": "load-sensing",
 }
-
-
-@dataclass(frozen=True)
-class SpecItem:
-    """One procurement item.
-
-    Attributes
-    ----------
-    item : str
-        Short name (accumulator, pump, motor, ...).
-    description : str
-        What to buy, one line.
-    quantity : int
-        Units to buy, [-].
-    unit_price : float or None
-        Catalogue price of one unit (None: not in the catalogue, to be quoted), [currency].
-    notes : str
-        Catalogue name and remarks.
-    details : tuple of (str, str)
-        Property and value (with unit) for the item's table.
-    """
-
-    item: str
-    description: str
-    quantity: int
-    unit_price: float | None
-    notes: str
-    details: tuple[tuple[str, str], ...]
-
-    @property
-    def total(self) -> float | None:
-        """Quantity × unit price, [currency] (None when not priced)."""
-        return None if self.unit_price is None else self.quantity * self.unit_price
 
 
 def category_hint(result) -> tuple[str, str, float, float] | None:
@@ -92,8 +59,8 @@ def spec_items(result) -> list[SpecItem]:
         items.append(_accumulator_item(result))
     items += [_pump_item(result), _motor_item(result), _relief_item(result)]
     if d.bank is not None:
-        items += [_switch_item(result), _unloading_item(result), _SAFETY_BLOCK]
-    return items
+        items += [_switch_item(result), _unloading_item(result), _safety_block(result)]
+    return items + circuit_items(result)
 
 
 def _accumulator_item(result) -> SpecItem:
@@ -140,6 +107,7 @@ def _accumulator_item(result) -> SpecItem:
         f"catalogue: {opt.name}; category hint {cat} (from memory: check Directive "
         "2014/68/EU and local codes)",
         tuple(details),
+        RULES["accumulator"],
     )
 
 
@@ -165,6 +133,7 @@ def _pump_item(result) -> SpecItem:
             ("volumetric efficiency", fmt(100 * pump.volumetric_efficiency, ".1f", "%")),
             ("overall efficiency", fmt(100 * pump.overall_efficiency, ".1f", "%")),
         ),
+        RULES["pump"],
     )
 
 
@@ -184,7 +153,9 @@ def _motor_item(result) -> SpecItem:
             ("rated power", fmt(kilowatts(motor.rated_power), "g", "kW")),
             ("efficiency at rated load", fmt(100 * motor.efficiency, ".1f", "%")),
             ("efficiency class", cls),
+            *motor_details(result),
         ),
+        RULES["motor"],
     )
 
 
@@ -208,6 +179,7 @@ def _relief_item(result) -> SpecItem:
             ("flow capacity at least", fmt(flow, ".1f", "L/min")),
             ("protects", "pump line and accumulator bank" if d.bank else "pump line"),
         ),
+        RULES["relief valve"],
     )
 
 
@@ -222,22 +194,28 @@ def _unloading_item(result) -> SpecItem:
         None,
         "not in the catalogue: to be quoted",
         (("flow", fmt(flow, ".1f", "L/min")),),
+        RULES["unloading valve"],
     )
 
 
-#: One shut-off and safety block per bank (common practice, no published source).
-_SAFETY_BLOCK = SpecItem(
-    "accumulator safety block",
-    "shut-off and safety block with automatic discharge valve at shutdown and a "
-    "pressure gauge port",
-    1,
-    None,
-    "one per bank (common practice, no published source); not in the catalogue",
-    (
-        ("function", "isolate the bank, discharge it automatically at shutdown"),
-        ("gauge port", "to check 'discharged' before any work"),
-    ),
-)
+def _safety_block(result) -> SpecItem:
+    """One shut-off and safety block per bank, rated for the accumulator's PS."""
+    ps = bar_g(result.design.bank.option.max_pressure, result)
+    return SpecItem(
+        "accumulator safety block",
+        "shut-off and safety block with automatic discharge valve at shutdown, safety valve "
+        f"at or below {ps:.0f} bar and a pressure gauge port",
+        1,
+        None,
+        "one per bank (common practice, no published source); not in the catalogue",
+        (
+            ("function", "isolate the bank, discharge it automatically at shutdown"),
+            ("rated pressure at least", fmt(ps, ".0f", "bar")),
+            ("safety valve set at or below", fmt(ps, ".0f", "bar")),
+            ("gauge port", "to check 'discharged' before any work"),
+        ),
+        RULES["safety block"],
+    )
 
 
 def _switch_item(result) -> SpecItem:
@@ -265,7 +243,7 @@ def _switch_item(result) -> SpecItem:
                 )
             )
         desc = f"piston position switch: load below {lo:.0f} % stroke, unload above {hi:.0f} %"
-        return SpecItem("position switch", desc, 1, None, source, tuple(details))
+        return SpecItem("position switch", desc, 1, None, source, tuple(details), RULES["switch"])
     if ctrl == "schedule":
         return SpecItem(
             "load/unload control",
@@ -274,18 +252,25 @@ def _switch_item(result) -> SpecItem:
             None,
             "the verification recommends the open-loop schedule; no switch settings",
             (standby,),
+            "the verification found no switch band that holds; the schedule of the design "
+            "search runs the pump",
         )
     if "load_below" in sp:
         details = [
             ("load the pump below", fmt(sp["load_below"], ".1f", "bar")),
             ("unload the pump above", fmt(sp.get("unload_above"), ".1f", "bar")),
+            (
+                "differential",
+                fmt(sp.get("unload_above", math.nan) - sp["load_below"], ".1f", "bar"),
+            ),
             standby,
         ]
+        hi = sp.get("unload_above", math.nan)
         desc = (
-            f"pressure switch: load below {sp['load_below']:.1f} bar, unload above "
-            f"{sp.get('unload_above', math.nan):.1f} bar"
+            f"pressure switch or charging valve: load below {sp['load_below']:.1f} bar, unload "
+            f"above {hi:.1f} bar (differential {hi - sp['load_below']:.1f} bar)"
         )
-        return SpecItem("pressure switch", desc, 1, None, source, tuple(details))
+        return SpecItem("pressure switch", desc, 1, None, source, tuple(details), RULES["switch"])
     return SpecItem(
         "pressure switch",
         "pressure switch for load/unload (settings: run the verification)",
@@ -293,6 +278,7 @@ def _switch_item(result) -> SpecItem:
         None,
         "settings need the time-domain verification; not in the catalogue",
         (standby,),
+        RULES["switch"],
     )
 
 

@@ -23,6 +23,7 @@ from stowflow.cycle.duty import DutyCycle
 from stowflow.physics import accumulator as acc
 from stowflow.physics import gas
 from stowflow.physics.valves import RELIEF_OVERRIDE
+from stowflow.search import objective
 from stowflow.search.baseline import pump_only_alternatives
 from stowflow.search.milp import VALVE_MODES, ScheduleProblem, hidden_load_events, solve_schedule
 from stowflow.search.problem import Problem, make_problem
@@ -361,16 +362,24 @@ def _solve_ranked(problem: Problem, ranked: list[tuple], catalogue, notes, repor
 
 
 def _feasible(
-    search: _Search, best: tuple, n_ranked: int, solved: int, times: tuple[float, float], report
+    search: _Search,
+    best: tuple,
+    n_ranked: int,
+    solved: int,
+    times: tuple[float, float],
+    report,
+    runners: tuple[Alternative, ...] = (),
+    estimate: float = math.nan,
 ) -> Design:
     """The design of the best record; ``times`` are the schedule models' build and solve
-    times, [s]."""
+    times, [s]; ``runners`` the next designs in the objective's order and ``estimate`` the
+    chosen set's energy estimated as theirs, [J]."""
     problem, sr, notes = search.problem, search.screen, search.notes
     s = problem.settings
     energy, fam, cand, u, oil, returned, relief_flow, gap, bound, status, block = best
     if n_ranked > MILP_FAMILIES:
         notes.append(
-            f"{n_ranked} designs tie on installed power and capex; the one with the least "
+            f"{n_ranked} designs tie on {_TIE_WORDS[s.objective]}; the one with the least "
             "energy under an ideal pressure switch was optimised by the schedule model (level 3 "
             "is optimal for that component set and precharge)"
         )
@@ -397,6 +406,7 @@ def _feasible(
         "installed_power [W]": cand.motor.rated_power,
         "capex": cand.capex,
         "energy_per_cycle [J]": energy,
+        "energy_estimate [J]": estimate,
     }
     alternatives = tuple(
         Alternative(c.pump, c.motor, c.option, c.count, c.capex) for c in sr.frontier
@@ -429,6 +439,7 @@ def _feasible(
         notes=tuple(notes),
         alternatives=alternatives,
         robust_schedule=fam is None or fam.robust,
+        runners_up=runners,
         schedule_flow=cand.pump.flow if fam is None else fam.sp.qp,
     )
 
@@ -479,14 +490,97 @@ def design(
     notes = [f"gas process: {problem.process_note}"]
     search = _Search(problem, sr, lb_power, baselines, notes, t_start)
     if not sr.candidates:
-        return _infeasible(search, sr.reason)
+        reason = sr.reason
+        if s.max_category is not None:
+            reason += f" (accumulators capped at pressure-equipment category {s.max_category})"
+        return _infeasible(search, reason)
     # Level 3 among the ties: rank by the ideal controller, then the MILP for the best few.
     report(0.45, "ranking tied designs by energy")
-    ranked = _rank_ties(problem, sr.candidates, catalogue)
+    ties, runners = _objective_order(problem, sr, catalogue)
+    ranked = _rank_ties(problem, ties, catalogue)
     best, solved, t_build, t_solve = _solve_ranked(problem, ranked, catalogue, notes, report)
     if best is None:
         return _infeasible(search, "no schedule passed the full-resolution check")
-    return _feasible(search, best, len(ranked), solved, (t_build, t_solve), report)
+    estimate = _estimate(problem, best[2], catalogue)  # priced as the runners-up are
+    times = (t_build, t_solve)
+    return _feasible(search, best, len(ranked), solved, times, report, runners, estimate)
+
+
+#: What designs tied on, by objective (the designer's note).
+_TIE_WORDS = {
+    "power": "installed power and capex",
+    "capex": "capex and installed power",
+    "tco": "total cost of ownership and installed power",
+    "volume": "gas volume, installed power and capex",
+}
+#: Precharges per component set when only an estimate of its energy is needed.
+ESTIMATE_PRECHARGES = 3
+
+
+def _estimate(problem: Problem, cand: Candidate, catalogue: Catalogue) -> float:
+    """Electrical energy per cycle of a component set under an ideal pressure switch, with the
+    part-load loss models of its pump and motor, [J] (inf when no precharge works).
+
+    The store follows the lowest trajectory (loaded whenever it must rise, unloaded part-way
+    as soon as it may) at the middle temperature; a loaded step pays the shaft power at the
+    store's pressure, an unloaded one the circulation at the standby pressure.  A pump-only
+    set runs loaded against its relief setting all the time.  Few precharges are tried
+    (:data:`ESTIMATE_PRECHARGES`): it ranks candidates, the schedule model prices the chosen.
+    """
+    s = problem.settings
+    pump, motor, dt = cand.pump, cand.motor, problem.dt
+
+    def electrical(p_gauge):
+        return motor.losses.input_power(pump.losses.shaft_power(1.0, pump.speed, p_gauge))
+
+    if cand.option is None:
+        relief = s.relief_setting(float(np.max(cand.p_max))) - s.p_ambient
+        return float(electrical(relief)) * problem.n * dt
+    idx = np.arange(cand.precharges.size)
+    if idx.size > ESTIMATE_PRECHARGES:
+        idx = np.unique(np.linspace(0, idx.size - 1, ESTIMATE_PRECHARGES).round().astype(int))
+    fams = family_problems(problem, cand, cand.precharges[idx], cand.p_max[idx], catalogue)
+    standby = float(electrical(s.standby_pressure))
+    t_mid = 0.5 * (s.t_min + s.t_max)
+    best = math.inf
+    for fam in fams:
+        run = lowest_trajectory(
+            np.ones(problem.n), problem.demand, fam.sp.lower, fam.sp.upper, fam.sp.qp, dt
+        )
+        if run is None:
+            continue
+        loaded = np.clip(1.0 - run.spill / fam.sp.qp, 0.0, 1.0)
+        mid = 0.5 * (np.roll(run.oil, 1) + run.oil)
+        frac = np.clip(mid / fam.volume, 0.0, 0.999)
+        p = stored_pressure(problem, frac, fam.precharge, t_mid, fam.p_top) - s.p_ambient
+        e = float(np.sum(loaded * electrical(p) + (1.0 - loaded) * standby) * dt)
+        best = min(best, e)
+    return best
+
+
+def _objective_order(problem: Problem, sr: ScreenResult, catalogue: Catalogue):
+    """The tied candidates at the top of the settings' objective and the runners-up (as
+    :class:`Alternative` with their energy under an ideal pressure switch)."""
+    s = problem.settings
+    rules = {t: acc.rules_for(t, (catalogue.limits or {}).get(t)) for t in s.types}
+
+    def energy(cand) -> float:
+        return _estimate(problem, cand, catalogue)
+
+    top = sr.candidates if s.objective == "power" else None
+    ties, runners = objective.choose(sr.ranked, s, energy, rules, ties=top)
+    return ties, tuple(
+        Alternative(
+            c.pump,
+            c.motor,
+            c.option,
+            c.count,
+            c.capex,
+            energy=e,
+            gas_volume=objective.gas_volume(c, rules),
+        )
+        for c, e in runners
+    )
 
 
 def _process_label(problem: Problem) -> str:

@@ -37,6 +37,7 @@ from dataclasses import dataclass
 import numpy as np
 from stowflow.catalogue import AccumulatorOption, Catalogue, MotorOption, PumpOption
 from stowflow.physics import accumulator as acc
+from stowflow.search.objective import category_allowed
 from stowflow.search.problem import Problem
 from stowflow.search.schedule import cooling_loss, deficit_from_full, level_draws, refill_memory
 from stowflow.search.settings import DesignSettings
@@ -114,6 +115,9 @@ class ScreenResult:
         Binding limit when nothing meets the cycle.
     elapsed : float
         Wall-clock time, [s].
+    ranked : tuple[Candidate, ...]
+        Every combination found that meets the cycle: at the least power (and the frontier's)
+        with the ``"power"`` objective, at every motor rating the scan reached otherwise.
     frontier : tuple[Candidate, ...]
         The trade-off the lexicographic order hides: the cheapest combination at the least
         power, then at each larger motor rating that buys a cheaper supply (at most
@@ -127,6 +131,7 @@ class ScreenResult:
     reason: str | None
     elapsed: float
     frontier: tuple[Candidate, ...] = ()
+    ranked: tuple[Candidate, ...] = ()
 
 
 def pump_unload_limit(pump: PumpOption, motor: MotorOption, s: DesignSettings) -> float:
@@ -210,7 +215,11 @@ class _Screen:
         self.worn = 1.0 - s.flow_margin  # the design must hold with a worn pump
         self.motors = sorted(catalogue.motors, key=lambda m: (m.rated_power, m.price))
         self.pumps = sorted(catalogue.pumps, key=lambda p: (p.flow, p.price))
-        self.options = [o for o in catalogue.accumulators if o.type in s.types]
+        self.options = [
+            o
+            for o in catalogue.accumulators
+            if o.type in s.types and category_allowed(o, s.max_category, s.p_ambient)
+        ]
         self.rules = {t: acc.rules_for(t, (catalogue.limits or {}).get(t)) for t in s.types}
         self.evaluated = 0
         # Deficits depend on the pump only; so does the refill that warms the gas (auto).
@@ -400,7 +409,12 @@ class _Screen:
         self, min_power: float, report: Callable[[float, str], None] | None
     ) -> tuple[list[Candidate], float, list[Candidate]]:
         """Motor ratings in ascending order: (the combinations at the least power that has
-        any, that power [W], the power–capex frontier)."""
+        any, that power [W], the power–capex frontier, every combination found).  With an
+        objective other than ``"power"`` every rating is scanned (for ``"capex"`` until no
+        larger motor can beat the cheapest found)."""
+        exhaustive = self.s.objective != "power"
+        everything: list[Candidate] = []
+        least_pump = min((p.price for p in self.pumps), default=0.0)
         feasible: list[Candidate] = []
         best_power = math.nan
         frontier: list[Candidate] = []
@@ -410,7 +424,12 @@ class _Screen:
                 continue
             if report:
                 report(level_no / max(len(motor_powers), 1), f"motor {power / KW:g} kW")
+            if exhaustive and self.s.objective == "capex" and everything:
+                floor = min(m.price for m in self.motors if m.rated_power >= power) + least_pump
+                if floor > min(c.capex for c in everything):
+                    break  # no larger motor can make a cheaper supply
             found = self.level_candidates(power)
+            everything += found
             if not found:
                 continue
             cheapest = min(found, key=lambda c: c.capex)
@@ -419,9 +438,9 @@ class _Screen:
                 frontier.append(cheapest)
             elif cheapest.capex < frontier[-1].capex * (1 - 1e-9):
                 frontier.append(cheapest)  # more power buys a cheaper supply
-            if len(frontier) > FRONTIER_LEVELS or cheapest.option is None:
+            if not exhaustive and (len(frontier) > FRONTIER_LEVELS or cheapest.option is None):
                 break
-        return feasible, best_power, frontier
+        return feasible, best_power, frontier, everything
 
 
 def screen(
@@ -451,14 +470,24 @@ def screen(
     """
     t0 = time.perf_counter()
     sc = _Screen(problem, catalogue)
-    feasible, best_power, frontier = sc.scan(min_power, report)
+    feasible, best_power, frontier, everything = sc.scan(min_power, report)
     elapsed = time.perf_counter() - t0
     if not feasible:
         reason = infeasibility_reason(problem, catalogue, sc.deficit_max, sc.pumps)
         return ScreenResult((), math.nan, math.nan, sc.evaluated, reason, elapsed)
     best_capex = min(c.capex for c in feasible)
     ties = tuple(c for c in feasible if c.capex <= best_capex * (1 + 1e-12) + 1e-9)
-    return ScreenResult(ties, best_power, best_capex, sc.evaluated, None, elapsed, tuple(frontier))
+    ranked = everything if problem.settings.objective != "power" else [*feasible, *frontier]
+    return ScreenResult(
+        ties,
+        best_power,
+        best_capex,
+        sc.evaluated,
+        None,
+        elapsed,
+        tuple(frontier),
+        tuple(ranked),
+    )
 
 
 def infeasibility_reason(problem: Problem, catalogue: Catalogue, deficit_max, pumps) -> str:

@@ -13,6 +13,7 @@ import numpy as np
 from stowflow.catalogue import ACCUMULATOR_TYPES
 from stowflow.errors import SettingsError
 from stowflow.physics.valves import switch_band
+from stowflow.search.objective import CATEGORIES, OBJECTIVES
 from stowflow.units import BAR, P_AMBIENT, celsius_to_kelvin, kelvin_to_celsius
 
 __all__ = ["ACCUMULATOR_TYPES", "DEFAULT_SETTINGS", "MOTOR_SIZING", "DesignSettings"]
@@ -101,6 +102,25 @@ class DesignSettings:
         steps into blocks (certified block aggregation), [-].
     p_ambient : float
         Ambient pressure, [Pa].  Default 101 325 Pa (standard atmosphere).
+    motor_voltage : float
+        Supply voltage of the electric motor, line to line, [V].  Default 400 V (the European
+        low-voltage three-phase supply); it goes into the specification, not the search.
+    motor_frequency : float
+        Supply frequency, [Hz].  Default 50 Hz.
+    motor_poles : int
+        Poles of the motor, [-].  Default 4 (synchronous speed 1500 rpm at 50 Hz).
+    objective : str
+        What the search puts first (:data:`stowflow.search.objective.OBJECTIVES`): ``"power"``
+        (default: least installed power, then capex), ``"capex"``, ``"tco"`` or ``"volume"``.
+    max_category : str or None
+        Highest pressure-equipment category hint of one vessel
+        (:data:`stowflow.search.objective.CATEGORIES`); None: no cap.
+    prefer_types : tuple[str, ...]
+        Accumulator types in order of preference among designs tied on the objective.
+    energy_value : float
+        Present value of one joule per cycle over the cost horizon, per catalogue price unit,
+        [currency/J]: the weight of the energy in the ``"tco"`` objective.  Default 0; the
+        pipeline sets it from the cost settings.
     """
 
     t_min: float = celsius_to_kelvin(10.0)
@@ -129,6 +149,13 @@ class DesignSettings:
     time_limit: float = 60.0
     max_model_steps: int = 3000
     p_ambient: float = P_AMBIENT
+    motor_voltage: float = 400.0
+    motor_frequency: float = 50.0
+    motor_poles: int = 4
+    objective: str = "power"
+    max_category: str | None = None
+    prefer_types: tuple[str, ...] = ()
+    energy_value: float = 0.0
     extra: dict = field(default_factory=dict, compare=False, hash=False)
 
     def __post_init__(self) -> None:
@@ -199,6 +226,25 @@ class DesignSettings:
             raise bad(f"MIP gap must be in (0, 0.5), got {self.mip_gap}")
         if self.max_model_steps < 50:
             raise bad("max_model_steps must be ≥ 50")
+        if not (math.isfinite(self.motor_voltage) and 24.0 <= self.motor_voltage <= 15000.0):
+            raise bad(f"motor voltage must be 24 … 15000 V, got {self.motor_voltage!r}")
+        if not (math.isfinite(self.motor_frequency) and 10.0 <= self.motor_frequency <= 400.0):
+            raise bad(f"motor frequency must be 10 … 400 Hz, got {self.motor_frequency!r}")
+        if self.objective not in OBJECTIVES:
+            raise bad(f"objective '{self.objective}' is not one of {', '.join(OBJECTIVES)}")
+        if self.max_category is not None and self.max_category not in CATEGORIES:
+            raise bad(
+                f"category cap '{self.max_category}' is not one of {', '.join(CATEGORIES[1:])}"
+            )
+        unknown = set(self.prefer_types) - set(ACCUMULATOR_TYPES)
+        if unknown:
+            raise bad(f"unknown preferred type(s) {sorted(unknown)}")
+        if not (math.isfinite(self.energy_value) and self.energy_value >= 0):
+            raise bad(f"energy_value must be ≥ 0, got {self.energy_value!r}")
+        if int(self.motor_poles) != self.motor_poles or not (
+            2 <= self.motor_poles <= 16 and self.motor_poles % 2 == 0
+        ):
+            raise bad(f"motor poles must be an even number 2 … 16, got {self.motor_poles!r}")
 
     def with_(self, **changes) -> DesignSettings:
         """Return a copy with some settings changed (validated again)."""
@@ -233,6 +279,12 @@ class DesignSettings:
             "mip_gap": self.mip_gap,
             "time_limit_s": self.time_limit,
             "ambient_pressure_bar": self.p_ambient / BAR,
+            "motor_voltage_v": self.motor_voltage,
+            "motor_frequency_hz": self.motor_frequency,
+            "motor_poles": self.motor_poles,
+            "objective": self.objective,
+            "max_category": self.max_category,
+            "prefer_types": list(self.prefer_types),
         }
         return out
 

@@ -18,7 +18,8 @@ __all__ = ["Alternative", "Bank", "Baseline", "Design", "SearchStats"]
 
 @dataclass(frozen=True)
 class Alternative:
-    """A point of the power–capex trade-off: the cheapest supply at one motor rating.
+    """A supply the search found besides the chosen one: a point of the power–capex trade-off
+    (the cheapest supply at one motor rating) or a runner-up of the objective.
 
     Attributes
     ----------
@@ -30,6 +31,11 @@ class Alternative:
         Accumulators in the bank, [-].
     capex : float
         Bank + pump + motor price, [currency].
+    energy : float
+        Energy per cycle under an ideal pressure switch (quasi-static), [J] (nan: not
+        estimated).
+    gas_volume : float
+        Gas volume at precharge of the bank, [m³] (nan: not computed).
     """
 
     pump: PumpOption
@@ -37,6 +43,8 @@ class Alternative:
     option: AccumulatorOption | None
     count: int
     capex: float
+    energy: float = float("nan")
+    gas_volume: float = float("nan")
 
     @property
     def installed_power(self) -> float:
@@ -213,6 +221,9 @@ class Design:
     alternatives : tuple[Alternative, ...]
         The power–capex trade-off behind the lexicographic choice: the chosen level first,
         then each larger motor rating that buys a cheaper supply.
+    runners_up : tuple[Alternative, ...]
+        The next component sets in the order of the settings' objective, with their energy
+        and gas volume (the runners-up the report lists).
     robust_schedule : bool
         True when the open-loop schedule is planned against the bounds of both temperature
         ends at once; False when the bank's window at the two ends does not overlap widely
@@ -222,7 +233,7 @@ class Design:
     schedule_flow : float | None
         Pump flow the schedule was planned with, [m³/s]: the worn pump's (catalogue flow ×
         (1 − flow margin)), so that the schedule holds with a worn pump; a new pump's surplus
-        goes over the relief valve.  ``pump_loaded × schedule_flow − returned`` is the
+        ends at the schedule's cut-out.  ``pump_loaded × schedule_flow − returned`` is the
         schedule's ``pump_flow``; None: the pump's catalogue flow.
     schedule_timed : bool
         True when ``schedule`` is a timed load schedule proved by the verification
@@ -255,6 +266,7 @@ class Design:
     notes: tuple[str, ...] = ()
     alternatives: tuple[Alternative, ...] = ()
     robust_schedule: bool = True
+    runners_up: tuple[Alternative, ...] = ()
     schedule_flow: float | None = None
     schedule_timed: bool = False
 
