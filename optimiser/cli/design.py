@@ -12,15 +12,59 @@ from stowflow.io.numbers import display_value, fmt, shown
 from stowflow.io.options import DESIGN_OPTIONS, OPTION_CHOICES, design_settings
 from stowflow.io.quantities import parse_duration, parse_pressure_difference
 
-__all__ = ["add_design_options", "register", "run", "run_study", "settings_from_args"]
+__all__ = [
+    "PDF_MISSING_EXIT",
+    "add_design_options",
+    "add_pdf_options",
+    "finish_pdf",
+    "register",
+    "run",
+    "run_study",
+    "settings_from_args",
+]
+
+#: Exit code when ``--pdf`` could not write report.pdf (no headless Chromium, or it failed);
+#: every other output is written.
+PDF_MISSING_EXIT = 3
 
 _EXAMPLE = """\
 example:
   stowflow design duty_cycles/forming_press.csv --temperature 10..50 --out reports/press
 
 writes report.html, design.json, schedule.csv and spec.csv to the output folder
-(default reports/<cycle name>/).  Pressures are gauge; values take units (5bar, 1s, 10%).
+(default reports/<cycle name>/), and report.pdf with --pdf.  Pressures are gauge; values
+take units (5bar, 1s, 10%).
+
+exit codes: 0 designed; 1 no design found (the report says why); 2 bad input; 3 designed
+and written, but --pdf found no headless Chromium (or it failed): report.pdf is missing;
+130 interrupted.
 """
+
+
+def add_pdf_options(parser: argparse.ArgumentParser) -> None:
+    """Add ``--pdf`` and ``--paper`` (shared by ``design`` and ``demo``)."""
+    g = parser.add_argument_group("PDF")
+    g.add_argument(
+        "--pdf",
+        action="store_true",
+        help="also print the report to report.pdf with a headless Chromium (exit code 3, "
+        "with the other files written, when none is installed)",
+    )
+    g.add_argument(
+        "--paper",
+        choices=("a4", "letter"),
+        default="a4",
+        help="paper size of report.pdf (default: %(default)s)",
+    )
+
+
+def finish_pdf(args: argparse.Namespace, why_not: str | None, code: int, stream=None) -> int:
+    """Say why report.pdf is missing, on stderr; the exit code: ``code``, or
+    :data:`PDF_MISSING_EXIT` when ``--pdf`` wrote nothing and the design itself succeeded."""
+    if not getattr(args, "pdf", False) or why_not is None:
+        return code
+    (stream or sys.stderr).write(f"stowflow: report.pdf not written: {why_not}\n")
+    return PDF_MISSING_EXIT if code == 0 else code
 
 
 def add_design_options(parser: argparse.ArgumentParser) -> None:
@@ -99,6 +143,7 @@ def register(subparsers, common) -> None:
         "--step", metavar="TIME", help="time step of the cycle grid (default: automatic)"
     )
     add_design_options(p)
+    add_pdf_options(p)
     p.set_defaults(func=run)
 
 
@@ -136,7 +181,10 @@ def run_study(args: argparse.Namespace, cycle, *, out_default: Path, name: str |
     )
     with progress("designing", total=1.0) as update:
         result = run_pipeline(study, progress=lambda f, label: update(f, label=label))
-    paths = write_study(result, out)
+    if getattr(args, "pdf", False):
+        paths, args.pdf_why_not = write_study(result, out, pdf=args.paper)
+    else:
+        paths = write_study(result, out)
     return result, paths
 
 
@@ -237,4 +285,5 @@ def run(args: argparse.Namespace) -> int:
         print_json(json.loads(Path(paths["design.json"]).read_text(encoding="utf-8")))
     else:
         print_summary(result, paths)
-    return 0 if result.design.feasible else 1
+    code = 0 if result.design.feasible else 1
+    return finish_pdf(args, getattr(args, "pdf_why_not", None), code)

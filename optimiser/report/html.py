@@ -676,7 +676,13 @@ _PRINT_JS = """
 
 
 def _css() -> str:
-    return resources.files("stowflow.report").joinpath("style.css").read_text(encoding="utf-8")
+    """The style sheet, with each supply's colour from :data:`figures.COLOURS` (one source for
+    the charts and the tables)."""
+    sheet = resources.files("stowflow.report").joinpath("style.css").read_text(encoding="utf-8")
+    swatches = "".join(
+        f".swatch.{key} {{ background: {figures.COLOURS[key]}; }}\n" for key in figures.SUPPLY_KEYS
+    )
+    return sheet + swatches
 
 
 def render_html(result, *, generated: _dt.date | None = None) -> str:
