@@ -703,7 +703,7 @@ def render_html(result, *, generated: _dt.date | None = None) -> str:
     day = (generated or _dt.date.today()).isoformat()
     cyc = result.cycle
     toc = "".join(
-        f"<a href='#{sid}'><span>{k}</span>{e(title)}</a>"
+        f"<a href='#{sid}'>{f'<span>{k}</span>' if k else ''}{e(title)}</a>"
         for k, (sid, title, _) in enumerate(SECTIONS)
     )
     sections = "".join(render(result) for _, _, render in SECTIONS)
