@@ -710,7 +710,7 @@ def render_html(result, *, generated: _dt.date | None = None) -> str:
     t_lo = kelvin_to_celsius(result.settings.t_min)
     t_hi = kelvin_to_celsius(result.settings.t_max)
     meta = (
-        f"cycle {cyc.name} · {cyc.n_steps} steps of {cyc.dt:g} s · {t_lo:.0f} … {t_hi:.0f} °C · "
+        f"cycle {cyc.name} · {cyc.n_steps:,} steps of {cyc.dt:g} s · {t_lo:.0f} … {t_hi:.0f} °C · "
         # the file name only: a report travels, and a local folder means nothing to its reader
         f"catalogue {PurePath(result.catalogue.source).name} · {day} · stowflow {__version__}"
     )
