@@ -115,3 +115,56 @@ def test_hostile_strings_stay_plain_in_the_new_sections():
     text = visible_text(render_html(hostile()))
     assert "alert(" in text  # shown as text, escaped in the page (tests/report/test_report.py)
     assert not EXPONENT.findall(text)
+
+
+def _verified_or_plain():
+    return forming_press_verified() or forming_press()
+
+
+def test_setpoint_labels_are_legend_entries_not_floating_text():
+    from stowflow.report import figures
+
+    r = _verified_or_plain()
+    fig = figures.operation_figure(r)
+    texts = [a.text for a in fig.layout.annotations]
+    assert not any("bar" in t and ("load" in t or "relief" in t) for t in texts), texts
+    names = [t.name for t in fig.data if t.showlegend is not False]
+    assert any(n.startswith("relief valve ") for n in names)
+    sp = content.setpoints_bar(r)
+    if "load_below" in sp:
+        assert any(n.startswith("switch: load below ") for n in names)
+        assert any(n.startswith("switch: unload above ") for n in names)
+    # every axis carries a unit: a bracketed unit in its title, or named ticks (on/off)
+    for name in ("yaxis", "yaxis2", "yaxis4", "xaxis4"):
+        assert "[" in fig.layout[name].title.text, name
+    assert list(fig.layout.yaxis3.ticktext) == ["off", "on"]
+
+
+def test_a_supply_has_one_colour_in_every_chart_and_table():
+    from stowflow.report import figures
+
+    r = forming_press()
+    supply = {figures.COLOURS[k]: k for k in figures.SUPPLY_KEYS}
+    assert len(supply) == len(figures.SUPPLY_KEYS)  # no two supplies share a colour
+    seen = {}
+    for make in (figures.comparison_figure, figures.timeline_figure):
+        for trace in make(r).data:
+            colours = trace.marker.color if trace.type == "bar" else trace.line.color
+            for c in [colours] if isinstance(colours, str) else colours:
+                assert c in supply, c
+    for trace in figures.timeline_figure(r).data:
+        key = next(
+            o.key for o in r.comparison.options if figures._OPTION_NAMES[o.key] == trace.name
+        )
+        seen[key] = trace.line.color
+        assert trace.line.color == figures.COLOURS[key]
+    # lines and bars that are not a supply never borrow a supply's colour
+    others = [*figures.breakdown_figure(r).data, *figures.cycle_figure(r).data]
+    others += list(figures.operation_figure(_verified_or_plain()).data)
+    for trace in others:
+        colour = trace.marker.color if trace.type == "bar" else getattr(trace.line, "color", None)
+        assert colour not in supply, (trace.name, colour)
+    # the tables' swatches take the same colours
+    page = render_html(r)
+    for key in figures.SUPPLY_KEYS:
+        assert f".swatch.{key} {{ background: {figures.COLOURS[key]}; }}" in page
