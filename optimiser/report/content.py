@@ -643,9 +643,7 @@ def glance(result) -> list[tuple[str, str]]:
     the web page's study view."""
     d, c, v = result.design, result.comparison, result.verification
     rows: list[tuple[str, str]] = []
-    if not d.feasible:
-        rows.append(("design", f"none: {d.reason}"))
-    else:
+    if d.feasible:  # without a design the recommendation sentence gives the reason
         rows.append(("installed motor power", q(d.installed_power, "power")))
         if d.bank is not None:
             rows.append(

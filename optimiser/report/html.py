@@ -98,7 +98,7 @@ def _h2(sid: str, title: str) -> str:
 def _glance(result) -> str:
     """The key figures of the recommendation as a definition list."""
     rows = "".join(f"<dt>{e(k)}</dt><dd>{e(v)}</dd>" for k, v in content.glance(result))
-    return f"<dl class='glance'>{rows}</dl>"
+    return f"<dl class='glance'>{rows}</dl>" if rows else ""
 
 
 def _section_summary(result) -> str:
