@@ -344,7 +344,8 @@ def _outcome(
     if len(attempts) > 1:
         raised = max(a.extra_pressure_max for a in attempts)
         notes.append(
-            f"the design was repeated {len(attempts) - 1} time(s) after the verification"
+            f"the design was repeated {len(attempts) - 1} "
+            f"{'time' if len(attempts) == 2 else 'times'} after the verification"
             + (f", the requirement raised by up to {raised / BAR:.1f} bar" if raised > 0 else "")
             + (", before it passed" if verification is not None and verification.passed else "")
         )

@@ -9,6 +9,7 @@ from collections.abc import Iterable, Sequence
 from typing import Any
 
 from stowflow.io.jsonable import to_jsonable
+from stowflow.io.numbers import number
 
 __all__ = ["fixed", "print_json", "print_table", "progress"]
 
@@ -29,7 +30,7 @@ def fixed(x: float, decimals: int = 1) -> str:
     """
     x = float(x)
     if not math.isfinite(x) or abs(x) >= FIXED_LIMIT:
-        return f"{x:.4g}"
+        return number(x, 4)  # ×10 form, never an "e" exponent
     return f"{x:.{decimals}f}"
 
 

@@ -15,6 +15,7 @@ from stowflow.catalogue import ACCUMULATOR_TYPES
 from stowflow.cli._common import allow_negative_ranges
 from stowflow.cli._output import print_json, print_table
 from stowflow.errors import SettingsError
+from stowflow.io.numbers import number
 from stowflow.io.quantities import (
     parse_choice,
     parse_density,
@@ -334,7 +335,7 @@ def run_duty(args: argparse.Namespace) -> int:
 def _f(x, digits: int = 4) -> str:
     if x is None or (isinstance(x, float) and math.isnan(x)):
         return "–"
-    return "0" if abs(x) < 1e-9 else f"{x:.{digits}g}"
+    return "0" if abs(x) < 1e-9 else number(x, digits, max_decimals=digits - 1, trim=True)
 
 
 def _frame(records: list[dict], title: str) -> None:

@@ -8,10 +8,12 @@ mean demand, the volume per cycle, the pressures and the hydraulic power.
 from __future__ import annotations
 
 import argparse
+import re
 import textwrap
 
 from stowflow.cli._output import print_json, print_table
 from stowflow.cycle.duty import DEFAULT_MAX_STEPS, load_cycle, summarize
+from stowflow.io.numbers import number
 from stowflow.io.quantities import parse_duration, parse_pressure_difference, parse_whole
 
 __all__ = ["register", "run"]
@@ -48,6 +50,18 @@ _ROWS = (
     ("pump_only_flow_lpm", "pump-only supply: flow", "L/min", "{:.4g}"),
     ("pump_only_hydraulic_power_kw", "pump-only supply: hydraulic power", "kW", "{:.4g}"),
 )
+
+
+def _show(spec: str, value) -> str:
+    """A summary value by its row's format: ``{:.Ng}`` as N significant digits and ``{:.Nf}``
+    as N decimals, through :func:`stowflow.io.numbers.number` (no exponent notation)."""
+    m = re.fullmatch(r"\{:\.(\d)([gf])\}", spec)
+    if m is None:
+        return spec.format(value)
+    n = int(m.group(1))
+    if m.group(2) == "f":
+        return number(value, n + 1, max_decimals=n)
+    return number(value, n, max_decimals=n - 1, trim=True)
 
 
 def register(subparsers, common: argparse.ArgumentParser) -> None:
@@ -103,7 +117,7 @@ def run(args: argparse.Namespace) -> int:
     rows = []
     for key, shown, unit, fmt in _ROWS:
         value = summary[key]
-        rows.append((shown, "n/a" if value is None else fmt.format(value), unit))
+        rows.append((shown, "n/a" if value is None else _show(fmt, value), unit))
     print_table(rows, title=f"duty cycle '{summary['name']}' ({summary['source']})")
     for note in summary["notes"]:
         print(f"note: {note}")

@@ -6,7 +6,13 @@ import argparse
 from pathlib import Path
 
 from stowflow.catalogue import default_catalogue_path
-from stowflow.cli.design import add_design_options, print_summary, run_study
+from stowflow.cli.design import (
+    add_design_options,
+    add_pdf_options,
+    finish_pdf,
+    print_summary,
+    run_study,
+)
 from stowflow.errors import CycleError
 
 __all__ = ["DEMO_CYCLES", "register", "run"]
@@ -37,6 +43,7 @@ def register(subparsers, common) -> None:
         "--out", metavar="DIR", default=None, help="output folder (default reports/demo/)"
     )
     add_design_options(p)
+    add_pdf_options(p)
     p.set_defaults(func=run)
 
 
@@ -52,4 +59,5 @@ def run(args: argparse.Namespace) -> int:
     print_summary(result, paths)
     report = Path(paths["report.html"]).resolve()
     print(f"\nopen the report: {report}")
-    return 0 if result.design.feasible else 1
+    code = 0 if result.design.feasible else 1
+    return finish_pdf(args, getattr(args, "pdf_why_not", None), code)

@@ -7,20 +7,64 @@ import sys
 from pathlib import Path
 
 from stowflow.cli._costopts import add_cost_options, cost_settings_from_args
-from stowflow.cli._output import fixed, print_json, print_table, progress
+from stowflow.cli._output import print_json, print_table, progress
+from stowflow.io.numbers import display_value, fmt, shown
 from stowflow.io.options import DESIGN_OPTIONS, OPTION_CHOICES, design_settings
 from stowflow.io.quantities import parse_duration, parse_pressure_difference
-from stowflow.units import abs_to_gauge
 
-__all__ = ["add_design_options", "register", "run", "run_study", "settings_from_args"]
+__all__ = [
+    "PDF_MISSING_EXIT",
+    "add_design_options",
+    "add_pdf_options",
+    "finish_pdf",
+    "register",
+    "run",
+    "run_study",
+    "settings_from_args",
+]
+
+#: Exit code when ``--pdf`` could not write report.pdf (no headless Chromium, or it failed);
+#: every other output is written.
+PDF_MISSING_EXIT = 3
 
 _EXAMPLE = """\
 example:
   stowflow design duty_cycles/forming_press.csv --temperature 10..50 --out reports/press
 
 writes report.html, design.json, schedule.csv and spec.csv to the output folder
-(default reports/<cycle name>/).  Pressures are gauge; values take units (5bar, 1s, 10%).
+(default reports/<cycle name>/), and report.pdf with --pdf.  Pressures are gauge; values
+take units (5bar, 1s, 10%).
+
+exit codes: 0 designed; 1 no design found (the report says why); 2 bad input; 3 designed
+and written, but --pdf found no headless Chromium (or it failed): report.pdf is missing;
+130 interrupted.
 """
+
+
+def add_pdf_options(parser: argparse.ArgumentParser) -> None:
+    """Add ``--pdf`` and ``--paper`` (shared by ``design`` and ``demo``)."""
+    g = parser.add_argument_group("PDF")
+    g.add_argument(
+        "--pdf",
+        action="store_true",
+        help="also print the report to report.pdf with a headless Chromium (exit code 3, "
+        "with the other files written, when none is installed)",
+    )
+    g.add_argument(
+        "--paper",
+        choices=("a4", "letter"),
+        default="a4",
+        help="paper size of report.pdf (default: %(default)s)",
+    )
+
+
+def finish_pdf(args: argparse.Namespace, why_not: str | None, code: int, stream=None) -> int:
+    """Say why report.pdf is missing, on stderr; the exit code: ``code``, or
+    :data:`PDF_MISSING_EXIT` when ``--pdf`` wrote nothing and the design itself succeeded."""
+    if not getattr(args, "pdf", False) or why_not is None:
+        return code
+    (stream or sys.stderr).write(f"stowflow: report.pdf not written: {why_not}\n")
+    return PDF_MISSING_EXIT if code == 0 else code
 
 
 def add_design_options(parser: argparse.ArgumentParser) -> None:
@@ -99,6 +143,7 @@ def register(subparsers, common) -> None:
         "--step", metavar="TIME", help="time step of the cycle grid (default: automatic)"
     )
     add_design_options(p)
+    add_pdf_options(p)
     p.set_defaults(func=run)
 
 
@@ -136,12 +181,27 @@ def run_study(args: argparse.Namespace, cycle, *, out_default: Path, name: str |
     )
     with progress("designing", total=1.0) as update:
         result = run_pipeline(study, progress=lambda f, label: update(f, label=label))
-    paths = write_study(result, out)
+    if getattr(args, "pdf", False):
+        paths, args.pdf_why_not = write_study(result, out, pdf=args.paper)
+    else:
+        paths = write_study(result, out)
     return result, paths
 
 
 def _bar(p_abs: float) -> str:
-    return fixed(abs_to_gauge(p_abs) / 1e5)
+    return shown(display_value(p_abs, "pressure"), "pressure", unit=False)
+
+
+def _value(value_si: float, kind: str) -> str:
+    """An SI value as the table's value cell (the unit goes in its own column)."""
+    return fmt(value_si, kind, unit=False)
+
+
+#: The one-line explanation printed under the table for the power line.
+LEAST_POWER_TEXT = (
+    "least possible power: the cycle's mean hydraulic power over the best efficiencies in the "
+    "catalogue ({least}); no supply can install less"
+)
 
 
 def print_summary(result, paths, stream=None) -> None:
@@ -149,6 +209,7 @@ def print_summary(result, paths, stream=None) -> None:
     stream = stream or sys.stdout
     d = result.design
     rows = [("status", d.status, "")]
+    explain = []
     if not d.feasible:
         rows.append(("reason", d.reason, ""))
     else:
@@ -156,7 +217,7 @@ def print_summary(result, paths, stream=None) -> None:
             b = d.bank
             rows += [
                 ("accumulator", f"{b.count} × {b.option.name}", ""),
-                ("total gas volume", fixed(b.gas_volume * 1e3), "L"),
+                ("total gas volume", _value(b.gas_volume, "volume"), "L"),
                 ("precharge at 20 °C", _bar(b.precharge), "bar"),
             ]
         else:
@@ -164,23 +225,25 @@ def print_summary(result, paths, stream=None) -> None:
         rows += [
             ("working window", f"{_bar(d.p_min)} – {_bar(d.p_max)}", "bar"),
             ("relief setting", _bar(d.relief), "bar"),
-            ("pump", f"{d.pump.name} ({fixed(d.pump.flow * 6e4)} L/min)", ""),
-            ("motor", f"{d.motor.rated_power / 1e3:g}", "kW"),
-            (
-                "installed power / lower bound",
-                fixed(d.installed_power / d.lower_bound_power, 2)
-                if d.lower_bound_power > 0
-                else "-",
-                "-",
-            ),
+            ("pump", f"{d.pump.name} ({fmt(d.pump.flow, 'flow')})", ""),
+            ("motor", _value(d.motor.rated_power, "power"), "kW"),
         ]
+        if d.lower_bound_power > 0:
+            rows.append(
+                (
+                    "installed over least possible power",
+                    shown(d.installed_power / d.lower_bound_power, "ratio"),
+                    "times",
+                )
+            )
+            explain.append(LEAST_POWER_TEXT.format(least=fmt(d.lower_bound_power, "power")))
         v = result.verification
         if v is not None:
             rows.append(
                 (
                     "verification",
                     f"{'passed' if v.passed else 'FAILED'} "
-                    f"({v.controller}, margin {fixed(v.min_margin / 1e5)} bar)",
+                    f"({v.controller}, margin {fmt(v.min_margin, 'pressure_difference')})",
                     "",
                 )
             )
@@ -195,11 +258,18 @@ def print_summary(result, paths, stream=None) -> None:
                 )
         best, ref = result.comparison.strongest, result.comparison.reference
         if best is not None:
-            rows.append(("pump-only motor", f"{best.installed_power / 1e3:g} ({best.key})", "kW"))
+            rows.append(
+                ("pump-only motor", f"{_value(best.installed_power, 'power')} ({best.key})", "kW")
+            )
         if ref is not None:
             rows.append((f"against {best.key}", ref.note, ""))
-    rows.append(("time", f"{result.timings['total']:.2f}", "s"))
+    rows.append(("time", shown(result.timings["total"], "time", unit=False), "s"))
     print_table(rows, title=f"stowflow design: {result.name}", stream=stream)
+    from stowflow.report.content import recommendation
+
+    stream.write(f"recommendation: {recommendation(result)}\n")
+    for line in explain:
+        stream.write(f"{line}\n")
     for note in d.notes:
         stream.write(f"note: {note}\n")
     for key, path in paths.items():
@@ -215,4 +285,5 @@ def run(args: argparse.Namespace) -> int:
         print_json(json.loads(Path(paths["design.json"]).read_text(encoding="utf-8")))
     else:
         print_summary(result, paths)
-    return 0 if result.design.feasible else 1
+    code = 0 if result.design.feasible else 1
+    return finish_pdf(args, getattr(args, "pdf_why_not", None), code)

@@ -10,6 +10,7 @@ import argparse
 from stowflow.cli._common import allow_negative_ranges, temperatures
 from stowflow.cli._output import print_json, print_table
 from stowflow.errors import SettingsError, SizingError
+from stowflow.io.numbers import number
 from stowflow.io.quantities import (
     parse_number,
     parse_pressure,
@@ -19,7 +20,7 @@ from stowflow.io.quantities import (
     parse_whole,
 )
 
-__all__ = ["register", "run"]
+__all__ = ["PRESSURES_TEXT", "register", "run"]
 
 _EXAMPLE = """\
 example:
@@ -196,8 +197,16 @@ def run(args: argparse.Namespace) -> int:
     return 0
 
 
+#: The three pressures of a cascade step, in one line under its table.
+PRESSURES_TEXT = (
+    "settled: the gauge once the gas is back at the filling temperature with the valve left "
+    "open; warm: the gauge just after the flow stops; cooled if shut at once: what that warm "
+    "charge reads once cool if the valve is shut then"
+)
+
+
 def _f(x, digits: int = 4) -> str:
-    return "–" if x is None else f"{x:.{digits}g}"
+    return number(x, digits, max_decimals=2, trim=True)
 
 
 def _print(d: dict) -> None:
@@ -229,7 +238,7 @@ def _print(d: dict) -> None:
             _f(s["warm [bar]"]),
             _f(s["warm_temperature [°C]"], 3),
             _f(s["cooled_if_shut_at_once [bar]"]),
-            "target" if s["reached"] else "",
+            "yes" if s["reached"] else "no",
         )
         for s in d["steps"]
     ]
@@ -242,10 +251,11 @@ def _print(d: dict) -> None:
             "warm [bar]",
             "warm gas [°C]",
             "cooled if shut at once [bar]",
-            "",
+            "target reached",
         ),
         title="cascade: each fresh bottle alone in turn (gauge)",
     )
+    print(PRESSURES_TEXT)
     for o in d["options"]:
         print()
         print(f"option: {o['description']}")

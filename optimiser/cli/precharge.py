@@ -12,6 +12,7 @@ import argparse
 from stowflow.cli._common import allow_negative_ranges, temperatures
 from stowflow.cli._output import print_json, print_table
 from stowflow.errors import SettingsError
+from stowflow.io.numbers import number
 from stowflow.io.quantities import parse_pressure
 from stowflow.units import P_AMBIENT, celsius_to_kelvin
 
@@ -94,7 +95,7 @@ def run(args: argparse.Namespace) -> int:
             }
         )
         return 0
-    rows = [[f"{v:.4g}" if i else f"{v:g}" for i, v in enumerate(r)] for r in table.to_numpy()]
+    rows = [[number(v, 4, max_decimals=3, trim=True) for v in r] for r in table.to_numpy()]
     print_table(
         rows,
         headers=("temperature [°C]", "gauge [bar]", "absolute [bar]"),

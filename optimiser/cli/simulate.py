@@ -27,6 +27,7 @@ from stowflow.cli._output import fixed, print_json, print_table
 from stowflow.cycle.duty import load_cycle
 from stowflow.errors import CycleError, DesignFileError, SettingsError, StowflowError
 from stowflow.io.designfile import load_design, read_setpoints
+from stowflow.io.numbers import number
 from stowflow.io.quantities import (
     parse_duration,
     parse_pressure_difference,
@@ -274,7 +275,7 @@ def _print(v, record: dict, out) -> None:
                 t,
                 fixed(r["energy_per_cycle_kj"]),
                 fixed(r["load_events_per_hour"], 0),
-                f"{r['relief_volume_l']:.3g}",
+                number(r["relief_volume_l"], 3, max_decimals=3, trim=True),
                 str(r["cycles_to_steady"]),
             )
         )

@@ -12,12 +12,16 @@ from __future__ import annotations
 
 import argparse
 
+from stowflow.cli._common import MAX_ROWS
 from stowflow.cli._output import print_json, print_table
 from stowflow.cli._size_duties import add_duty_options, check_duty_options, run_duty
+from stowflow.errors import SettingsError
+from stowflow.io.numbers import number
 from stowflow.io.quantities import (
     parse_gas_process,
     parse_pressure,
     parse_temperature_range,
+    parse_temperature_step,
     parse_volume,
 )
 from stowflow.units import abs_to_gauge, to_unit
@@ -148,6 +152,12 @@ def add_condition_options(parser: argparse.ArgumentParser) -> None:
         help="operating temperature range in °C, e.g. 10..50 or -20..60 (default 20); "
         "thermal: heating from T1 to T2",
     )
+    g.add_argument(
+        "--step",
+        default="5",
+        metavar="K",
+        help="storage: step of the per-temperature table in kelvin (= °C), default 5",
+    )
 
 
 def add_output_options(parser: argparse.ArgumentParser) -> None:
@@ -183,10 +193,24 @@ def storage_inputs(args: argparse.Namespace) -> dict:
         "T_min": t_min,
         "T_max": t_max,
         "charge": args.charge or "slow",
+        "temperature_step": _table_step(args, t_min, t_max),
     }
     if args.ps is not None:
         kwargs["max_allowable_pressure"] = parse_pressure(args.ps, "--ps")
     return kwargs
+
+
+def _table_step(args: argparse.Namespace, t_min: float, t_max: float) -> float:
+    """The per-temperature table's step from ``--step``, [K], held to at most
+    :data:`~stowflow.cli._common.MAX_ROWS` rows."""
+    step = parse_temperature_step(getattr(args, "step", None) or "5", "--step")
+    rows = int((t_max - t_min) / step + 1e-9) + 1
+    if rows > MAX_ROWS:
+        raise SettingsError(
+            f"--step: '{args.step}' gives {rows} rows from --temperature "
+            f"'{args.temperature}'; expected a step that gives at most {MAX_ROWS} rows"
+        )
+    return step
 
 
 def size_storage(args: argparse.Namespace):
@@ -215,7 +239,7 @@ _CHARGE_TEXT = {"slow": "slow (isothermal)", "fast": "fast (along the process)"}
 
 
 def _fmt(x: float, digits: int = 4) -> str:
-    return f"{x:.{digits}g}"
+    return number(x, digits, max_decimals=3, trim=True)
 
 
 def _print_human(result, data: dict) -> None:

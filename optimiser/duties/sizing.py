@@ -314,8 +314,16 @@ def _validate(oil_volume, p_min, p_max, precharge, T_min, T_max) -> None:
         )
 
 
-def _temperature_grid(T_min: float, T_max: float) -> np.ndarray:
-    ts = np.linspace(T_min, T_max, N_TEMPERATURES if T_max > T_min else 1)
+def _temperature_grid(T_min: float, T_max: float, step: float | None = None) -> np.ndarray:
+    """The temperatures sized at, [K]: ``N_TEMPERATURES`` evenly spread, or every ``step``
+    [K] from ``T_min`` with ``T_max`` added; 20 °C added inside the range."""
+    if step is not None and T_max > T_min:
+        n = int(np.floor((T_max - T_min) / step + 1e-9)) + 1
+        ts = T_min + step * np.arange(n)
+        if T_max - ts[-1] > 1e-9:
+            ts = np.append(ts, T_max)
+    else:
+        ts = np.linspace(T_min, T_max, N_TEMPERATURES if T_max > T_min else 1)
     if T_min < T_REF < T_max:
         ts = np.unique(np.append(ts, T_REF))
     return ts
@@ -354,6 +362,7 @@ class _Duty(NamedTuple):
     model: str
     ps: float | None
     charge: str
+    step: float | None = None
 
 
 def _fractions(p_min: float, p_max: float, p0_ref: float, T, ctx: _Duty) -> tuple:
@@ -381,7 +390,7 @@ def _physics(p0_ref: float, ctx: _Duty) -> dict:
     """Fractions, worst temperature and V0 for one precharge (shared by the types)."""
     oil_volume, p_min, p_max, T_min, T_max = ctx[:5]
     model = ctx.model
-    ts = _temperature_grid(T_min, T_max)
+    ts = _temperature_grid(T_min, T_max, ctx.step)
     fmin, fmax, t_min_gas, t_max_gas = (
         np.atleast_1d(np.asarray(a, float)) for a in _fractions(p_min, p_max, p0_ref, ts, ctx)
     )
@@ -464,6 +473,7 @@ def size_accumulator(
     overrides: dict[str, dict] | None = None,
     max_allowable_pressure: float | None = None,
     charge: str = "slow",
+    temperature_step: float | None = None,
 ) -> SizingResult:
     """Gas volume, precharge and admissible types for one energy-storage duty.
 
@@ -503,6 +513,9 @@ def size_accumulator(
         ``"slow"``: isothermal charge to p_max, then the discharge along ``process``;
         ``"fast"``: both strokes along ``process`` from the precharge (a charge as fast as
         the discharge).
+    temperature_step : float, optional
+        Step of the per-temperature rows, [K] (default: 21 rows across the range).  The
+        worst temperature is refined between the rows either way.
 
     Returns
     -------
@@ -524,7 +537,20 @@ def size_accumulator(
     proc = parse_process(process)
     chosen = [parse_type(t) for t in types] if types else list(AccumulatorType)
     overrides = overrides or {}
-    ctx = _Duty(oil_volume, p_min, p_max, T_min, T_max, proc, model, max_allowable_pressure, charge)
+    if temperature_step is not None and not temperature_step > 0:
+        raise SizingError(f"temperature step must be above 0 K; got {temperature_step:g} K")
+    ctx = _Duty(
+        oil_volume,
+        p_min,
+        p_max,
+        T_min,
+        T_max,
+        proc,
+        model,
+        max_allowable_pressure,
+        charge,
+        temperature_step,
+    )
     cases, cache = [], {}
     for t in chosen:
         rules: TypeRules = rules_for(t, overrides.get(t.value))

@@ -47,7 +47,9 @@ __all__ = [
 OUTPUTS: tuple[str, ...] = DESIGN_OUTPUTS
 
 
-def write_study(result, out_dir: str | Path, option: str = "--out") -> dict[str, Path]:
+def write_study(
+    result, out_dir: str | Path, option: str = "--out", *, pdf: str | None = None
+) -> tuple[dict[str, Path], str | None] | dict[str, Path]:
     """Write the report and the exports of a study, as one set.
 
     Parameters
@@ -59,12 +61,16 @@ def write_study(result, out_dir: str | Path, option: str = "--out") -> dict[str,
         files there are replaced as a set (see :mod:`stowflow.report.folder`).
     option : str
         How the user named the folder, for messages.
+    pdf : {"a4", "letter"}, optional
+        Also print the report to ``report.pdf`` on this paper with a headless browser
+        (:func:`stowflow.report.pdf.render_pdf`); the other files are written either way.
 
     Returns
     -------
     dict of str to Path
         ``{"report.html": …, "design.json": …, "schedule.csv": …, "spec.csv": …}``: file
-        name to written path.
+        name to written path (with ``"report.pdf"`` when it was printed).  With ``pdf``, a
+        pair: that dict and why there is no PDF (None when there is one).
 
     Raises
     ------
@@ -79,4 +85,12 @@ def write_study(result, out_dir: str | Path, option: str = "--out") -> dict[str,
         "spec.csv": spec_csv(result),
         "report.html": render_html(result),
     }
-    return write_set(out_dir, {name: texts[name] for name in OUTPUTS}, option)
+    files: dict[str, str | bytes] = {name: texts[name] for name in OUTPUTS}
+    if pdf is None:
+        return write_set(out_dir, files, option)
+    from stowflow.report.pdf import render_pdf
+
+    data, why_not = render_pdf(texts["report.html"], pdf)
+    if data is not None:
+        files["report.pdf"] = data
+    return write_set(out_dir, files, option), why_not

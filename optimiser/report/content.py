@@ -17,7 +17,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 from stowflow.costs.comparison import KIND_WORDS
-from stowflow.costs.finance import payback_words
+from stowflow.io import numbers
 from stowflow.physics.machines import ENERGY_PARTS
 from stowflow.units import (
     bar_gauge,
@@ -29,6 +29,7 @@ __all__ = [
     "BREAKDOWN_LABELS",
     "DISCLAIMER",
     "SAFETY_CAUTIONS",
+    "STAGES",
     "OperationFrames",
     "assumptions",
     "bar_delta",
@@ -36,13 +37,17 @@ __all__ = [
     "breakdown_rows",
     "currency",
     "fmt",
+    "glance",
     "key_figures",
     "kilowatts",
     "litres",
     "lpm",
     "money",
     "notes",
+    "notes_by_stage",
     "operation_frames",
+    "q",
+    "reasons",
     "recommendation",
     "setpoints_bar",
     "status_line",
@@ -76,7 +81,12 @@ _DASH = "–"
 
 
 def fmt(value, spec: str = ".3g", unit: str = "") -> str:
-    """Format a number for display ("–" for None or NaN); ``unit`` follows with a space."""
+    """Format a number for display ("–" for None or NaN); ``unit`` follows with a space.
+
+    ``spec`` is a format spec for ordinary magnitudes; a value it would print in exponent
+    notation or wider than a column is shown by :func:`stowflow.io.numbers.number` instead
+    (``1.2×10⁻³⁰⁰``).  New code uses :func:`q` (by kind of quantity).
+    """
     if value is None:
         return _DASH
     try:
@@ -86,7 +96,17 @@ def fmt(value, spec: str = ".3g", unit: str = "") -> str:
     if not math.isfinite(v):
         return "never" if v == math.inf else _DASH
     text = format(v, spec)
+    if "e" in text.lower() or len(text) > numbers.WIDTH:
+        text = numbers.number(v)
     return f"{text} {unit}".rstrip() if unit else text
+
+
+def q(value_si, kind: str, result=None, **kw) -> str:
+    """An SI value as text in its display unit (:func:`stowflow.io.numbers.fmt`); gauge
+    pressures use the study's ambient pressure when ``result`` is given."""
+    if result is not None and kind == "pressure":
+        kw.setdefault("p_ambient", result.settings.p_ambient)
+    return numbers.fmt(value_si, kind, **kw)
 
 
 def bar_g(p_abs, result) -> float | np.ndarray:
@@ -121,13 +141,14 @@ def currency(result) -> str:
 
 
 def money(value, result, spec: str = ",.0f") -> str:
-    """A price with its currency label."""
-    return fmt(value, spec, currency(result))
+    """A price with its currency label (whole units, thousands grouped)."""
+    del spec  # kept for callers; every price is shown in whole units
+    return numbers.shown(value, "money", unit=currency(result))
 
 
 def years(value) -> str:
     """A payback time in words ("under 1 month", "5 months", "2.3 years", "never")."""
-    return payback_words(value)
+    return numbers.years_words(value)
 
 
 #: The parts of an energy breakdown in words, in the order the report stacks them.
@@ -154,11 +175,11 @@ BREAKDOWN_LABELS: dict[str, str] = dict(
 
 def _bank_words(result) -> str:
     bank = result.design.bank
-    n, vol = bank.count, litres(bank.option.nominal_volume)
-    units = "accumulators" if n > 1 else "accumulator"
+    n = bank.count
+    units = numbers.plural(n, "accumulator")
     return (
-        f"{n} × {vol:g} L {bank.type} {units} precharged to "
-        f"{bar_g(bank.precharge, result):.0f} bar at 20 °C"
+        f"{n} × {q(bank.option.nominal_volume, 'volume')} {bank.type} {units} precharged to "
+        f"{q(bank.precharge, 'pressure', result, digits=3)} at 20 °C"
     )
 
 
@@ -191,8 +212,8 @@ def recommendation(result) -> str:
             f"The search found no design: {why}. {_capital(_supply_words(best))} would supply "
             f"the cycle at a total cost of {money(best.tco, result)} over {n} years."
         )
-    pump = f"a {to_unit(d.pump.displacement, 'cm3', 'displacement'):g} cm³/rev pump"
-    motor = f"a {kilowatts(d.motor.rated_power):g} kW motor"
+    pump = f"a {q(d.pump.displacement, 'displacement')} pump"
+    motor = f"a {q(d.motor.rated_power, 'power')} motor"
     if d.bank is not None:
         head = f"Use {_bank_words(result)} with {pump} on {motor}"
         what = "the accumulator supply"
@@ -210,11 +231,11 @@ def recommendation(result) -> str:
             f"{what}. Against it {what} {ref.note}. Use the pump-only supply; {what} is "
             "shown for comparison."
         )
-    saved = kilowatts(ref.installed_power_saved)
+    saved = ref.installed_power_saved
     if saved > 0:
-        power = f"{saved:g} kW less installed power than"
+        power = f"{q(saved, 'power')} less installed power than"
     elif saved < 0:
-        power = f"{-saved:g} kW more installed power than"
+        power = f"{q(-saved, 'power')} more installed power than"
     else:
         power = "the same installed power as"
     return (
@@ -230,7 +251,7 @@ def status_line(result) -> str:
     if d.feasible:
         gap = d.mip_gap
         parts.append(
-            f"schedule MIP gap {gap:.2%}"
+            f"schedule MIP gap {numbers.shown(gap, 'percent', digits=2)}"
             if math.isfinite(gap)
             else "schedule MIP gap unknown (greedy schedule kept)"
         )
@@ -242,7 +263,7 @@ def status_line(result) -> str:
         verdict = "passed" if v.passed else "failed"
         parts.append(
             f"time-domain verification {verdict} with the {v.controller} controller, least "
-            f"margin {bar_delta(v.min_margin):.2f} bar"
+            f"margin {q(v.min_margin, 'pressure_difference')}"
         )
     return "; ".join(parts)
 
@@ -408,6 +429,7 @@ def verification_rows(result) -> list[dict]:
                 "load_events_per_hour": r.load_events_per_hour,
                 "relief_volume_l": litres(r.relief_volume),
                 "cycles_to_steady": r.cycles_to_steady,
+                "periodic": bool(r.periodic),
                 "reason": r.reason,
             }
         )
@@ -537,3 +559,148 @@ def notes(result) -> list[str]:
             seen.add(n)
             unique.append(n)
     return unique
+
+
+# -- why this design, at a glance -----------------------------------------------------------
+
+
+def _design_words(result) -> str:
+    """The design in a few words: its accumulators (if any), pump and motor."""
+    d = result.design
+    head = f"{_bank_words(result)}, " if d.bank is not None else "no accumulator, "
+    return (
+        f"{head}a {q(d.pump.displacement, 'displacement')} pump on a "
+        f"{q(d.motor.rated_power, 'power')} motor"
+    )
+
+
+def _alternative_words(a) -> str:
+    """A point of the search's power–capex trade-off in words."""
+    if a.option is None:
+        acc = "no accumulator"
+    else:
+        acc = (
+            f"{a.count} × {q(a.option.nominal_volume, 'volume')} {a.option.type} "
+            f"{numbers.plural(a.count, 'accumulator')}"
+        )
+    return f"{acc} with a {q(a.pump.displacement, 'displacement')} pump"
+
+
+def reasons(result) -> list[str]:
+    """Why the recommended supply won, against the runner-ups, in sentences from the data.
+
+    The search's order (least installed power, then least capex, then least energy), the
+    designs that tied, the larger motors that would buy a cheaper supply (the search's
+    power–capex trade-off) and the ranking of every priced supply by its total cost over the
+    horizon.  Empty for an infeasible design without a priced alternative.
+    """
+    d, c = result.design, result.comparison
+    search: list[str] = []
+    if d.feasible:
+        it = "The accumulator supply" if d.bank is not None else "The design"
+        lb = d.lower_bound_power
+        floor = (
+            f" (no supply can install less than {q(lb, 'power')}: the cycle's mean hydraulic "
+            "power over the best efficiencies in the catalogue)"
+            if lb > 0
+            else ""
+        )
+        search.append(
+            f"{it} needs the least motor power of any supply from this catalogue that carries "
+            f"the cycle: {q(d.installed_power, 'power')}{floor}."
+        )
+        if d.stats.ties > 1:
+            search.append(
+                f"{d.stats.ties} designs need that motor and cost the same to buy "
+                f"({money(d.capex, result)}); this one uses the least energy per cycle."
+            )
+        else:
+            search.append(
+                "Of the supplies with that motor it costs the least to buy: "
+                f"{money(d.capex, result)} for the components."
+            )
+        for a in d.alternatives[1:3]:
+            search.append(
+                f"A larger {q(a.installed_power, 'power')} motor would allow a cheaper supply, "
+                f"{_alternative_words(a)}, for {money(a.capex, result)}; the search puts the "
+                "least installed power first."
+            )
+    priced = sorted((o for o in c.options if o.feasible), key=lambda o: o.tco)
+    costs: list[str] = []
+    if len(priced) > 1:
+        ranked = "; ".join(
+            ("the accumulator supply" if o.key == "design" else KIND_WORDS.get(o.key, o.label))
+            + f" {money(o.tco, result)}"
+            for o in priced
+        )
+        costs.append(f"Total cost over {c.settings.years} years, least first: {ranked}.")
+    # the deciding reason first: the search's order for the design, the cost for a pump-only
+    return search + costs if c.recommended in (None, "design") else costs + search
+
+
+def glance(result) -> list[tuple[str, str]]:
+    """The key figures of the recommendation as (label, text with unit), for the summary and
+    the web page's study view."""
+    d, c, v = result.design, result.comparison, result.verification
+    rows: list[tuple[str, str]] = []
+    if d.feasible:  # without a design the recommendation sentence gives the reason
+        rows.append(("installed motor power", q(d.installed_power, "power")))
+        if d.bank is not None:
+            rows.append(
+                (
+                    "accumulators",
+                    f"{d.bank.count} × {q(d.bank.option.nominal_volume, 'volume')} {d.bank.type}",
+                )
+            )
+            rows.append(
+                (
+                    "working window",
+                    f"{q(d.p_min, 'pressure', result, unit=False)} … "
+                    f"{q(d.p_max, 'pressure', result)}",
+                )
+            )
+        rows.append(("relief valve setting", q(d.relief, "pressure", result, digits=3)))
+        if v is not None:
+            rows.append(
+                (
+                    "time-domain check",
+                    f"{'passed' if v.passed else 'failed'}, least margin "
+                    f"{q(v.min_margin, 'pressure_difference')}",
+                )
+            )
+    mine = c.option("design")
+    if mine is not None and mine.feasible:
+        rows += [
+            ("capex", money(mine.capex, result)),
+            ("energy per year", numbers.fmt(mine.energy_per_year, "energy_per_year")),
+            (f"total over {c.settings.years} years", money(mine.tco, result)),
+        ]
+    best = c.strongest
+    if best is not None:
+        rows.append(
+            (
+                f"strongest pump-only alternative over {c.settings.years} years",
+                f"{KIND_WORDS.get(best.key, best.label)}: {money(best.tco, result)}",
+            )
+        )
+    return rows
+
+
+#: The stages whose notes the appendix lists, in the order they ran.
+STAGES: tuple[str, ...] = ("cycle", "search", "verification", "costs")
+
+
+def notes_by_stage(result) -> dict[str, list[str]]:
+    """Every note the stages left, by stage (:data:`STAGES`), each note once."""
+    d, v = result.design, result.verification
+    raw = {
+        "cycle": list(result.cycle.notes),
+        "search": list(d.notes) + list(d.stats.notes),
+        "verification": [] if v is None else list(v.notes),
+        "costs": list(result.comparison.notes),
+    }
+    seen: set[str] = set()
+    out: dict[str, list[str]] = {}
+    for stage in STAGES:
+        out[stage] = [n for n in raw[stage] if not (n in seen or seen.add(n))]
+    return out

@@ -12,12 +12,14 @@ import html
 
 import numpy as np
 import plotly.graph_objects as go
+from stowflow.io import numbers
 from stowflow.report import content
 from stowflow.units import to_unit
 
 __all__ = [
     "COLOURS",
     "FONT",
+    "SUPPLY_KEYS",
     "breakdown_figure",
     "comparison_figure",
     "cycle_figure",
@@ -26,22 +28,27 @@ __all__ = [
 ]
 
 #: The report's palette (our own): ink, rules, the design and the pump-only alternatives, cold
-#: and hot, and the parts of an energy breakdown.
+#: and hot.  A supply has one colour in every chart and the page's tables
+#: (:data:`SUPPLY_KEYS`); no other line, bar or part of a breakdown uses a supply's colour.
 COLOURS = {
     "ink": "#1f2a30",
     "muted": "#6b7780",
     "grid": "#e3e7e9",
     "design": "#0e7c66",
     "fixed": "#8c5a3c",
-    "compensated": "#b7a98f",
+    "compensated": "#9a8c2a",
     "variable-speed": "#6d5a8c",
-    "load-sensing": "#3c6f8c",
+    "load-sensing": "#c0508a",
     "cold": "#2c64a8",
     "hot": "#c2452d",
     "required": "#1f2a30",
-    "flow": "#0e7c66",
-    "set": "#8a96a0",
+    "flow": "#1d3557",
+    "set": "#6b7780",
+    "relief": "#1f2a30",
 }
+
+#: The keys of :data:`COLOURS` that name a supply (the comparison's option keys).
+SUPPLY_KEYS: tuple[str, ...] = ("design", "fixed", "compensated", "variable-speed", "load-sensing")
 
 #: System font stack (no web fonts: the report works offline).
 FONT = (
@@ -66,14 +73,14 @@ _BAR_NAMES = {
 
 #: Colours of the parts of an energy breakdown (our own), in the stacking order.
 _PART_COLOURS = {
-    "useful": "#0e7c66",
-    "throttling": "#d9a441",
-    "relief": "#c2452d",
-    "standby": "#e8c7a0",
-    "gas_heat": "#2c64a8",
-    "pump": "#8c5a3c",
+    "useful": "#1d3557",
+    "throttling": "#e9c46a",
+    "relief": "#e63946",
+    "standby": "#f4a261",
+    "gas_heat": "#457b9d",
+    "pump": "#a8dadc",
     "motor": "#8a96a0",
-    "drive": "#6d5a8c",
+    "drive": "#cfd8dc",
 }
 
 
@@ -225,7 +232,7 @@ def cycle_figure(result) -> go.Figure:
             "mode": "lines",
             "line": {"shape": "hv", "color": COLOURS["flow"], "width": 1.6},
             "fill": "tozeroy",
-            "fillcolor": "rgba(14,124,102,0.12)",
+            "fillcolor": "rgba(29,53,87,0.10)",
             "customdata": labels,
             "hovertemplate": "%{y:.1f} L/min<br>%{customdata}<extra>demand</extra>",
             **_on(1),
@@ -249,8 +256,8 @@ def cycle_figure(result) -> go.Figure:
         )
     axes["xaxis"] |= {"range": [0, end]}
     axes["xaxis2"] |= {"range": [0, end], "title": {"text": "time in cycle [s]"}}
-    axes["yaxis"] |= {"title": {"text": "L/min"}, "rangemode": "tozero"}
-    axes["yaxis2"] |= {"title": {"text": "bar"}, "rangemode": "tozero"}
+    axes["yaxis"] |= {"title": {"text": "flow [L/min]"}, "rangemode": "tozero"}
+    axes["yaxis2"] |= {"title": {"text": "pressure [bar]"}, "rangemode": "tozero"}
     return _figure(data, axes, 440, titles, showlegend=False)
 
 
@@ -276,9 +283,9 @@ def operation_figure(result) -> go.Figure | None:
     d = result.design
     axes, notes = _grid(
         (
-            "accumulator pressure and required pressure [bar]",
+            "",  # the legend above names the pressure panel's lines
             "oil stored in the accumulators [L]" if d.bank else "oil stored [L] (no accumulator)",
-            "pump loaded (1) / unloaded (0); ▼ relief flow",
+            "pump loaded (on) or unloaded (off); ▼ flow over the relief valve",
             "margin above the required pressure [bar]",
         ),
         rows=4,
@@ -336,43 +343,43 @@ def operation_figure(result) -> go.Figure | None:
         first = False
     sp = content.setpoints_bar(result)
     relief = float(content.bar_g(d.relief, result))
-    # (value, label, colour, dash, side, label above or below the line)
+    # (value, label, colour, dash): each line drawn as a shape across the panel, its label in
+    # the legend, so no two labels can overlap however close the settings are
     lines = [
-        (sp[key], f"{text} {sp[key]:.1f} bar", COLOURS["set"], "dot", "left", where)
-        for key, text, where in (
-            ("load_below", "load below", "top"),
-            ("unload_above", "unload above", "bottom"),
+        (sp[key], f"{text} {numbers.shown(sp[key], 'pressure')}", COLOURS["set"], dash)
+        for key, text, dash in (
+            ("unload_above", "switch: unload above", "dot"),
+            ("load_below", "switch: load below", "dash"),
         )
         if key in sp
     ]
-    lines.append(
-        (relief, f"relief {relief:.0f} bar", COLOURS["fixed"], "dashdot", "right", "bottom")
-    )
+    relief_text = f"relief valve {numbers.shown(relief, 'pressure', digits=3)}"
+    lines.append((relief, relief_text, COLOURS["relief"], "dashdot"))
     shapes = []
-    for y, text, colour, dash, side, anchor in lines:
-        shapes.append(_hline(y, {"color": colour, "width": 1, "dash": dash}))
-        notes.append(
-            {
-                "x": 0.005 if side == "left" else 0.995,
-                "xref": "x domain",
-                "y": y,
-                "yref": "y",
-                "xanchor": side,
-                "yanchor": anchor,
-                "text": text,
-                "showarrow": False,
-                "font": {"size": 10, "color": colour if side == "right" else COLOURS["muted"]},
-            }
-        )
+    for y, text, colour, dash in lines:
+        style = {"color": colour, "width": 1.2, "dash": dash}
+        shapes.append(_hline(y, style | {"width": 1}))
+        data.append(
+            {"type": "scatter", "x": [None], "y": [None], "mode": "lines", "name": text,
+             "line": style, "hoverinfo": "skip", **_on(1)}
+        )  # fmt: skip
     shapes.append(_hline(0, {"color": COLOURS["ink"], "width": 1}, panel=4))
-    axes["yaxis"] |= {"title": {"text": "bar"}}
-    axes["yaxis2"] |= {"title": {"text": "L"}, "rangemode": "tozero"}
-    axes["yaxis3"] |= {"range": [-0.15, 1.6], "tickvals": [0, 1]}
-    axes["yaxis4"] |= {"title": {"text": "bar"}}
+    axes["yaxis"] |= {"title": {"text": "pressure [bar]"}}
+    axes["yaxis2"] |= {"title": {"text": "oil [L]"}, "rangemode": "tozero"}
+    axes["yaxis3"] |= {
+        "range": [-0.15, 1.6],
+        "tickvals": [0, 1],
+        "ticktext": ["off", "on"],
+        "title": {"text": "pump"},
+    }
+    axes["yaxis4"] |= {"title": {"text": "margin [bar]"}}
     for n in ("", "2", "3", "4"):
         axes[f"xaxis{n}"] |= {"range": [0, end]}
     axes["xaxis4"] |= {"title": {"text": "time in cycle [s]"}}
-    return _figure(data, axes, 760, notes, shapes)
+    legend = {"orientation": "h", "y": 1.01, "yanchor": "bottom", "x": 0, "xanchor": "left"}
+    return _figure(
+        data, axes, 800, notes, shapes, legend=legend, margin={"l": 70, "r": 24, "t": 78, "b": 46}
+    )
 
 
 def _options(result):
@@ -413,7 +420,8 @@ def comparison_figure(result) -> go.Figure | None:
             }
         )
         n = "" if k == 1 else str(k)
-        axes[f"yaxis{n}"] |= {"rangemode": "tozero"}
+        unit = _title[_title.rfind("[") + 1 : -1]
+        axes[f"yaxis{n}"] |= {"rangemode": "tozero", "title": {"text": unit}}
         axes[f"xaxis{n}"] |= {"tickangle": 0, "tickfont": {"size": 10}}
     return _figure(data, axes, 560, titles, bargap=0.35)
 

@@ -40,6 +40,7 @@ from pathlib import Path
 from stowflow.errors import OutputError
 
 __all__ = [
+    "DESIGN_EXTRAS",
     "DESIGN_OUTPUTS",
     "SIMULATION_OUTPUTS",
     "check_out_dir",
@@ -49,9 +50,12 @@ __all__ = [
 
 #: The files ``stowflow design`` writes (see :data:`stowflow.report.OUTPUTS`).
 DESIGN_OUTPUTS: tuple[str, ...] = ("report.html", "design.json", "schedule.csv", "spec.csv")
+#: Files ``stowflow design`` writes on request (``--pdf``): part of its set when written, and
+#: dropped with the replaced set when a new design set comes without them.
+DESIGN_EXTRAS: tuple[str, ...] = ("report.pdf",)
 #: The files ``stowflow simulate --out`` writes.
 SIMULATION_OUTPUTS: tuple[str, ...] = ("simulation.csv", "verification.json")
-_KNOWN = DESIGN_OUTPUTS + SIMULATION_OUTPUTS
+_KNOWN = DESIGN_OUTPUTS + DESIGN_EXTRAS + SIMULATION_OUTPUTS
 #: Tags of the folders built beside the target: NAME.tmp-<8 hex>, NAME.old-<8 hex>.
 _TMP, _OLD = ".tmp-", ".old-"
 _TAG_LEN = len(_TMP) + 8
@@ -86,6 +90,9 @@ def _carried(entry: os.DirEntry, names: tuple[str, ...]) -> bool | None:
         return None
     if name in names or (name.endswith(".part") and name.removesuffix(".part") in _KNOWN):
         return False  # replaced, or a temporary file of an older version
+    if name in DESIGN_EXTRAS and entry.is_file(follow_symlinks=False):
+        # a PDF of the previous report: dropped with it, kept beside another command's set
+        return not any(n in DESIGN_OUTPUTS for n in names)
     if entry.is_file(follow_symlinks=False) and (name in _KNOWN or name.startswith(".")):
         return True  # the other command's outputs; a file manager's hidden file
     return None
@@ -258,15 +265,16 @@ def _commit(tmp: Path, target: Path, names: tuple[str, ...]) -> None:
         os.rmdir(old)  # only when empty: whatever could not be moved stays there
 
 
-def write_set(out_dir: str | Path, texts: Mapping[str, str], option: str = "--out") -> dict:
-    """Write text files into ``out_dir`` as one set (see the module docstring).
+def write_set(out_dir: str | Path, texts: Mapping[str, str | bytes], option: str = "--out") -> dict:
+    """Write files into ``out_dir`` as one set (see the module docstring).
 
     Parameters
     ----------
     out_dir : str or Path
         The output folder; created with its parents when missing.
-    texts : mapping of str to str
-        File name → content (UTF-8, written as given, no newline translation).
+    texts : mapping of str to str or bytes
+        File name → content: text (UTF-8, written as given, no newline translation) or
+        bytes (a PDF, written as they are).
     option : str
         How the user named the folder, for messages.
 
@@ -291,6 +299,10 @@ def write_set(out_dir: str | Path, texts: Mapping[str, str], option: str = "--ou
                 if target.is_dir():
                     os.chmod(tmp, stat.S_IMODE(os.stat(target).st_mode))
                 for name, text in texts.items():
+                    if isinstance(text, bytes):
+                        with open(tmp / name, "xb") as f:
+                            f.write(text)
+                        continue
                     with open(tmp / name, "x", encoding="utf-8", newline="") as f:
                         f.write(text)
                 _commit(tmp, target, names)

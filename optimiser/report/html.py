@@ -20,10 +20,11 @@ import plotly.graph_objects as go
 import plotly.offline
 from stowflow.costs.comparison import KIND_WORDS
 from stowflow.cycle.duty import summarize
+from stowflow.io import numbers
 from stowflow.report import content, figures, objective, schematic, spec
-from stowflow.report.content import fmt, money
+from stowflow.report.content import money, q
 from stowflow.report.exports import spec_rows
-from stowflow.units import kelvin_to_celsius, to_unit
+from stowflow.units import kelvin_to_celsius
 from stowflow.version import __version__
 
 __all__ = ["SECTIONS", "figure_html", "render_html"]
@@ -82,54 +83,38 @@ def _table(
 
 
 # -- sections ------------------------------------------------------------------------------
+#
+# One function per section, ``_section_<name>(result) -> str``, listed in SECTIONS below: a
+# new section is one function and one line there.
+
+
+def _h2(sid: str, title: str) -> str:
+    """A section's opening tag and heading, numbered by its place in :data:`SECTIONS`."""
+    num = next((k for k, (s, _, _) in enumerate(SECTIONS) if s == sid), None)
+    tag = f"<span class='num'>{num}</span>" if num else ""
+    return f"<section id='{sid}'><h2>{tag}{e(title)}</h2>"
+
+
+def _glance(result) -> str:
+    """The key figures of the recommendation as a definition list."""
+    rows = "".join(f"<dt>{e(k)}</dt><dd>{e(v)}</dd>" for k, v in content.glance(result))
+    return f"<dl class='glance'>{rows}</dl>" if rows else ""
 
 
 def _section_summary(result) -> str:
-    d, c = result.design, result.comparison
-    status_cls = (
-        "infeasible"
-        if not d.feasible
-        else (
-            "failed" if result.verification is not None and not result.verification.passed else ""
-        )
-    )
-    cards = []
-    ref, best = c.reference, c.strongest
-    for row in content.key_figures(result):
-        if not row["feasible"]:
-            cards.append(
-                f"<div class='card {e(row['key'])} na'><h4>{e(row['label'])}</h4>"
-                f"<p>not available: {e(row['reason'])}</p></div>"
-            )
-            continue
-        tag = " (strongest alternative)" if best is not None and row["key"] == best.key else ""
-        cards.append(
-            f"<div class='card {e(row['key'])}'><h4>{e(row['label'])}{e(tag)}</h4>"
-            f"<div class='big'>{fmt(row['installed_kw'], 'g')} <small>kW installed</small></div>"
-            "<dl>"
-            f"<dt>capex</dt><dd>{e(money(row['capex'], result))}</dd>"
-            f"<dt>energy per year</dt><dd>{fmt(row['energy_mwh'], ',.1f', 'MWh')}</dd>"
-            f"<dt>energy cost per year</dt><dd>{e(money(row['energy_cost'], result))}</dd>"
-            f"<dt>total over {c.settings.years} years</dt><dd>{e(money(row['tco'], result))}</dd>"
-            + f"<dt>heat into the oil</dt><dd>{fmt(row['heat_load_kw'], '.3g', 'kW')}</dd>"
-            + "</dl>"
-            + (
-                f"<p class='note'>against the strongest alternative: {e(ref.note)}</p>"
-                if row["key"] == "design" and ref is not None
-                else ""
-            )
-            + "</div>"
-        )
-    pays = "".join(
-        f"<li>against a {e(KIND_WORDS[p.baseline])}: {e(p.note)}; {e(_saves(p, result))}</li>"
-        for p in c.paybacks
+    why = content.reasons(result)
+    reasons = (
+        "<h3>Why this supply</h3><ul class='reasons'>"
+        + "".join(f"<li>{e(x)}</li>" for x in why)
+        + "</ul>"
+        if why
+        else ""
     )
     return (
-        "<section id='summary'><h2>Recommendation</h2>"
-        f"<p class='lede'>{e(content.recommendation(result))}</p>"
-        f"<p class='status {status_cls}'>{e(content.status_line(result))}</p>"
-        f"<div class='cards'>{''.join(cards)}</div>"
-        + (f"<ul class='notes'>{pays}</ul>" if pays else "")
+        _h2("summary", "Recommendation")
+        + f"<p class='lede'>{e(content.recommendation(result))}</p>"
+        + _glance(result)
+        + reasons
         + "<p class='callout'>Accumulators store energy and stay pressurised after the pump "
         "stops. Read the <a href='#safety'>safety cautions</a> before commissioning or any "
         "work on the circuit.</p></section>"
@@ -143,11 +128,11 @@ def _saves(p, result) -> str:
         if p.savings_per_year >= 0
         else f"costs {money(-p.savings_per_year, result)} a year more to run"
     )
-    kw = to_unit(p.installed_power_saved, "kW", "power")
+    kw = p.installed_power_saved
     power = (
-        f"{fmt(kw, 'g', 'kW')} less installed power"
+        f"{q(kw, 'power')} less installed power"
         if kw >= 0
-        else f"{fmt(-kw, 'g', 'kW')} more installed power"
+        else f"{q(-kw, 'power')} more installed power"
     )
     return f"{money_part}, {power}"
 
@@ -158,24 +143,24 @@ def content_label(result, key: str) -> str:
 
 
 def _section_cycle(result) -> str:
-    s = content_summary(result)
+    s = summarize(result.cycle)
+    cyc = result.cycle
     rows = [
-        ["cycle length", fmt(s.get("duration_s"), "g", "s")],
-        ["time steps", f"{s.get('steps')} × {fmt(s.get('step_s'), 'g', 's')}"],
-        ["peak demand", fmt(s.get("peak_flow_lpm"), ".1f", "L/min")],
-        ["mean demand", fmt(s.get("mean_flow_lpm"), ".1f", "L/min")],
-        ["oil per cycle", fmt(s.get("volume_per_cycle_l"), ".2f", "L")],
-        ["highest required pressure", fmt(s.get("peak_required_pressure_bar"), ".0f", "bar")],
-        ["mean hydraulic power", fmt(s.get("mean_hydraulic_power_kw"), ".2f", "kW")],
-        ["peak hydraulic power", fmt(s.get("peak_hydraulic_power_kw"), ".2f", "kW")],
-        ["mean over peak demand", fmt(s.get("mean_to_peak_ratio"), ".2f")],
+        ["cycle length", q(s.duration, "time")],
+        ["time steps", f"{s.steps:,} × {q(s.step, 'time')}"],
+        ["peak demand", q(s.peak_flow, "flow")],
+        ["mean demand", q(s.mean_flow, "flow")],
+        ["oil per cycle", q(s.volume_per_cycle, "volume")],
+        ["highest required pressure", q(s.peak_required_pressure, "pressure", result)],
+        ["mean hydraulic power", q(s.mean_hydraulic_power, "power")],
+        ["peak hydraulic power", q(s.peak_hydraulic_power, "power")],
+        ["mean over peak demand", numbers.shown(s.mean_to_peak_ratio, "ratio")],
     ]
     return (
-        "<section id='cycle'><h2><span class='num'>1</span>The duty cycle</h2>"
-        f"<p>Cycle <b>{e(result.cycle.name)}</b> from <code>{e(result.cycle.source)}</code> "
-        f"({e(result.cycle.form)} table, grid {e(result.cycle.grid)}). The flow is what the "
-        "machine draws from the pressure line; the pressure is what it needs at that moment "
-        "(gauge).</p>"
+        _h2("cycle", "The cycle")
+        + f"<p>Cycle <b>{e(cyc.name)}</b> from <code>{e(PurePath(cyc.source).name)}</code> "
+        f"({e(cyc.form)} table, grid {e(cyc.grid)}). The flow is what the machine draws from "
+        "the pressure line; the pressure is what it needs at that moment (gauge).</p>"
         + figure_html(figures.cycle_figure(result), "fig-cycle")
         + _table(["quantity", "value"], [[e(a), e(b)] for a, b in rows], numeric={1}, cls="")
         + "</section>"
@@ -187,24 +172,40 @@ def content_summary(result) -> dict:
     return summarize(result.cycle).as_dict()
 
 
+def _switch_words(result) -> str:
+    """The verified switch settings and the relief setting in one sentence."""
+    d = result.design
+    sp = content.setpoints_bar(result)
+    relief = f"the relief valve is set to {q(d.relief, 'pressure', result, digits=3)}"
+    if "load_below" in sp and "unload_above" in sp:
+        lo = numbers.shown(sp["load_below"], "pressure")
+        hi = numbers.shown(sp["unload_above"], "pressure")
+        return f"The pressure switch loads the pump below {lo} and unloads it above {hi}; {relief}."
+    return f"Working window {q(d.p_min, 'pressure', result, unit=False)} … " + (
+        f"{q(d.p_max, 'pressure', result)}; {relief}."
+    )
+
+
 def _section_operation(result) -> str:
     d, v = result.design, result.verification
-    head = "<section id='operation'><h2><span class='num'>2</span>The design at work</h2>"
+    head = _h2("operation", "The design at work")
     if not d.feasible:
         return head + f"<p>No design to show: {e(d.reason)}</p></section>"
     ops = content.operation_frames(result)
     if ops is not None and ops.source == "verification":
+        verdict = "passes" if v.passed else "fails"
         src = (
-            f"Time-domain verification with the <b>{e(ops.controller)}</b> controller in its "
-            "periodic steady state: real-gas nitrogen with heat exchange (thermal time "
-            f"constant {v.time_constant:g} s), at the coldest and the hottest temperature."
+            f"Simulated over repeated cycles with the <b>{e(ops.controller)}</b> controller, "
+            "real nitrogen with heat exchange, at the coldest and the hottest temperature: the "
+            f"supply {verdict} the check with a least margin of "
+            f"{e(q(v.min_margin, 'pressure_difference'))} above the required pressure."
         )
     else:
         src = (
             "Quasi-static pressures of the design's schedule at the coldest and the hottest "
-            "temperature (the time-domain verification was not run)."
+            "temperature (the time-domain check was not run)."
         )
-    parts = [head, f"<p>{src}</p>"]
+    parts = [head, f"<p>{src} {e(_switch_words(result))}</p>"]
     if ops is not None and ops.source == "schedule" and d.bank is not None:
         short = {
             w: float(f["margin [bar]"].min())
@@ -213,14 +214,16 @@ def _section_operation(result) -> str:
         }
         if short:
             where = " and ".join(
-                f"{-m:.1f} bar at {ops.temperatures[w]:.0f} °C" for w, m in short.items()
+                f"{numbers.shown(-m, 'pressure_difference')} at "
+                f"{numbers.shown(ops.temperatures[w], 'temperature')}"
+                for w, m in short.items()
             )
             parts.append(
                 "<p class='callout'>With the oil trajectory of the planned schedule the "
                 f"quasi-static pressure falls below the requirement by up to {e(where)}. The "
                 "schedule is planned for one temperature when no single open-loop schedule "
                 "holds across the range; a pressure switch then stores more oil when cold. "
-                "Only the time-domain verification shows whether the supply holds.</p>"
+                "Only the time-domain check shows whether the supply holds.</p>"
             )
     if d.bank is None:
         parts.append(
@@ -228,16 +231,6 @@ def _section_operation(result) -> str:
             "there is no stored oil.</p>"
         )
     parts.append(figure_html(figures.operation_figure(result), "fig-operation"))
-    rows = content.verification_rows(result)
-    if rows:
-        parts.append(_runs_table(rows))
-    else:
-        parts.append(
-            f"<p>Working window {content.bar_g(d.p_min, result):.1f} … "
-            f"{content.bar_g(d.p_max, result):.1f} bar; relief set to "
-            f"{content.bar_g(d.relief, result):.0f} bar. Switch setpoints come from the "
-            "time-domain verification.</p>"
-        )
     parts.append("</section>")
     return "".join(parts)
 
@@ -246,10 +239,11 @@ def _runs_table(rows: list[dict]) -> str:
     """Every controller × temperature the verification simulated; the first broken check of
     a failed run on a line of its own."""
     heads = [
-        "controller", "temperature", "verdict", "least margin", "at", "peak pressure",
-        "gas temperature", "energy per cycle", "loads per hour", "relief per cycle",
+        "controller", "temperature", "pump flow", "verdict", "least margin", "at",
+        "peak pressure", "gas temperature", "energy per cycle", "loads per hour",
+        "relief per cycle", "cycles simulated",
     ]  # fmt: skip
-    numeric = {1, 3, 4, 5, 6, 7, 8, 9}
+    numeric = {1, 4, 5, 6, 7, 8, 9, 10, 11}
     head = "".join(
         f"<th class='n'>{h}</th>" if i in numeric else f"<th>{h}</th>" for i, h in enumerate(heads)
     )
@@ -260,19 +254,22 @@ def _runs_table(rows: list[dict]) -> str:
             if r["passed"]
             else ("<span class='fail'>failed</span>")
         )
+        cycles = f"{r['cycles_to_steady']:,}" + ("" if r["periodic"] else " (not settled)")
         cells = [
             e(r["controller"]) + (" (recommended)" if r["recommended"] else ""),
-            fmt(r["temperature_c"], ".0f", "°C"),
+            e(numbers.shown(r["temperature_c"], "temperature")),
+            e(r["pump_flow"]),
             verdict,
-            fmt(r["min_margin_bar"], ".2f", "bar"),
-            fmt(r["min_margin_time_s"], ".2f", "s"),
-            fmt(r["peak_pressure_bar"], ".1f", "bar"),
-            fmt(r["gas_temperature_min_c"], ".0f")
+            e(numbers.shown(r["min_margin_bar"], "pressure_difference")),
+            e(numbers.shown(r["min_margin_time_s"], "time")),
+            e(numbers.shown(r["peak_pressure_bar"], "pressure")),
+            e(numbers.shown(r["gas_temperature_min_c"], "temperature", unit=False))
             + " … "
-            + fmt(r["gas_temperature_max_c"], ".0f", "°C"),
-            fmt(r["energy_per_cycle_kj"], ",.1f", "kJ"),
-            fmt(r["load_events_per_hour"], ".0f"),
-            fmt(r["relief_volume_l"], ".3f", "L"),
+            + e(numbers.shown(r["gas_temperature_max_c"], "temperature")),
+            e(numbers.shown(r["energy_per_cycle_kj"], "energy")),
+            e(numbers.shown(r["load_events_per_hour"], "count")),
+            e(numbers.shown(r["relief_volume_l"], "volume")),
+            e(cycles),
         ]
         cls = "rec" if r["recommended"] else "dim"
         tds = "".join(
@@ -320,7 +317,7 @@ def _comparison_lede(result) -> str:
 
 def _section_comparison(result) -> str:
     c = result.comparison
-    head = "<section id='comparison'><h2><span class='num'>3</span>Against a pump-only supply</h2>"
+    head = _h2("comparison", "The comparison with pump-only supplies")
     rows, classes = [], []
     for o in c.options:
         if not o.feasible:
@@ -330,12 +327,13 @@ def _section_comparison(result) -> str:
         p = c.payback(o.key)
         rows.append(
             [
-                f"{e(o.label)}<br><span class='note'>{e(', '.join(o.components))}</span>",
-                fmt(to_unit(o.installed_power, "kW", "power"), "g", "kW"),
+                f"<span class='swatch {e(o.key)}'></span>{e(o.label)}<br>"
+                f"<span class='note'>{e(', '.join(o.components))}</span>",
+                e(q(o.installed_power, "power")),
                 e(money(o.capex, result)),
-                fmt(to_unit(o.energy_per_year, "MWh", "energy"), ",.1f", "MWh"),
+                e(numbers.fmt(o.energy_per_year, "energy_per_year")),
                 e(money(o.tco, result)),
-                fmt(to_unit(o.heat_load, "kW", "power"), ".3g", "kW"),
+                e(q(o.heat_load, "power")),
                 "this design" if o.key == "design" else e(p.note) if p is not None else "–",
             ]
         )
@@ -357,14 +355,10 @@ def _section_comparison(result) -> str:
         numeric={1, 2, 3, 4, 5},
         row_classes=classes,
     )
-    sources = "; ".join(
-        f"{o.key}: {o.energy_source}" for o in c.options if o.feasible and o.energy_source
-    )
-    table += f"<p class='note'>Energy per cycle from {e(sources)}.</p>"
     pay_rows = [
         [
             e(content_label(result, p.baseline)),
-            fmt(to_unit(p.installed_power_saved, "kW", "power"), "g", "kW"),
+            e(q(p.installed_power_saved, "power")),
             e(money(p.extra_capex, result)),
             e(money(p.savings_per_year, result)),
             e(content.years(p.simple_years)),
@@ -415,66 +409,95 @@ def _section_comparison(result) -> str:
     )
 
 
+def _price(value) -> str:
+    """A price cell: whole units, grouped; empty when not priced."""
+    return "" if value is None else e(numbers.shown(value, "money", unit=False))
+
+
 def _section_specification(result) -> str:
-    head = (
-        "<section id='specification'><h2><span class='num'>4</span>"
-        "Specification for procurement</h2>"
-    )
+    """Every item to buy, once: what it is, its properties, quantity and price."""
+    head = _h2("specification", "Specification")
     items = spec.spec_items(result)
     if not items:
         return head + f"<p>Nothing to buy: {e(result.design.reason)}</p></section>"
     cur = content.currency(result)
-    blocks = []
+    body, classes = [], []
     for it in items:
         rule = (("sizing rule", it.rule),) if it.rule else ()
-        rows = "".join(f"<tr><th>{e(k)}</th><td>{e(v)}</td></tr>" for k, v in it.details + rule)
-        blocks.append(
-            f"<table><caption>{e(it.item)}</caption><tbody>{rows}"
-            f"<tr><th>quantity</th><td>{it.quantity}</td></tr></tbody></table>"
-        )
-    bill = spec_rows(result)
-    keys = [k for k in bill[0] if k != "sizing_rule"]  # the rules are in the items
-    body, classes = [], []
-    for r in bill:
+        details = "".join(f"<tr><th>{e(k)}</th><td>{e(v)}</td></tr>" for k, v in it.details + rule)
         body.append(
             [
-                e(r[k])
-                if k in ("item", "description", "notes")
-                else (
-                    "" if r[k] is None else (f"{r[k]:,.0f}" if isinstance(r[k], float) else e(r[k]))
-                )
-                for k in keys
+                f"<b>{e(it.item)}</b>",
+                f"{e(it.description)}<table class='details'><tbody>{details}</tbody></table>"
+                f"<span class='note'>{e(it.notes)}</span>",
+                f"{it.quantity}",
+                _price(it.unit_price),
+                _price(it.total),
+            ]
+        )
+        classes.append("")
+    for r in spec_rows(result)[len(items) :]:  # installation allowance and the total
+        body.append(
+            [
+                f"<b>{e(r['item'])}</b>",
+                e(r["description"]) + (f"<br><span class='note'>{e(r['notes'])}</span>"),
+                "" if r["quantity [-]"] is None else e(r["quantity [-]"]),
+                _price(r[f"unit_price [{cur}]"]),
+                _price(r[f"total [{cur}]"]),
             ]
         )
         classes.append("total" if r["item"] == "total" else "")
-    parts = [head, "<h3>Quantities and prices</h3>"]
-    parts.append(
-        _table(
-            [
-                "item",
-                "description",
-                "quantity",
-                f"unit price [{e(cur)}]",
-                f"total [{e(cur)}]",
-                "notes",
-            ],
+    return (
+        head + "<p>What to buy, with the catalogue's prices (in the demo catalogue: placeholders, "
+        "not quotes). Unpriced lines are not in the catalogue and must be quoted. The same "
+        "lines are in <code>spec.csv</code>.</p>"
+        + _table(
+            ["item", "what to buy", "quantity", f"unit price [{e(cur)}]", f"total [{e(cur)}]"],
             body,
             numeric={2, 3, 4},
             row_classes=classes,
+            cls="wide spec",
         )
+        + schematic.schematics_html(result)
+        + objective.objective_html(result)
+        + "</section>"
     )
-    parts.append(
-        "<p class='note'>Prices are the catalogue's (in the demo catalogue: placeholders, not "
-        "quotes). Unpriced lines are not in the catalogue and must be quoted. The same lines "
-        "are in <code>spec.csv</code>.</p>"
+
+
+def _section_commissioning(result) -> str:
+    """Precharge against temperature and the settings to make before the first start."""
+    head = _h2("commissioning", "Commissioning")
+    d = result.design
+    if not d.feasible:
+        return head + "<p>No design: nothing to commission.</p></section>"
+    steps = []
+    if d.bank is not None:
+        steps.append(
+            "With the oil side fully discharged and the gas at the shell's temperature, set "
+            f"the precharge with nitrogen to {q(d.bank.precharge, 'pressure', result)} at "
+            "20 °C, or to the value of the table below at the measured temperature."
+        )
+    steps.append(
+        f"Set the relief valve to {q(d.relief, 'pressure', result, digits=3)} and check it "
+        "before the first full-pressure run."
     )
-    parts.append(schematic.schematics_html(result) + objective.objective_html(result))
-    parts.append("<h3>Items</h3>")
-    parts.append(f"<div class='spec-grid'>{''.join(blocks)}</div>")
+    sp = content.setpoints_bar(result)
+    if "load_below" in sp and "unload_above" in sp:
+        steps.append(
+            f"Set the pressure switch to load the pump below "
+            f"{numbers.shown(sp['load_below'], 'pressure')} and unload it above "
+            f"{numbers.shown(sp['unload_above'], 'pressure')}."
+        )
+    if d.bank is not None:
+        steps.append(
+            "Check the automatic discharge at shutdown: after the pump stops the gauge on the "
+            "safety block must fall to zero."
+        )
+    parts = [head, "<ol class='steps'>" + "".join(f"<li>{e(x)}</li>" for x in steps) + "</ol>"]
     table = spec.precharge_table(result)
     if table is not None:
         rows = [
-            [fmt(t, ".0f", "°C"), fmt(p, ".1f", "bar")]
+            [e(numbers.shown(t, "temperature")), e(numbers.shown(p, "pressure"))]
             for t, p in zip(table["temperature [°C]"], table["precharge [bar]"], strict=True)
         ]
         classes = [
@@ -483,11 +506,9 @@ def _section_specification(result) -> str:
         ]
         model = "real-gas nitrogen" if result.settings.gas_model == "real" else "ideal gas"
         parts.append(
-            "<h3>Commissioning: precharge against temperature</h3>"
-            "<p>Set and check the precharge with the oil side fully discharged and the gas at "
-            "the temperature of the shell. The value at 20 °C is the design value; the others "
-            f"hold the same gas charge (constant volume, {e(model)}). Greyed rows lie outside "
-            "the operating range.</p>"
+            "<h3>Precharge against temperature</h3>"
+            "<p>The value at 20 °C is the design value; the others hold the same gas charge "
+            f"(constant volume, {e(model)}). Greyed rows lie outside the operating range.</p>"
             + _table(
                 ["gas temperature", "precharge (gauge)"],
                 rows,
@@ -500,32 +521,6 @@ def _section_specification(result) -> str:
     return "".join(parts)
 
 
-def _section_assumptions(result) -> str:
-    rows = "".join(f"<dt>{e(k)}</dt><dd>{e(v)}</dd>" for k, v in content.assumptions(result))
-    notes = "".join(f"<li>{e(n)}</li>" for n in content.notes(result))
-    st = result.design.stats
-    timing = (
-        f"Search: {st.candidates} combinations screened, {st.families_solved} schedule model(s) "
-        f"solved, {st.total_time:.1f} s in total; study wall-clock "
-        f"{result.timings.get('total', math.nan):.1f} s."
-    )
-    lb = result.design.lower_bound_power
-    bound = ""
-    if result.design.feasible and lb > 0:
-        bound = (
-            f" No supply can install less than {to_unit(lb, 'kW', 'power'):.2f} kW (the mean "
-            "hydraulic power over the best efficiencies in the catalogue); this design installs "
-            f"{result.design.installed_power / lb:.1f} times that."
-        )
-    return (
-        "<section id='assumptions'><h2><span class='num'>5</span>Assumptions and sources</h2>"
-        f"<dl class='assume'>{rows}</dl>"
-        f"<p class='note'>{e(timing + bound)}</p>"
-        "<h3>Notes from the design stages</h3>"
-        f"<ul class='notes'>{notes}</ul></section>"
-    )
-
-
 def _section_safety(result) -> str:
     items = "".join(f"<li>{e(x)}</li>" for x in content.SAFETY_CAUTIONS)
     hint = spec.category_hint(result)
@@ -533,8 +528,9 @@ def _section_safety(result) -> str:
         cat, note, ps, shell_l = hint
         cat_text = (
             f"Pressure-equipment category hint for one accumulator: <b>{e(cat)}</b> "
-            f"(PS {ps:.0f} bar × shell volume {shell_l:.3g} L = {ps * shell_l:,.0f} bar·L). "
-            f"{e(note)}"
+            f"(PS {e(numbers.shown(ps, 'pressure', digits=3))} × shell volume "
+            f"{e(numbers.shown(shell_l, 'volume'))} = "
+            f"{e(numbers.shown(ps * shell_l, 'count'))} bar·L). {e(note)}"
         )
     else:
         cat_text = (
@@ -543,22 +539,123 @@ def _section_safety(result) -> str:
             "memory: check the directive and local codes)."
         )
     return (
-        "<section id='safety'><h2><span class='num'>6</span>Safety</h2>"
-        "<p>Accumulators store energy and stay pressurised after the pumps stop.</p>"
+        _h2("safety", "Safety")
+        + "<p>Accumulators store energy and stay pressurised after the pumps stop.</p>"
         f"<ol class='safety'>{items}</ol><p>{cat_text}</p>"
+        "<p>Local codes and standards take precedence over anything in this report.</p>"
         f"<p class='disclaimer'>{e(content.DISCLAIMER)}</p></section>"
     )
+
+
+#: Headings of the stages' notes in the appendix.
+_STAGE_TITLES = {
+    "cycle": "Reading the cycle",
+    "search": "The search",
+    "verification": "The time-domain check",
+    "costs": "The costs",
+}
+
+
+def _search_text(result) -> str:
+    """How the search chose, with its counts and times, in plain words."""
+    d = result.design
+    st = d.stats
+    models = numbers.count_words(st.families_solved, "schedule model")
+    screened = numbers.count_words(st.candidates, "combination")
+    text = (
+        "The search ranks every supply the catalogue allows in a fixed order: least installed "
+        "motor power first, then least capital cost, then least electrical energy per cycle. "
+        "An exact screen finds the least accumulator for each pump, motor and precharge; a "
+        "mixed-integer schedule model (solved with HiGHS) then plans when the pump loads for "
+        f"the designs that tie. This study screened {screened} "
+        f"and solved {models} in {numbers.shown(st.total_time, 'time')}; the whole study took "
+        f"{numbers.shown(result.timings.get('total', math.nan), 'time')}."
+    )
+    lb = d.lower_bound_power
+    if d.feasible and lb > 0:
+        text += (
+            f" No supply can install less than {q(lb, 'power')} (the mean hydraulic power over "
+            "the best efficiencies in the catalogue); this design installs "
+            f"{numbers.shown(d.installed_power / lb, 'ratio')} times that."
+        )
+    return text
+
+
+def _alternatives_table(result) -> str:
+    """The search's power–capex trade-off: the cheapest supply at each larger motor."""
+    alts = result.design.alternatives
+    if len(alts) < 2:
+        return ""
+    rows = [
+        [
+            e(q(a.installed_power, "power")),
+            e(content._alternative_words(a)),
+            e(money(a.capex, result)),
+            "chosen" if k == 0 else "",
+        ]
+        for k, a in enumerate(alts)
+    ]
+    return _table(
+        ["motor", "cheapest supply with it", "capex", ""],
+        rows,
+        numeric={0, 2},
+        caption="Least installed power against capital cost",
+    )
+
+
+def _section_appendix(result) -> str:
+    """How this was computed: search, solver levels, verification passes, assumptions, notes."""
+    parts = [
+        _h2("appendix", "Appendix: how this was computed"),
+        "<p>For an engineer who wants to check the numbers.</p>",
+        "<h3>The search</h3>",
+        f"<p>{e(_search_text(result))}</p>",
+        _alternatives_table(result),
+        "<h3>Solver status</h3>",
+        f"<p class='status'>{e(content.status_line(result))}</p>",
+    ]
+    rows = content.verification_rows(result)
+    if rows:
+        parts += [
+            "<h3>Verification passes</h3>",
+            "<p>Each controller simulated at the coldest and the hottest temperature, with the "
+            "catalogue's pump flow and a worn pump's, cycle after cycle until the cycle "
+            "repeats itself.</p>",
+            _runs_table(rows),
+        ]
+    sources = [
+        f"{o.label}: {o.energy_source}"
+        for o in result.comparison.options
+        if o.feasible and o.energy_source
+    ]
+    if sources:
+        parts += [
+            "<h3>Where each energy figure comes from</h3><ul class='notes'>",
+            "".join(f"<li>{e(x)}</li>" for x in sources),
+            "</ul>",
+        ]
+    assume = "".join(f"<dt>{e(k)}</dt><dd>{e(v)}</dd>" for k, v in content.assumptions(result))
+    parts += ["<h3>Assumptions and sources</h3>", f"<dl class='assume'>{assume}</dl>"]
+    for stage, notes in content.notes_by_stage(result).items():
+        if notes:
+            items = "".join(f"<li>{e(n)}</li>" for n in notes)
+            parts.append(
+                f"<h3>Notes: {e(_STAGE_TITLES[stage].lower())}</h3><ul class='notes'>{items}</ul>"
+            )
+    parts.append("</section>")
+    return "".join(parts)
 
 
 #: The report's sections in order: (anchor id, title in the contents, renderer).
 SECTIONS: tuple[tuple[str, str, Callable[..., str]], ...] = (
     ("summary", "Recommendation", _section_summary),
-    ("cycle", "Duty cycle", _section_cycle),
-    ("operation", "Design at work", _section_operation),
-    ("comparison", "Comparison", _section_comparison),
+    ("cycle", "The cycle", _section_cycle),
+    ("operation", "The design at work", _section_operation),
+    ("comparison", "The comparison", _section_comparison),
     ("specification", "Specification", _section_specification),
-    ("assumptions", "Assumptions", _section_assumptions),
+    ("commissioning", "Commissioning", _section_commissioning),
     ("safety", "Safety", _section_safety),
+    ("appendix", "How this was computed", _section_appendix),
 )
 
 
@@ -582,7 +679,13 @@ _PRINT_JS = """
 
 
 def _css() -> str:
-    return resources.files("stowflow.report").joinpath("style.css").read_text(encoding="utf-8")
+    """The style sheet, with each supply's colour from :data:`figures.COLOURS` (one source for
+    the charts and the tables)."""
+    sheet = resources.files("stowflow.report").joinpath("style.css").read_text(encoding="utf-8")
+    swatches = "".join(
+        f".swatch.{key} {{ background: {figures.COLOURS[key]}; }}\n" for key in figures.SUPPLY_KEYS
+    )
+    return sheet + swatches
 
 
 def render_html(result, *, generated: _dt.date | None = None) -> str:
@@ -603,14 +706,14 @@ def render_html(result, *, generated: _dt.date | None = None) -> str:
     day = (generated or _dt.date.today()).isoformat()
     cyc = result.cycle
     toc = "".join(
-        f"<a href='#{sid}'><span>{k}</span>{e(title)}</a>"
+        f"<a href='#{sid}'>{f'<span>{k}</span>' if k else ''}{e(title)}</a>"
         for k, (sid, title, _) in enumerate(SECTIONS)
     )
     sections = "".join(render(result) for _, _, render in SECTIONS)
     t_lo = kelvin_to_celsius(result.settings.t_min)
     t_hi = kelvin_to_celsius(result.settings.t_max)
     meta = (
-        f"cycle {cyc.name} · {cyc.n_steps} steps of {cyc.dt:g} s · {t_lo:.0f} … {t_hi:.0f} °C · "
+        f"cycle {cyc.name} · {cyc.n_steps:,} steps of {cyc.dt:g} s · {t_lo:.0f} … {t_hi:.0f} °C · "
         # the file name only: a report travels, and a local folder means nothing to its reader
         f"catalogue {PurePath(result.catalogue.source).name} · {day} · stowflow {__version__}"
     )

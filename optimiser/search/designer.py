@@ -401,6 +401,7 @@ def _feasible(
         families_solved=solved,
         block=block,
         notes=(),
+        ties=max(n_ranked, 1),
     )
     levels = {
         "installed_power [W]": cand.motor.rated_power,

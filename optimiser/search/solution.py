@@ -162,6 +162,9 @@ class SearchStats:
         Time steps per block of the schedule model (1 = full resolution), [-].
     notes : tuple[str, ...]
         What the search did that a reader should know.
+    ties : int
+        Designs that tie with the chosen one on installed power and capex (the chosen one
+        included), [-]; the least energy decides among them.
     """
 
     candidates: int = 0
@@ -172,6 +175,7 @@ class SearchStats:
     families_solved: int = 0
     block: int = 1
     notes: tuple[str, ...] = ()
+    ties: int = 1
 
 
 @dataclass(frozen=True)

@@ -28,6 +28,7 @@ from dataclasses import dataclass
 import numpy as np
 from stowflow.simulation._integrator import Pass, Plant, State
 from stowflow.simulation._loop import Controller
+from stowflow.units import to_unit
 
 __all__ = [
     "HysteresisController",
@@ -290,5 +291,8 @@ def derive_switch(
         else:
             b = mid
     if b - a > search.resolution:
-        notes.append(f"switch setting bracketed to {b - a:.3g} after {evals} simulations")
+        notes.append(
+            f"switch setting known to within {to_unit(b - a, 'bar', 'pressure'):.2f} bar after "
+            f"{evals} simulations"
+        )
     return a, pay_a, notes

@@ -70,7 +70,7 @@ from stowflow.simulation.controllers import (
     SwitchSearch,
     derive_switch,
 )
-from stowflow.units import BAR, bar_text, to_unit
+from stowflow.units import BAR, bar_text, kelvin_to_celsius, to_unit
 
 __all__ = [
     "CONTROLLERS",
@@ -785,8 +785,13 @@ def _bank_runs(
     first_plant = next(iter(runner.plants.values()))
     notes.append(
         "integrator: exponential integrator on the cycle grid "
-        f"({first_plant.substeps} substep(s) per step); step doubling changes the "
-        f"pressure by at most {to_unit(err, 'bar', 'pressure'):.2g} bar"
+        f"({first_plant.substeps} {'substep' if first_plant.substeps == 1 else 'substeps'} per "
+        "step); step doubling changes the "
+        + (
+            f"pressure by at most {to_unit(err, 'bar', 'pressure'):.2f} bar"
+            if to_unit(err, "bar", "pressure") >= 0.005
+            else "pressure by less than 0.01 bar"
+        )
     )
     if runner.limits is None:
         notes.append("discharge limits: catalogue rows and default type rules")
@@ -818,7 +823,16 @@ def _verdict(
     notes.append("controllers passing at every temperature: " + (", ".join(ok) or "none"))
     slow = [r for r in runs if not r.periodic]
     if slow:
-        notes.append(f"{len(slow)} run(s) reached no periodic state within the cycle cap")
+        which = "; ".join(
+            f"{r.controller} at {kelvin_to_celsius(r.temperature):.0f} °C"
+            + (" with worn pump flow" if r.worn else "")
+            for r in slow
+        )
+        notes.append(
+            f"not settled to an exactly repeating cycle within the cycle cap ({which}): "
+            f"{'that run is' if len(slow) == 1 else 'those runs are'} judged on "
+            "the last cycles simulated"
+        )
     report(1.0, "verified")
     return Verification(
         passed=passed,
@@ -881,9 +895,9 @@ def verify(
     wanted = _wanted_controllers(controllers)
     report = progress or (lambda frac, label: None)
     notes = [
-        f"steady state: the state at a cycle start repeats within {OIL_TOL:g} of the gas "
-        f"volume (stored oil) and {TEMPERATURE_TOL:g} K (gas temperature), period 1 to "
-        f"{MAX_PERIOD} cycles",
+        f"steady state: the state at a cycle start repeats within {OIL_TOL * 1e6:g} parts "
+        f"per million of the gas volume (stored oil) and {TEMPERATURE_TOL:g} K (gas "
+        f"temperature), period 1 to {MAX_PERIOD} cycles",
         f"relief valve: linear, full pump flow at {RELIEF_OVERRIDE:.0%} of its cracking gauge "
         "pressure above cracking (common practice, no published source)",
     ]

@@ -24,6 +24,7 @@ from stowflow.errors import StowflowError
 from stowflow.physics.gas import density
 from stowflow.pipeline import Study, run
 from stowflow.report import write_study
+from stowflow.report.content import glance, recommendation
 
 __all__ = ["PROGRESS_INTERVAL", "run_job", "warm_up"]
 
@@ -79,6 +80,9 @@ def run_job(conn: Connection, study: Study, out_dir: str) -> None:
                     "mip_gap": _finite(d.mip_gap),
                     "verified": None if v is None else bool(v.passed),
                     "seconds": _finite(time.perf_counter() - t0),
+                    # the report's own words and figures, shown above the embedded report
+                    "recommendation": recommendation(result),
+                    "figures": [[label, text] for label, text in glance(result)],
                 },
             )
         )

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import re
 
 import pytest
 import stowflow.cli as cli
@@ -173,3 +174,18 @@ def test_errors_are_one_line_exit_2(capsys, argv, match):
 def test_error_messages(capsys, argv, message):
     code, out, err = run(argv, capsys)
     assert (code, out, err) == (2, "", f"stowflow: error: {message}\n")
+
+
+def test_every_cascade_column_is_labelled_and_the_pressures_explained(capsys):
+    code, out, _ = run(FILL, capsys)
+    assert code == 0
+    lines = out.splitlines()
+    k = next(i for i, line in enumerate(lines) if line.startswith("bottle "))
+    header, rule = lines[k], lines[k + 1]
+    # as many labels as columns (each column's rule of dashes has a label above it)
+    assert len(rule.split()) == len(re.split(r"\s{2,}", header.strip())) == 7
+    assert header.rstrip().endswith("target reached")
+    assert fill_cmd.PRESSURES_TEXT in out
+    assert fill_cmd.PRESSURES_TEXT.count("\n") == 0
+    for word in ("settled:", "warm:", "cooled if shut at once:"):
+        assert word in fill_cmd.PRESSURES_TEXT

@@ -149,3 +149,50 @@ def test_charge_belongs_to_storage(capsys):
             "180bar", "--charge", "slow"]  # fmt: skip
     code, _, err = run(argv, capsys)
     assert code == 2 and "--charge belongs to --duty storage, not reserve" in err
+
+
+def _table_temperatures(out: str) -> list[float]:
+    """The first column of the per-temperature table, [°C]."""
+    lines = out.splitlines()
+    start = next(k for k, line in enumerate(lines) if line.startswith("T [°C]")) + 2
+    rows = []
+    for line in lines[start:]:
+        if not line.strip():
+            break
+        rows.append(float(line.split()[0]))
+    return rows
+
+
+@pytest.mark.parametrize(
+    ("extra", "expected"),
+    [
+        ([], [10.0, 15.0, 20.0, 25.0, 30.0, 35.0, 40.0, 45.0, 50.0]),  # 5 K by default
+        (["--step", "10"], [10.0, 20.0, 30.0, 40.0, 50.0]),
+        (["--step", "15"], [10.0, 20.0, 25.0, 40.0, 50.0]),  # 20 °C and the top end added
+    ],
+)
+def test_temperature_table_step(capsys, extra, expected):
+    argv = ["size", "--volume", "5L", "--min-pressure", "100bar", "--max-pressure", "200bar",
+            "--temperature", "10..50", *extra]  # fmt: skip
+    code, out, _ = run(argv, capsys)
+    assert code == 0
+    assert _table_temperatures(out) == expected
+
+
+def test_temperature_step_keeps_the_worst_case(capsys):
+    # The worst temperature is refined between the rows: the step changes the table only.
+    base = ["size", "--volume", "5L", "--min-pressure", "100bar", "--max-pressure", "200bar",
+            "--temperature", "-20..60", "--json"]  # fmt: skip
+    _, fine, _ = run([*base, "--step", "1"], capsys)
+    _, coarse, _ = run(base, capsys)
+    a, b = json.loads(fine), json.loads(coarse)
+    assert b["required_gas_volume_l"] == pytest.approx(a["required_gas_volume_l"], rel=1e-9)
+    assert len(a["temperatures"]) == 81 and len(b["temperatures"]) == 17
+
+
+@pytest.mark.parametrize("step", ["0", "-5", "0.001"])
+def test_a_bad_temperature_step_is_one_line(capsys, step):
+    argv = ["size", "--volume", "5L", "--min-pressure", "100bar", "--max-pressure", "200bar",
+            "--temperature", "10..50", "--step", step]  # fmt: skip
+    code, _, err = run(argv, capsys)
+    assert code == 2 and "--step" in err and err.count("\n") == 1

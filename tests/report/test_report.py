@@ -203,7 +203,7 @@ def test_verified_report_shows_the_controllers_and_setpoints():
         pytest.skip("the time-domain verification is not available in this tree")
     text = render_html(r)
     v = r.verification
-    assert "Time-domain verification with the" in text or not r.design.feasible
+    assert "Simulated over repeated cycles with the" in text or not r.design.feasible
     if r.design.feasible:
         assert "Controllers simulated" in text
         sp = content.setpoints_bar(r)

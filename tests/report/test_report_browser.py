@@ -142,7 +142,7 @@ def test_report_runs_without_errors_and_draws_its_plots(chromium, tmp_path, stud
     assert probe["plots"] == plots
     assert probe["svgs"] >= 2 * plots  # Plotly draws at least two main SVG layers per plot
     assert probe["traces"] > 0
-    assert probe["sections"] == 7
+    assert probe["sections"] == 8
     # before printing, every plot is redrawn at the printable width of A4 portrait
     assert probe["printWidths"] == [700] * plots
 

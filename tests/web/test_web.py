@@ -21,6 +21,7 @@ from pathlib import Path
 
 import pytest
 from _web_server import FAST, TINY, same_origin, slow_job, upload, wait_final
+from markupsafe import escape
 from starlette.testclient import TestClient
 from stowflow.catalogue import default_catalogue_path
 from stowflow.cli.serve import config_from_args
@@ -193,6 +194,13 @@ def test_demo_button_runs_a_study_with_all_four_downloads(client):
 
     page = client.get(location).text
     assert 'id="verdict"' in page and 'id="report"' in page
+    # the report's recommendation and key figures, above the embedded report
+    summary = status["summary"]
+    assert summary["recommendation"] and summary["figures"]
+    assert str(escape(summary["recommendation"])) in page
+    assert page.index('id="recommendation"') < page.index('id="report"')
+    for label, text in summary["figures"]:
+        assert f"<dt>{escape(label)}</dt><dd>{escape(text)}</dd>" in page
     for name in OUTPUTS:
         assert f"{location}/files/{name}" in page
         r = client.get(f"{location}/files/{name}")
@@ -524,9 +532,10 @@ def test_best_found_is_said_so(client):
     manager.jobs[job.id] = job
     try:
         page = client.get(f"/studies/{job.id}").text
-        assert "Best found within the time limit" in page and "relative MIP gap 4.2 %" in page
+        assert "Best design found within the time limit" in page
+        assert "schedule within 4.2 % of the best possible" in page
         job.summary = {**job.summary, "mip_gap": None}
-        assert "MIP gap not known" in client.get(f"/studies/{job.id}").text
+        assert "best possible schedule not known" in client.get(f"/studies/{job.id}").text
     finally:
         del manager.jobs[job.id]
 

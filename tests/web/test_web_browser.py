@@ -127,7 +127,10 @@ def test_upload_through_the_page_and_read_the_report(server, browser, tmp_path):
     # The progress view follows the job and swaps itself for the result.
     page.wait_for_selector("#verdict", timeout=DESIGN_S * 1000)
     verdict = page.inner_text("#verdict")
-    assert re.search(r"Optimal|Best found within the time limit|No supply found", verdict)
+    assert re.search(
+        r"proved this the best design|Best design found within the time limit|No supply found",
+        verdict,
+    )
 
     # The report, inline: its plots draw inside the sandboxed frame.
     frame = page.frame_locator("#report")
@@ -140,7 +143,10 @@ def test_upload_through_the_page_and_read_the_report(server, browser, tmp_path):
     expect = sync_api.expect
     expect(page.locator("#verdict")).to_be_visible()
     expect(frame.locator("#summary")).to_be_visible()
-    expect(frame.locator("#summary .cards")).to_be_visible()
+    expect(frame.locator("#summary .glance")).to_be_visible()
+    # the recommendation and key figures, above the report on the study page itself
+    expect(page.locator("#recommendation")).to_be_visible()
+    expect(page.locator("#key-figures")).to_be_visible()
     spec = frame.locator("#specification table").first
     expect(spec).to_be_visible()
     assert spec.locator("tbody tr").count() >= 1
