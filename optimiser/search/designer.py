@@ -162,7 +162,8 @@ def family_problems(problem: Problem, cand: Candidate, p0s, p_maxs, catalogue) -
         # (the store then keeps the coldest lower bound and the hottest upper bound);
         # otherwise it is planned at the coldest temperature, where the gas holds the least
         # pressure for its oil (the screen has proven that end feasible on its own): at the
-        # hot end the same oil stands at a higher pressure and the relief valve caps the store.
+        # hot end the same oil stands at a higher pressure and the timed schedule's cut-out
+        # ends the loading early (stowflow.simulation.controllers.ScheduleController).
         lower = nominal * np.max(lo[:2, i, :], axis=0)[inverse]
         upper = min(nominal * float(np.min(up[:2, i])), swept)
         robust = deficit is not None and bool(np.all(upper - lower >= deficit - 1e-12 * volume))
@@ -416,8 +417,8 @@ def _feasible(
         notes.append(
             "the bank's oil windows at the two temperature ends overlap too little for one "
             f"schedule planned against both: it is planned at {kelvin_to_celsius(s.t_min):.0f} "
-            f"°C, and at {kelvin_to_celsius(s.t_max):.0f} °C the warmer gas holds more "
-            "pressure and the relief valve caps the store"
+            f"°C; at {kelvin_to_celsius(s.t_max):.0f} °C the warmer gas holds more pressure "
+            "and the timed schedule's cut-out ends the loading early"
         )
     return Design(
         status=status if status in ("optimal", "feasible") else "feasible",
@@ -681,9 +682,10 @@ def _schedule_family(problem: Problem, fam: Family, cand: Candidate, catalogue, 
         rec = _accept(problem, fam, cand, u0, (math.nan, math.nan, "feasible", 1), notes)
     elif excess := _hidden_excess(problem, sp, rec[3], rec[5]):
         notes.append(
-            f"the schedule is the ideal pressure switch's plan: its part-loaded steps would "
-            f"mean {excess:.0f} load events per hour, above the limit; the pressure switch "
-            "with the derived band carries the cycle within the limits (see the verification)"
+            f"the schedule model's plan is the ideal pressure switch's: its part-loaded steps "
+            f"would mean {excess:.0f} load events per hour, above the limit; the timed schedule "
+            "keeps its load command whole and lets the cut-out end the loading (see the "
+            "verification)"
         )
     return rec, solves, t_build, t_solve
 
