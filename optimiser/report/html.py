@@ -219,11 +219,12 @@ def _section_operation(result) -> str:
                 for w, m in short.items()
             )
             parts.append(
-                "<p class='callout'>With the oil trajectory of the planned schedule the "
-                f"quasi-static pressure falls below the requirement by up to {e(where)}. The "
-                "schedule is planned for one temperature when no single open-loop schedule "
-                "holds across the range; a pressure switch then stores more oil when cold. "
-                "Only the time-domain check shows whether the supply holds.</p>"
+                "<p class='callout'>With the stored oil of the schedule the quasi-static "
+                f"pressure falls below the requirement by up to {e(where)}. The schedule is "
+                "planned at the coldest temperature when the bank's windows at the two ends "
+                "overlap too little; at the other end the cut-out or the pressure switch stores "
+                "the oil that end needs. Only the time-domain check shows whether the supply "
+                "holds.</p>"
             )
     if d.bank is None:
         parts.append(
