@@ -418,7 +418,7 @@ def _feasible(
             "the bank's oil windows at the two temperature ends overlap too little for one "
             f"schedule planned against both: it is planned at {kelvin_to_celsius(s.t_min):.0f} "
             f"°C; at {kelvin_to_celsius(s.t_max):.0f} °C the warmer gas holds more pressure "
-            "and the timed schedule's cut-out ends the loading early"
+            "for the same oil (the verification runs the schedule there too)"
         )
     return Design(
         status=status if status in ("optimal", "feasible") else "feasible",
