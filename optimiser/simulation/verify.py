@@ -657,8 +657,15 @@ def _timed_schedule_runs(
     schedule that failed is never exported.
     """
     design, s = runner.design, runner.s
-    if _relief_by_design(design):
-        return _schedule_runs(runner, given, tick, notes), design.schedule
+    if _relief_by_design(design):  # loaded throughout: the plan is the schedule, no cut-out
+        runs = _schedule_runs(runner, given, tick, notes)
+        if runs and all(r.passed for r in runs):
+            return runs, design.schedule
+        notes.append(
+            "schedule: the pump kept loaded throughout fails in the time domain; none is "
+            "exported (the pressure switch carries the cycle)"
+        )
+        return runs, None
     conds = list(runner.plants)
     worn = any(w for _, w in conds)
     cold = (min(T for T, _ in conds), worn)
