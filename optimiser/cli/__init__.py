@@ -26,6 +26,7 @@ __all__ = ["COMMANDS", "build_parser", "join_dash_values", "main"]
 COMMANDS: tuple[str, ...] = (
     "demo",
     "design",
+    "batch",
     "check",
     "simulate",
     "size",

@@ -32,6 +32,7 @@ __all__ = [
     "render_html",
     "schedule_frame",
     "spec_rows",
+    "study_texts",
     "write_study",
 ]
 
@@ -64,6 +65,23 @@ def write_study(result, out_dir: str | Path, option: str = "--out") -> dict[str,
         The folder cannot be used or written; the previous files are then unchanged.
     """
     check_out_dir(out_dir, option, OUTPUTS)  # before the rendering's seconds
+    return write_set(out_dir, study_texts(result), option)
+
+
+def study_texts(result) -> dict[str, str]:
+    """The texts of the files :func:`write_study` writes, keyed as :data:`OUTPUTS` (a batch
+    renders them where the study ran and writes them where it was asked for).
+
+    Parameters
+    ----------
+    result : StudyResult
+        The study's result.
+
+    Returns
+    -------
+    dict of str to str
+        File name → text.
+    """
     schedule = schedule_frame(result).to_csv(index=False, lineterminator="\n", na_rep="")
     texts = {
         "design.json": design_json(result),
@@ -71,4 +89,4 @@ def write_study(result, out_dir: str | Path, option: str = "--out") -> dict[str,
         "spec.csv": spec_csv(result),
         "report.html": render_html(result),
     }
-    return write_set(out_dir, {name: texts[name] for name in OUTPUTS}, option)
+    return {name: texts[name] for name in OUTPUTS}
