@@ -21,6 +21,7 @@ from __future__ import annotations
 
 import glob
 import hashlib
+import io
 import json
 import os
 from collections.abc import Callable, Mapping
@@ -458,8 +459,10 @@ def run_batch(
                 rows[job.name] = _collect(fut, job, out, names, write_set)
                 report(len(rows), total, job.name)
     frame = pd.DataFrame([rows[j.name] for j in jobs], columns=list(COLUMNS))
+    text = frame.to_csv(index=False, lineterminator="\n")
+    frame = pd.read_csv(io.StringIO(text))  # what the file holds, read as a reader reads it
     out.mkdir(parents=True, exist_ok=True)
-    _write_atomic(out / "summary.csv", frame.to_csv(index=False, lineterminator="\n"))
+    _write_atomic(out / "summary.csv", text)
     _write_atomic(out / "fleet.html", render_fleet(frame))
     return frame
 

@@ -1,9 +1,9 @@
 """The Dask client the studies run on: a local cluster by default, or a given scheduler.
 
 A local cluster has one single-threaded worker process per core (the design search and the
-verification hold the GIL, so threads would not run in parallel), no dashboard and quiet
-logs.  ``scheduler="tcp://HOST:PORT"`` connects to a running ``dask scheduler`` instead;
-its workers must have the same stowflow installed.
+verification hold the GIL, so threads would not run in parallel), listens on the loopback
+only, has no dashboard and quiet logs.  ``scheduler="tcp://HOST:PORT"`` connects to a
+running ``dask scheduler`` instead; its workers must have the same stowflow installed.
 """
 
 from __future__ import annotations
@@ -91,7 +91,11 @@ def open_client(
         n_workers=n,
         threads_per_worker=1,
         processes=True,
+        host="127.0.0.1",
         dashboard_address=None,
+        # The scheduler serves a few HTTP routes even without its dashboard, on 8787 unless
+        # told otherwise: a free port on the loopback, so that a busy 8787 is never tried.
+        scheduler_kwargs={"dashboard": False, "dashboard_address": "127.0.0.1:0"},
         silence_logs=logging.ERROR,
     )
     with cluster, Client(cluster, set_as_default=False) as client:
