@@ -61,6 +61,7 @@ __all__ = [
     "SimulationResult",
     "batch",
     "design",
+    "explore",
     "load_catalogue",
     "read_cycle",
     "settings",
@@ -787,6 +788,72 @@ def batch(
         workers=workers,
         force=force,
     )
+
+
+def explore(
+    cycle: DutyCycle | str | Path | pd.DataFrame,
+    catalogue: Catalogue | str | Path | None = None,
+    *,
+    out: str | Path | None = None,
+    samples: int = 0,
+    seed: int = 0,
+    min_pressure: str | float | None = None,
+    step: str | float | None = None,
+    scheduler: str | None = None,
+    workers: int | None = None,
+    **settings: Any,
+):
+    """Trade-off front and sensitivity of a cycle's design on Dask, as ``stowflow explore``.
+
+    Parameters
+    ----------
+    cycle : DutyCycle, str, pathlib.Path or pandas.DataFrame
+        The duty cycle, or what :func:`read_cycle` reads it from.
+    catalogue : Catalogue, str or pathlib.Path, optional
+        Components (default: the bundled demo catalogue).
+    out : str or pathlib.Path, optional
+        When given, the folder the files of ``stowflow explore`` are written to.
+    samples : int
+        Monte Carlo samples, [-] (0: none).
+    seed : int
+        Seed of the Monte Carlo draws.
+    min_pressure, step : str or float, optional
+        As in :func:`read_cycle` (gauge [Pa]; [s]).
+    scheduler : str, optional
+        A running Dask scheduler, ``tcp://HOST:PORT`` (default: a local cluster).
+    workers : int, optional
+        Worker processes of the local cluster, [-].
+    **settings
+        Design and cost settings, as :func:`settings` takes them.
+
+    Returns
+    -------
+    stowflow.studies.explore.Exploration
+        ``.front``, ``.sensitivity``, ``.monte_carlo`` (the CSV files' frames),
+        ``.candidates`` (every candidate of the screen) and ``.study`` (the design).
+    """
+    from stowflow.cycle.duty import DutyCycle
+    from stowflow.studies.explore import explore_cycle, write_exploration
+
+    made = _build_settings(settings)
+    if not isinstance(cycle, DutyCycle):
+        cycle = read_cycle(cycle, min_pressure=min_pressure, step=step)
+    cat = catalogue if not isinstance(catalogue, str | Path | None) else load_catalogue(catalogue)
+    if samples < 0:
+        raise SettingsError(f"samples: {samples}; expected a whole number ≥ 0")
+    ex = explore_cycle(
+        cycle,
+        cat,
+        made.design,
+        made.costs,
+        samples=samples,
+        seed=seed,
+        scheduler=scheduler,
+        workers=workers,
+    )
+    if out is not None:
+        write_exploration(ex, out)
+    return ex
 
 
 # -- simulate --------------------------------------------------------------------------------

@@ -27,6 +27,7 @@ COMMANDS: tuple[str, ...] = (
     "demo",
     "design",
     "batch",
+    "explore",
     "check",
     "simulate",
     "size",

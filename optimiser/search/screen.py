@@ -56,6 +56,7 @@ __all__ = [
     "LOWEST_PRECHARGE",
     "Candidate",
     "ScreenResult",
+    "all_candidates",
     "infeasibility_reason",
     "pump_unload_limit",
     "screen",
@@ -459,6 +460,31 @@ def screen(
     best_capex = min(c.capex for c in feasible)
     ties = tuple(c for c in feasible if c.capex <= best_capex * (1 + 1e-12) + 1e-9)
     return ScreenResult(ties, best_power, best_capex, sc.evaluated, None, elapsed, tuple(frontier))
+
+
+def all_candidates(problem: Problem, catalogue: Catalogue) -> list[Candidate]:
+    """Every combination the screen finds for the cycle, at every motor rating: for each pump,
+    motor and accumulator row that meet the cycle, the least bank (and each pump-only
+    supply), with the precharges at which it suffices.  What a trade-off front is drawn
+    from; :func:`screen` stops at the least power instead.
+
+    Parameters
+    ----------
+    problem : Problem
+        The prepared cycle.
+    catalogue : Catalogue
+        Components to choose from.
+
+    Returns
+    -------
+    list of Candidate
+        In ascending motor rating.
+    """
+    sc = _Screen(problem, catalogue)
+    found: list[Candidate] = []
+    for power in sorted({m.rated_power for m in sc.motors}):
+        found += sc.level_candidates(power)
+    return found
 
 
 def infeasibility_reason(problem: Problem, catalogue: Catalogue, deficit_max, pumps) -> str:
