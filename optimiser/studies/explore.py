@@ -353,6 +353,30 @@ def front_frame(rows: list[dict], chosen: tuple | None) -> pd.DataFrame:
     return frame
 
 
+def _design_row(study: StudyResult) -> dict:
+    """The chosen design as a row of the front table (its costs from the comparison)."""
+    d, o = study.design, study.comparison.option("design")
+    bank = d.bank
+    name = "none (pump only)" if bank is None else f"{bank.count} × {bank.option.name}"
+    return {
+        "supply": f"{name}; {d.pump.name}; {d.motor.name}",
+        "accumulator": None if bank is None else bank.option.name,
+        "count": 0 if bank is None else bank.count,
+        "pump": d.pump.name,
+        "motor": d.motor.name,
+        "motor [kW]": d.motor.rated_power / 1e3,
+        "capex": o.capex,
+        "tco": o.tco,
+        "total_gas_volume [L]": 0.0 if bank is None else bank.gas_volume * 1e3,
+        "energy_per_cycle [kJ]": o.energy_per_cycle / 1e3,
+        "precharge [bar]": math.nan
+        if bank is None
+        else (bank.precharge - study.settings.p_ambient) / 1e5,
+        "on_front": False,
+        "chosen": True,
+    }
+
+
 class Exploration(NamedTuple):
     """What :func:`explore_cycle` found (the frames the files hold).
 
@@ -515,6 +539,10 @@ def explore_cycle(
     ]
     allc = front_frame(rows, _chosen_key(study.design))
     front = allc[allc["on_front"] | allc["chosen"]].reset_index(drop=True)
+    if not front["chosen"].any() and study.design.feasible:
+        # The verification raised the requirement: the design is not one of the screen's
+        # candidates; shown with its own costs (from the verified energy).
+        front = pd.concat([front, pd.DataFrame([_design_row(study)])], ignore_index=True)
     base = study.verification.min_margin if study.verification is not None else math.nan
     sens = _sensitivity_frame(sens_rows, base)
     mc = pd.DataFrame(mc_rows, columns=list(SAMPLE_COLUMNS))
