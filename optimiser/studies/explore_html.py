@@ -97,7 +97,13 @@ def _front_charts(ex) -> str:
                     hoverinfo="text+x+y",
                 )
             )
-        fig.update_layout(xaxis_title=title, yaxis_title="TCO", height=420, margin={"t": 30})
+        fig.update_layout(
+            xaxis_title=title,
+            yaxis_title="TCO",
+            height=440,
+            margin={"t": 50},
+            legend={"orientation": "h", "y": 1.12},
+        )
         out.append(figure_html(fig, f"front-{len(out)}", f"{title} against TCO"))
     return "".join(out)
 

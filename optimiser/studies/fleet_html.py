@@ -85,7 +85,7 @@ def _number(value) -> float | None:
 def _cell(col: str, value, link: str | None) -> str:
     x = _number(value) if not isinstance(value, bool | str) else None
     if x is not None:
-        text = f"{x:,.1f}" if abs(x) < 1e4 else f"{x:,.0f}"
+        text = f"{x:,.0f}" if abs(x) >= 1e3 else f"{x:.1f}" if abs(x) >= 10 else f"{x:.2f}"
         return f"<td class='num' data-v='{x!r}'>{_e(text)}</td>"
     shown = "" if value is None or (isinstance(value, float) and math.isnan(value)) else value
     inner = _e(shown)
