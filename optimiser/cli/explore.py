@@ -134,7 +134,7 @@ def run(args: argparse.Namespace) -> int:
         print_table(
             [
                 (
-                    r["case"] + ("  <- breaks first" if r["breaks_first"] else ""),
+                    r["case"] + ("  <- first to break (least margin)" if r["breaks_first"] else ""),
                     f"{r['min_margin [bar]']:.2f}",
                     "passes" if r["passed"] else f"FAILS: {r['reason']}",
                 )
