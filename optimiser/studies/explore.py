@@ -294,14 +294,13 @@ def non_dominated(values: np.ndarray) -> np.ndarray:
     return keep
 
 
-def _energy_task(cycle, catalogue, settings, chunk: tuple[int, int], per_set: int) -> list:
-    """The energy estimate of candidates ``chunk`` = (start, stop) (a Dask task)."""
+def _energy_task(cycle, catalogue, settings, cands: list, per_set: int) -> list:
+    """The energy estimate of some candidates (a Dask task): (energy [J], precharge [Pa])
+    each, nan where no trajectory exists."""
     from stowflow.search.designer import ideal_energies
     from stowflow.search.problem import make_problem
-    from stowflow.search.screen import all_candidates
 
     problem = make_problem(cycle, settings)
-    cands = all_candidates(problem, catalogue)[chunk[0] : chunk[1]]
     found = {id(c): (e, p0) for c, e, p0 in ideal_energies(problem, cands, catalogue, per_set)}
     return [found.get(id(c), (math.nan, math.nan)) for c in cands]
 
@@ -495,8 +494,10 @@ def explore_cycle(
         study = Study(cycle=cycle, catalogue=catalogue, settings=design, costs=costs)
         study_f = client.submit(run, study, pure=False)
         energy_fs = [
-            client.submit(_energy_task, cyc_f, cat_f, design, ch, FRONT_PRECHARGES, pure=False)
-            for ch in chunks
+            client.submit(
+                _energy_task, cyc_f, cat_f, design, cands[a:b], FRONT_PRECHARGES, pure=False
+            )
+            for a, b in chunks
         ]
         total = 1 + len(chunks) + len(sensitivity_cases()) + 1 + samples
         done = 0
