@@ -47,6 +47,7 @@ th,td{border-bottom:1px solid #ddd;padding:4px 8px;text-align:left;vertical-alig
 th{cursor:pointer;background:#f4f4f4;user-select:none}
 th:after{content:' \\2195';color:#999}
 td.num{text-align:right;font-variant-numeric:tabular-nums}
+td.long{min-width:18em}
 tr.failed td{color:#a00}
 .note{color:#666;font-size:12px}
 """
@@ -91,7 +92,8 @@ def _cell(col: str, value, link: str | None) -> str:
     inner = _e(shown)
     if link and col == "cycle":
         inner = f"<a href='{_e(link)}'>{inner}</a>"
-    return f"<td data-v='{_e(shown)}'>{inner}</td>"
+    wide = " class='long'" if len(str(shown)) > 40 else ""  # a verdict or reason in words
+    return f"<td{wide} data-v='{_e(shown)}'>{inner}</td>"
 
 
 def sortable_table(frame: pd.DataFrame, columns, link_column: str | None = None) -> str:
