@@ -146,10 +146,17 @@ def read_overrides(source: str | Path | pd.DataFrame | None) -> dict[str, dict[s
     if isinstance(source, pd.DataFrame):
         frame = source.astype(str).where(source.notna(), "")
     else:
+        from stowflow.io.rawtext import read_limited
+
+        data = read_limited(source, "overrides", SettingsError, "an overrides CSV")
         try:
-            frame = pd.read_csv(source, dtype=str, keep_default_na=False, comment="#")
-        except (OSError, ValueError) as exc:
-            raise SettingsError(f"{where}: cannot read the overrides table ({exc})") from None
+            text = data.decode("utf-8-sig")
+            frame = pd.read_csv(io.StringIO(text), dtype=str, keep_default_na=False, comment="#")
+        except (UnicodeDecodeError, ValueError) as exc:
+            raise SettingsError(
+                f"{where}: cannot read the overrides table ({one_line(exc)}); expected a CSV "
+                "with a 'cycle' column"
+            ) from None
     frame = frame.rename(columns=lambda c: str(c).strip().replace("-", "_"))
     if "cycle" not in frame.columns:
         raise SettingsError(f"{where}: no 'cycle' column; expected the cycle file's stem")

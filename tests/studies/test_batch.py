@@ -116,16 +116,24 @@ def test_a_failing_cycle_is_a_row_and_a_rerun_skips_unchanged_cycles(run_cli, tm
         ("name,line_loss\npress_a,5bar\n", "no 'cycle' column"),
         ("cycle,line_loss\nnowhere,5bar\n", "no cycle named 'nowhere'"),
         ("cycle,line_loss\npress_a,5bar\npress_a,6bar\n", "given twice"),
+        ("", "cannot read the overrides table"),
+        ("cycle,line_loss\npress_a,\xff\n", "cannot read the overrides table"),
     ],
 )
 def test_bad_overrides_are_refused_before_any_work(run_cli, tmp_path, table, message):
     folder = _fleet(tmp_path)
     overrides = tmp_path / "o.csv"
-    overrides.write_text(table, encoding="utf-8")
+    overrides.write_bytes(table.encode("latin-1"))  # \xff: not UTF-8
     code, _, stderr = run_cli("batch", folder, "--out", tmp_path / "o", "--overrides", overrides)
     assert code == 2, stderr
     assert message in stderr and stderr.count("\n") == 1
     assert not (tmp_path / "o").exists()
+
+
+def test_a_missing_overrides_file_is_refused(run_cli, tmp_path):
+    folder = _fleet(tmp_path)
+    code, _, stderr = run_cli("batch", folder, "--overrides", tmp_path / "none.csv")
+    assert code == 2 and "file not found" in stderr and stderr.count("\n") == 1
 
 
 def test_nothing_to_design_is_refused(run_cli, tmp_path):
