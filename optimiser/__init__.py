@@ -13,6 +13,7 @@ From Python (the functions live in :mod:`stowflow.api`)::
 * :func:`design`: the whole job of ``stowflow design``, a :class:`DesignResult`;
 * :func:`simulate`: the time-domain verification of a design, a :class:`SimulationResult`;
 * :func:`size`: single-point accumulator sizing, a :class:`pandas.Series`;
+* :func:`batch`, :func:`explore`: a fleet of cycles, one design's trade-offs (on Dask);
 * :func:`settings`: the settings objects that :func:`design`'s keywords make;
 * :class:`StowflowError`: what every bad input raises (one line).
 
@@ -38,7 +39,9 @@ trim_pyomo_scipy_hook()
 _LAZY: dict[str, str] = {
     "DesignResult": "api",
     "SimulationResult": "api",
+    "batch": "api",
     "design": "api",
+    "explore": "api",
     "load_catalogue": "api",
     "read_cycle": "api",
     "settings": "api",
@@ -52,7 +55,9 @@ __all__ = [
     "SimulationResult",
     "StowflowError",
     "__version__",
+    "batch",
     "design",
+    "explore",
     "load_catalogue",
     "read_cycle",
     "settings",

@@ -12,6 +12,8 @@ parsers and pipeline, so a script gets exactly what ``stowflow design`` writes:
 * :func:`simulate`: the time-domain verification of a given design (``stowflow simulate``),
   a :class:`SimulationResult`;
 * :func:`size`: single-point accumulator sizing (``stowflow size``), a :class:`pandas.Series`;
+* :func:`batch`: a fleet of cycles on Dask (``stowflow batch``), the summary as a DataFrame;
+* :func:`explore`: one design's trade-off front and sensitivity (``stowflow explore``);
 * :func:`settings`: the settings objects the keywords of :func:`design` make.
 
 Quantities are given with their units as text, the way the command line takes them
@@ -57,7 +59,9 @@ __all__ = [
     "DesignResult",
     "Settings",
     "SimulationResult",
+    "batch",
     "design",
+    "explore",
     "load_catalogue",
     "read_cycle",
     "settings",
@@ -720,6 +724,139 @@ def design(
         verify=verify,
     )
     return DesignResult(run(study, progress=progress))
+
+
+# -- studies on Dask (the bodies live in stowflow.studies) -----------------------------------
+
+
+def batch(
+    cycles: str | Path,
+    out: str | Path,
+    catalogue: Catalogue | str | Path | None = None,
+    *,
+    overrides: str | Path | pd.DataFrame | None = None,
+    min_pressure: str | float | None = None,
+    step: str | float | None = None,
+    verify: bool = True,
+    scheduler: str | None = None,
+    workers: int | None = None,
+    force: bool = False,
+    **settings: Any,
+) -> pd.DataFrame:
+    """Design every cycle of a folder or glob on Dask, as ``stowflow batch`` does.
+
+    Parameters
+    ----------
+    cycles : str or pathlib.Path
+        A folder of cycle CSVs, one CSV or a glob.
+    out : str or pathlib.Path
+        Output folder: one folder per cycle, ``summary.csv`` and ``fleet.html``.
+    catalogue : Catalogue, str or pathlib.Path, optional
+        Shared catalogue (default: the bundled demo catalogue).
+    overrides : str, pathlib.Path or pandas.DataFrame, optional
+        Per-cycle options: a ``cycle`` column (the file's stem) and option columns, values
+        as text with units.
+    min_pressure, step : str or float, optional
+        As in :func:`read_cycle` (gauge [Pa]; [s]), shared by every cycle.
+    verify : bool
+        Run the time-domain verification (default True).
+    scheduler : str, optional
+        A running Dask scheduler, ``tcp://HOST:PORT`` (default: a local cluster).
+    workers : int, optional
+        Worker processes of the local cluster, [-].
+    force : bool
+        Design every cycle again, even one whose inputs are unchanged.
+    **settings
+        Shared design and cost settings, as :func:`settings` takes them.
+
+    Returns
+    -------
+    pandas.DataFrame
+        ``summary.csv`` as written (:data:`stowflow.studies.batch.COLUMNS`).
+    """
+    from stowflow.studies.batch import run_batch
+
+    made = _build_settings(settings)
+    return run_batch(
+        cycles,
+        out,
+        catalogue=catalogue,
+        design=made.design,
+        costs=made.costs,
+        overrides=overrides,
+        min_pressure=_quantity(min_pressure, "pressure", "min_pressure"),
+        step=_quantity(step, "time", "step"),
+        verify=verify,
+        scheduler=scheduler,
+        workers=workers,
+        force=force,
+    )
+
+
+def explore(
+    cycle: DutyCycle | str | Path | pd.DataFrame,
+    catalogue: Catalogue | str | Path | None = None,
+    *,
+    out: str | Path | None = None,
+    samples: int = 0,
+    seed: int = 0,
+    min_pressure: str | float | None = None,
+    step: str | float | None = None,
+    scheduler: str | None = None,
+    workers: int | None = None,
+    **settings: Any,
+):
+    """Trade-off front and sensitivity of a cycle's design on Dask, as ``stowflow explore``.
+
+    Parameters
+    ----------
+    cycle : DutyCycle, str, pathlib.Path or pandas.DataFrame
+        The duty cycle, or what :func:`read_cycle` reads it from.
+    catalogue : Catalogue, str or pathlib.Path, optional
+        Components (default: the bundled demo catalogue).
+    out : str or pathlib.Path, optional
+        When given, the folder the files of ``stowflow explore`` are written to.
+    samples : int
+        Monte Carlo samples, [-] (0: none).
+    seed : int
+        Seed of the Monte Carlo draws.
+    min_pressure, step : str or float, optional
+        As in :func:`read_cycle` (gauge [Pa]; [s]).
+    scheduler : str, optional
+        A running Dask scheduler, ``tcp://HOST:PORT`` (default: a local cluster).
+    workers : int, optional
+        Worker processes of the local cluster, [-].
+    **settings
+        Design and cost settings, as :func:`settings` takes them.
+
+    Returns
+    -------
+    stowflow.studies.explore.Exploration
+        ``.front``, ``.sensitivity``, ``.monte_carlo`` (the CSV files' frames),
+        ``.candidates`` (every candidate of the screen) and ``.study`` (the design).
+    """
+    from stowflow.cycle.duty import DutyCycle
+    from stowflow.studies.explore import explore_cycle, write_exploration
+
+    made = _build_settings(settings)
+    if not isinstance(cycle, DutyCycle):
+        cycle = read_cycle(cycle, min_pressure=min_pressure, step=step)
+    cat = catalogue if not isinstance(catalogue, str | Path | None) else load_catalogue(catalogue)
+    if samples < 0:
+        raise SettingsError(f"samples: {samples}; expected a whole number ≥ 0")
+    ex = explore_cycle(
+        cycle,
+        cat,
+        made.design,
+        made.costs,
+        samples=samples,
+        seed=seed,
+        scheduler=scheduler,
+        workers=workers,
+    )
+    if out is not None:
+        write_exploration(ex, out)
+    return ex
 
 
 # -- simulate --------------------------------------------------------------------------------

@@ -41,6 +41,7 @@ LAYERS: dict[str, int] = {
     "stowflow.report": 8,
     "stowflow.pipeline": 9,
     "stowflow.api": 10,
+    "stowflow.studies": 10,
     "stowflow": 10,
     "stowflow.__main__": 12,
     "stowflow.cli": 11,

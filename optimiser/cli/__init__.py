@@ -26,6 +26,8 @@ __all__ = ["COMMANDS", "build_parser", "join_dash_values", "main"]
 COMMANDS: tuple[str, ...] = (
     "demo",
     "design",
+    "batch",
+    "explore",
     "check",
     "simulate",
     "size",

@@ -47,6 +47,7 @@ MAX_BYTES: dict[str, int] = {
     "catalogue": 8_000_000,
     "design": 64_000_000,
     "schedule": 64_000_000,
+    "overrides": 8_000_000,
 }
 
 

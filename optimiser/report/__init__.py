@@ -40,6 +40,7 @@ __all__ = [
     "schedule_csv",
     "schedule_frame",
     "spec_rows",
+    "study_texts",
     "write_study",
 ]
 
@@ -78,19 +79,35 @@ def write_study(
         The folder cannot be used or written; the previous files are then unchanged.
     """
     check_out_dir(out_dir, option, OUTPUTS)  # before the rendering's seconds
-    schedule = schedule_csv(result)
-    texts = {
-        "design.json": design_json(result),
-        "schedule.csv": schedule,
-        "spec.csv": spec_csv(result),
-        "report.html": render_html(result),
-    }
-    files: dict[str, str | bytes] = {name: texts[name] for name in OUTPUTS}
+    files: dict[str, str | bytes] = dict(study_texts(result))
     if pdf is None:
         return write_set(out_dir, files, option)
     from stowflow.report.pdf import render_pdf
 
-    data, why_not = render_pdf(texts["report.html"], pdf)
+    data, why_not = render_pdf(files["report.html"], pdf)
     if data is not None:
         files["report.pdf"] = data
     return write_set(out_dir, files, option), why_not
+
+
+def study_texts(result) -> dict[str, str]:
+    """The texts of the files :func:`write_study` writes, keyed as :data:`OUTPUTS` (a batch
+    renders them where the study ran and writes them where it was asked for).
+
+    Parameters
+    ----------
+    result : StudyResult
+        The study's result.
+
+    Returns
+    -------
+    dict of str to str
+        File name → text.
+    """
+    texts = {
+        "design.json": design_json(result),
+        "schedule.csv": schedule_csv(result),
+        "spec.csv": spec_csv(result),
+        "report.html": render_html(result),
+    }
+    return {name: texts[name] for name in OUTPUTS}

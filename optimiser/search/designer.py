@@ -48,7 +48,7 @@ from stowflow.search.store import (
 )
 from stowflow.units import HOUR, kelvin_to_celsius
 
-__all__ = ["Family", "design", "family_problem", "family_problems"]
+__all__ = ["Family", "design", "family_problem", "family_problems", "ideal_energies"]
 
 #: Most tied families that get the schedule MILP (the rest are ranked by the greedy rule).
 MILP_FAMILIES = 1
@@ -303,7 +303,9 @@ def _infeasible(search: _Search, reason: str) -> Design:
     )
 
 
-def _rank_ties(problem: Problem, candidates, catalogue: Catalogue) -> list[tuple]:
+def _rank_ties(
+    problem: Problem, candidates, catalogue: Catalogue, per_set: int = PRECHARGES_PER_SET
+) -> list[tuple]:
     """Level 3 among the ties, first pass: each (component set, precharge) ranked by its
     energy under the ideal controller, least first.
 
@@ -317,8 +319,8 @@ def _rank_ties(problem: Problem, candidates, catalogue: Catalogue) -> list[tuple
             ranked.append((_pump_only_energy(problem, cand), None, cand, np.ones(problem.n, int)))
             continue
         idx = np.arange(cand.precharges.size)
-        if idx.size > PRECHARGES_PER_SET:
-            idx = np.unique(np.linspace(0, idx.size - 1, PRECHARGES_PER_SET).round().astype(int))
+        if idx.size > per_set:
+            idx = np.unique(np.linspace(0, idx.size - 1, per_set).round().astype(int))
         fams = family_problems(problem, cand, cand.precharges[idx], cand.p_max[idx], catalogue)
         for fam in fams:
             # Rank by the ideal controller: loaded whenever the store must rise, unloaded
@@ -332,6 +334,25 @@ def _rank_ties(problem: Problem, candidates, catalogue: Catalogue) -> list[tuple
             ranked.append((e_rank, fam, cand, None))
     ranked.sort(key=lambda r: r[0])
     return ranked
+
+
+def ideal_energies(
+    problem: Problem, candidates, catalogue: Catalogue, per_set: int = PRECHARGES_PER_SET
+) -> list[tuple]:
+    """Each candidate's least energy per cycle under an ideal pressure switch, over up to
+    ``per_set`` of its precharges (evenly spread): the designer's own ranking of ties.
+
+    Returns
+    -------
+    list of tuple
+        Per candidate that has a trajectory: (candidate, energy [J], precharge [Pa]
+        absolute, or nan for a pump-only supply).
+    """
+    best: dict[int, tuple] = {}
+    for energy, fam, cand, _u in _rank_ties(problem, candidates, catalogue, per_set):
+        if id(cand) not in best:  # ranked least first
+            best[id(cand)] = (cand, energy, math.nan if fam is None else fam.precharge)
+    return [best[id(c)] for c in candidates if id(c) in best]
 
 
 def _solve_ranked(problem: Problem, ranked: list[tuple], catalogue, notes, report):

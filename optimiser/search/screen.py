@@ -57,6 +57,7 @@ __all__ = [
     "LOWEST_PRECHARGE",
     "Candidate",
     "ScreenResult",
+    "all_candidates",
     "infeasibility_reason",
     "pump_unload_limit",
     "screen",
@@ -488,6 +489,31 @@ def screen(
         tuple(frontier),
         tuple(ranked),
     )
+
+
+def all_candidates(problem: Problem, catalogue: Catalogue) -> list[Candidate]:
+    """Every combination the screen finds for the cycle, at every motor rating: for each pump,
+    motor and accumulator row that meet the cycle, the least bank (and each pump-only
+    supply), with the precharges at which it suffices.  What a trade-off front is drawn
+    from; :func:`screen` stops at the least power instead.
+
+    Parameters
+    ----------
+    problem : Problem
+        The prepared cycle.
+    catalogue : Catalogue
+        Components to choose from.
+
+    Returns
+    -------
+    list of Candidate
+        In ascending motor rating.
+    """
+    sc = _Screen(problem, catalogue)
+    found: list[Candidate] = []
+    for power in sorted({m.rated_power for m in sc.motors}):
+        found += sc.level_candidates(power)
+    return found
 
 
 def infeasibility_reason(problem: Problem, catalogue: Catalogue, deficit_max, pumps) -> str:
