@@ -53,6 +53,7 @@ References
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 
@@ -71,6 +72,7 @@ __all__ = [
     "State",
     "accept",
     "propagate",
+    "scalar_gas",
     "start_state",
     "sub_map",
 ]
@@ -154,6 +156,94 @@ def _scalar_table() -> _ScalarRhoT:
     if _SCALAR is None:
         _SCALAR = _ScalarRhoT()
     return _SCALAR
+
+
+@functools.lru_cache(maxsize=64)
+def scalar_gas(model: str, mass: float, volume: float):
+    """``(V, T) -> (p, Γ)`` of a charge for plain floats: :meth:`GasCharge.state1` without
+    (∂p/∂T)_V, with the table's spline unrolled (the same arithmetic in the same order, so
+    the same floats) - the innermost call of the scalar steps.
+
+    Parameters
+    ----------
+    model : str
+        ``"real"`` or ``"ideal"``.
+    mass : float
+        Gas mass, [kg].
+    volume : float
+        Gas volume with no oil stored, [m³].
+
+    Returns
+    -------
+    callable
+        ``pg(V [m³], T [K]) -> (p [Pa], Γ [-])``.
+    """
+    R = R_SPECIFIC
+    if model == "ideal":
+        g_ideal = KAPPA - 1.0
+
+        def pg_ideal(V: float, T: float) -> tuple[float, float]:
+            dpdT = mass / V * R
+            return dpdT * T, g_ideal
+
+        return pg_ideal
+    charge = GasCharge(model, mass, volume)
+    tab = _scalar_table()
+    if not tab.ok:  # pragma: no cover - the table ships with the package
+
+        def pg_fallback(V: float, T: float) -> tuple[float, float]:
+            p, _, g = charge.state1(V, T)
+            return p, g
+
+        return pg_fallback
+    x0, hx, y0, hy = tab.x0, tab.hx, tab.y0, tab.hy
+    i_top, j_top, n1 = tab.nx - 2, tab.ny - 2, tab.stride
+    n2, n3 = 2 * n1, 3 * n1
+    cz, ccv, cr = tab.coef
+    (r_lo, r_hi), (t_lo, t_hi) = tab.rho_range, tab.T_range
+    log, floor = math.log, math.floor
+    cells: dict = {}  # (i, j) -> the 4 × 4 coefficients of each field around the cell
+
+    def pg(V: float, T: float) -> tuple[float, float]:
+        rho = mass / V
+        if not (r_lo <= rho <= r_hi and t_lo <= T <= t_hi):
+            p, _, g = charge.state1(V, T)
+            return p, g
+        u = (rho - x0) / hx
+        i = min(max(floor(u), 0), i_top)
+        v = (log(T) - y0) / hy
+        j = min(max(floor(v), 0), j_top)
+        t = u - i
+        t2 = t * t
+        t3 = t2 * t
+        s = 1.0 - t
+        a0, a1 = s * s * s / 6.0, (3 * t3 - 6 * t2 + 4) / 6.0
+        a2, a3 = (-3 * t3 + 3 * t2 + 3 * t + 1) / 6.0, t3 / 6.0
+        t = v - j
+        t2 = t * t
+        t3 = t2 * t
+        s = 1.0 - t
+        b0, b1 = s * s * s / 6.0, (3 * t3 - 6 * t2 + 4) / 6.0
+        b2, b3 = (-3 * t3 + 3 * t2 + 3 * t + 1) / 6.0, t3 / 6.0
+        cell = cells.get((i, j))
+        if cell is None:
+            r0 = i * n1 + j
+            rows = (r0, r0 + n1, r0 + n2, r0 + n3)
+            cell = cells[(i, j)] = tuple(tuple(c[r : r + 4]) for c in (cz, ccv, cr) for r in rows)
+        f = []
+        for q in range(0, 12, 4):
+            c0, c1, c2, c3 = cell[q], cell[q + 1], cell[q + 2], cell[q + 3]
+            f.append(
+                a0 * (c0[0] * b0 + c0[1] * b1 + c0[2] * b2 + c0[3] * b3)
+                + a1 * (c1[0] * b0 + c1[1] * b1 + c1[2] * b2 + c1[3] * b3)
+                + a2 * (c2[0] * b0 + c2[1] * b1 + c2[2] * b2 + c2[3] * b3)
+                + a3 * (c3[0] * b0 + c3[1] * b1 + c3[2] * b2 + c3[3] * b3)
+            )
+        z, cv, ratio = f
+        dpdT = ratio * rho * R
+        return z * rho * R * T, dpdT / (rho * cv)
+
+    return pg
 
 
 @dataclass(frozen=True)

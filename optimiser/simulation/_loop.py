@@ -25,6 +25,7 @@ from stowflow.simulation._integrator import (
     State,
     accept,
     propagate,
+    scalar_gas,
     start_state,
 )
 
@@ -95,24 +96,14 @@ class Budget:
             )
 
 
-def _sub_map1(h, r, Va, Vb, G, T_wall, tau) -> tuple[float, float]:
-    """Scalar :func:`stowflow.simulation._integrator.sub_map` (plain floats, math functions)."""
-    ratio = (Va / Vb) ** G
-    if math.isinf(tau):
-        return ratio, 0.0
-    x = h / tau
-    e = math.exp(-x)
-    one_minus = -math.expm1(-x)
-    return e * ratio, T_wall * (one_minus + G * r * tau * (one_minus - x * e) / Vb)
-
-
 def scalar_step(
     plant: Plant, st: State, k: int, parts, budget: Budget | None = None
 ) -> tuple[State, dict]:
     """Integrate grid step k part by part with the relief valve and the oil limits.
 
     Explicit Heun substeps on the oil (relief flow :math:`K (p - p_c)^+`) with the same
-    exponential map for the temperature; used where the smooth path does not apply.
+    exponential map for the temperature (:func:`~._integrator.sub_map` for one substep, in
+    plain floats); used where the smooth path does not apply.
 
     Parameters
     ----------
@@ -135,22 +126,20 @@ def scalar_step(
     ch = plant.charge
     Vg, pa, pc = ch.volume, plant.p_ambient, plant.relief
     K = plant.relief_gain
+    Tw, tau = plant.T_wall, plant.tau
+    adiabatic = math.isinf(tau)
+    pg = scalar_gas(ch.model, ch.mass, ch.volume)
     d = float(plant.demand[k])
     S, T, p, G = st.S, st.T, st.p, st.G
-    out = dict(
-        p_lo=p,
-        p_hi=p,
-        w_pump=0.0,
-        w_cons=0.0,
-        w_relief=0.0,
-        v_relief=0.0,
-        v_unmet=0.0,
-        out_max=-math.inf,
-        stop=False,
-    )
+    p_lo = p_hi = p
+    w_pump = w_cons = w_relief = v_relief = v_unmet = 0.0
+    out_max = -math.inf
+    stop = False
     hi = min(plant.stop, Vg * (1.0 - 1e-6))
+    e = om = f = 0.0
 
-    def advance(S, T, G, r, hs):
+    def advance(G, r, hs):
+        """One substep of the oil at flow r [m³/s] and the temperature map with Γ = G."""
         S_try = S + r * hs
         unmet = excess = 0.0
         if S_try < 0.0:
@@ -159,17 +148,21 @@ def scalar_step(
             excess, S_new = S_try - hi, hi
         else:
             S_new = S_try
-        r_eff = (S_new - S) / hs
-        a, b = _sub_map1(hs, r_eff, Vg - S, Vg - S_new, G, plant.T_wall, plant.tau)
-        T_new = a * T + b
-        p_new, _, G_new = ch.state1(Vg - S_new, T_new)
+        Vb = Vg - S_new
+        ratio = ((Vg - S) / Vb) ** G
+        if adiabatic:
+            T_new = ratio * T
+        else:
+            r_eff = (S_new - S) / hs
+            T_new = e * ratio * T + Tw * (om + G * r_eff * tau * f / Vb)
+        p_new, G_new = pg(Vb, T_new)
         return S_new, T_new, p_new, G_new, unmet, excess
 
     for h, u in parts:
         if h <= 0:
             continue
         q_in = plant.qp * u
-        out["out_max"] = max(out["out_max"], d - (plant.qp if u >= 1.0 else 0.0))
+        out_max = max(out_max, d - (plant.qp if u >= 1.0 else 0.0))
         V = Vg - S
         stiff = K * KAPPA * max(p, pc) / max(V, _EPS)
         n = max(
@@ -179,26 +172,42 @@ def scalar_step(
         if budget is not None:
             budget.spend(n)
         hs = h / n
+        if not adiabatic:
+            x = hs / tau
+            e = math.exp(-x)
+            om = -math.expm1(-x)
+            f = om - x * e
         for _ in range(n):
             qr0 = K * max(0.0, p - pc)
-            pred = advance(S, T, G, q_in - d - qr0, hs)
+            pred = advance(G, q_in - d - qr0, hs)
             qr1 = K * max(0.0, pred[2] - pc)
             qr = 0.5 * (qr0 + qr1)
-            S1, T1, p1, G1, unmet, excess = advance(S, T, 0.5 * (G + pred[3]), q_in - d - qr, hs)
+            S1, T1, p1, G1, unmet, excess = advance(0.5 * (G + pred[3]), q_in - d - qr, hs)
             line = p1
             if excess > 0.0:  # piston at its end stop: the excess goes over the relief
                 line = max(p1, pc + excess / hs / K)
-                out["stop"] = True
+                stop = True
             pbar = 0.5 * (p + line) - pa
-            out["w_pump"] += q_in * hs * pbar
-            out["w_cons"] += (d * hs - unmet) * pbar
-            out["w_relief"] += (qr * hs) * pbar + excess * (line - pa)
-            out["v_relief"] += qr * hs + excess
-            out["v_unmet"] += unmet
-            out["p_lo"] = min(out["p_lo"], line)
-            out["p_hi"] = max(out["p_hi"], line)
+            w_pump += q_in * hs * pbar
+            w_cons += (d * hs - unmet) * pbar
+            w_relief += (qr * hs) * pbar + excess * (line - pa)
+            v_relief += qr * hs + excess
+            v_unmet += unmet
+            p_lo = min(p_lo, line)
+            p_hi = max(p_hi, line)
             S, T, p, G = S1, T1, p1, G1
     u_end = next((u for h, u in reversed(parts) if h > 0), st.u)
+    out = dict(
+        p_lo=p_lo,
+        p_hi=p_hi,
+        w_pump=w_pump,
+        w_cons=w_cons,
+        w_relief=w_relief,
+        v_relief=v_relief,
+        v_unmet=v_unmet,
+        out_max=out_max,
+        stop=stop,
+    )
     return State(S, T, p, G, int(u_end)), out
 
 
