@@ -30,8 +30,10 @@ from stowflow.simulation._integrator import (
 )
 
 __all__ = [
+    "BUDGET_STEPS",
     "MAX_PERIOD",
     "OIL_TOL",
+    "PASS_STEPS",
     "SUBSTEP_BUDGET",
     "TEMPERATURE_TOL",
     "VECTOR_SUBSTEP_COST",
@@ -62,6 +64,15 @@ _EPS = 1e-12
 #: few thousand; a stiff plant (a pump of 10⁵ L/min on a bank of a few litres) would take
 #: hours and is stopped after a few seconds with a :class:`~stowflow.errors.SimulationError`.
 SUBSTEP_BUDGET = 200_000
+#: Cycle length the budget is set for: a longer cycle gets :data:`SUBSTEP_BUDGET` per this
+#: many steps (the same work per step), [-].
+BUDGET_STEPS = 1_000
+#: Most steps one vectorised pass (:func:`propagate`) integrates at once, [-].  A pass is cut
+#: at the first switch and the rest integrated again, so on a long cycle with many switches
+#: whole-remainder passes would cost steps × switches; passes of at most this many steps keep
+#: the work proportional to the steps.  Cycles up to this length integrate exactly as in one
+#: pass.
+PASS_STEPS = 4_096
 #: What one substep of the vectorised pass (:func:`propagate`, per step and part
 #: of a pass) costs against one scalar substep, [-] (measured: about 50 times cheaper).
 VECTOR_SUBSTEP_COST = 0.02
@@ -75,12 +86,15 @@ class Budget:
     plant : Plant
         The run's fixed data (named in the message).
     limit : float, optional
-        Substeps allowed, [-] (default :data:`SUBSTEP_BUDGET`).
+        Substeps allowed, [-] (default :data:`SUBSTEP_BUDGET`, per :data:`BUDGET_STEPS`
+        steps of a longer cycle).
     """
 
     def __init__(self, plant: Plant, limit: float | None = None) -> None:
         self.plant, self.used = plant, 0.0
-        self.limit = float(SUBSTEP_BUDGET if limit is None else limit)
+        if limit is None:
+            limit = SUBSTEP_BUDGET * max(1.0, plant.n / BUDGET_STEPS)
+        self.limit = float(limit)
 
     def spend(self, substeps: float) -> None:
         """Count ``substeps`` [-]; raise SimulationError once the budget is exceeded."""
@@ -182,7 +196,14 @@ def scalar_step(
             pred = advance(G, q_in - d - qr0, hs)
             qr1 = K * max(0.0, pred[2] - pc)
             qr = 0.5 * (qr0 + qr1)
-            S1, T1, p1, G1, unmet, excess = advance(0.5 * (G + pred[3]), q_in - d - qr, hs)
+            r = q_in - d - qr
+            if S == 0.0 and pred[0] == 0.0 and r * hs <= 0.0:
+                # An empty bank that stays empty: the gas volume does not change, so Γ drops
+                # out of the temperature map and the corrector lands where the predictor did.
+                S1, T1, p1, G1 = pred[:4]
+                unmet, excess = max(0.0, -(S + r * hs)), 0.0
+            else:
+                S1, T1, p1, G1, unmet, excess = advance(0.5 * (G + pred[3]), r, hs)
             line = p1
             if excess > 0.0:  # piston at its end stop: the excess goes over the relief
                 line = max(p1, pc + excess / hs / K)
@@ -229,6 +250,11 @@ class Controller:
     def plan(self, plant: Plant, k: int, u: int):
         """Plans of steps k … N−1 for pump state u: (h1 [s], u1 [-], u2 [-]) arrays."""
         raise NotImplementedError
+
+    def window(self, plant: Plant, k: int, u: int, steps: int):
+        """Plans of steps k … k+steps−1 only (fewer at the cycle end): :meth:`plan` cut;
+        the controllers here build no more than that."""
+        return tuple(a[:steps] for a in self.plan(plant, k, u))
 
     def find_switch(self, plant: Plant, st: State, ps: Pass) -> tuple[int, float] | None:
         """First step j of the pass and fraction θ ∈ [0, 1] within it where the pump switches."""
@@ -286,10 +312,12 @@ def run_cycle(
     k = 0
     override = None
     while k < n:
-        h1, u1, u2 = ctrl.plan(plant, k, st.u)
+        h1, u1, u2 = ctrl.window(plant, k, st.u, PASS_STEPS)
+        cut = k + h1.size < n  # this pass ends before the cycle does
         if override is not None:
             h1[0], u1[0], u2[0] = override
-        ps = propagate(plant, st, h1, u1, u2, plant.demand[k:], T_guess[k:], substeps)
+        w = k + h1.size
+        ps = propagate(plant, st, h1, u1, u2, plant.demand[k:w], T_guess[k:w], substeps)
         m = ps.S_end.size
         budget.spend(VECTOR_SUBSTEP_COST * 2 * n_sub * max(m, 1))
         special = None
@@ -317,7 +345,11 @@ def run_cycle(
             continue
         if special is None:
             st = accept(rec, k, ps, m, st, plant)
-            break
+            if not cut:
+                break
+            k += m
+            override = None
+            continue
         st = accept(rec, k, ps, special, st, plant)
         k += special
         plan = (float(h1[special]), float(u1[special]), float(u2[special]))
@@ -336,7 +368,7 @@ def run_cycle(
             at_limit = st.S <= 0.0 or st.S >= min(plant.stop, plant.cap)
             if k >= n or not (info["v_relief"] > 0 or st.p >= plant.relief or at_limit):
                 break
-            h1, u1, u2 = ctrl.plan(plant, k, st.u)
+            h1, u1, u2 = ctrl.window(plant, k, st.u, 1)
             plan = (float(h1[0]), float(u1[0]), float(u2[0]))
     return rec, st
 

@@ -62,7 +62,11 @@ class ScheduleController(Controller):
 
     def plan(self, plant: Plant, k: int, u: int):
         """One part per step, delivering ``fraction`` of the full flow."""
-        f = self.fraction[k:]
+        return self.window(plant, k, u, plant.n - k)
+
+    def window(self, plant: Plant, k: int, u: int, steps: int):
+        """:meth:`plan` of steps k … k+steps−1 only."""
+        f = self.fraction[k : k + steps]
         return np.full(f.size, plant.dt), f.copy(), np.zeros(f.size)
 
 
@@ -102,7 +106,11 @@ class HysteresisController(Controller):
 
     def plan(self, plant: Plant, k: int, u: int):
         """The pump keeps its state ``u`` for the rest of the cycle until a switch."""
-        n = plant.n - k
+        return self.window(plant, k, u, plant.n - k)
+
+    def window(self, plant: Plant, k: int, u: int, steps: int):
+        """:meth:`plan` of steps k … k+steps−1 only."""
+        n = max(0, min(steps, plant.n - k))
         return np.full(n, plant.dt), np.full(n, float(u)), np.full(n, float(u))
 
     def find_switch(self, plant: Plant, st: State, ps: Pass) -> tuple[int, float] | None:
