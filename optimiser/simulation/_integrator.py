@@ -202,7 +202,7 @@ def scalar_gas(model: str, mass: float, volume: float):
     cz, ccv, cr = tab.coef
     (r_lo, r_hi), (t_lo, t_hi) = tab.rho_range, tab.T_range
     log, floor = math.log, math.floor
-    cells: dict = {}  # (i, j) -> the 4 × 4 coefficients of each field around the cell
+    cells: dict = {}  # i·stride + j -> the 4 × 4 coefficients of each field at cell (i, j)
 
     def pg(V: float, T: float) -> tuple[float, float]:
         rho = mass / V
@@ -210,9 +210,11 @@ def scalar_gas(model: str, mass: float, volume: float):
             p, _, g = charge.state1(V, T)
             return p, g
         u = (rho - x0) / hx
-        i = min(max(floor(u), 0), i_top)
+        i = floor(u)
+        i = 0 if i < 0 else (i_top if i > i_top else i)
         v = (log(T) - y0) / hy
-        j = min(max(floor(v), 0), j_top)
+        j = floor(v)
+        j = 0 if j < 0 else (j_top if j > j_top else j)
         t = u - i
         t2 = t * t
         t3 = t2 * t
@@ -225,21 +227,30 @@ def scalar_gas(model: str, mass: float, volume: float):
         s = 1.0 - t
         b0, b1 = s * s * s / 6.0, (3 * t3 - 6 * t2 + 4) / 6.0
         b2, b3 = (-3 * t3 + 3 * t2 + 3 * t + 1) / 6.0, t3 / 6.0
-        cell = cells.get((i, j))
+        r0 = i * n1 + j
+        cell = cells.get(r0)
         if cell is None:
-            r0 = i * n1 + j
             rows = (r0, r0 + n1, r0 + n2, r0 + n3)
-            cell = cells[(i, j)] = tuple(tuple(c[r : r + 4]) for c in (cz, ccv, cr) for r in rows)
-        f = []
-        for q in range(0, 12, 4):
-            c0, c1, c2, c3 = cell[q], cell[q + 1], cell[q + 2], cell[q + 3]
-            f.append(
-                a0 * (c0[0] * b0 + c0[1] * b1 + c0[2] * b2 + c0[3] * b3)
-                + a1 * (c1[0] * b0 + c1[1] * b1 + c1[2] * b2 + c1[3] * b3)
-                + a2 * (c2[0] * b0 + c2[1] * b1 + c2[2] * b2 + c2[3] * b3)
-                + a3 * (c3[0] * b0 + c3[1] * b1 + c3[2] * b2 + c3[3] * b3)
-            )
-        z, cv, ratio = f
+            cell = cells[r0] = tuple(tuple(c[r : r + 4]) for c in (cz, ccv, cr) for r in rows)
+        z0, z1, z2, z3, v0, v1, v2, v3, q0, q1, q2, q3 = cell
+        z = (
+            a0 * (z0[0] * b0 + z0[1] * b1 + z0[2] * b2 + z0[3] * b3)
+            + a1 * (z1[0] * b0 + z1[1] * b1 + z1[2] * b2 + z1[3] * b3)
+            + a2 * (z2[0] * b0 + z2[1] * b1 + z2[2] * b2 + z2[3] * b3)
+            + a3 * (z3[0] * b0 + z3[1] * b1 + z3[2] * b2 + z3[3] * b3)
+        )
+        cv = (
+            a0 * (v0[0] * b0 + v0[1] * b1 + v0[2] * b2 + v0[3] * b3)
+            + a1 * (v1[0] * b0 + v1[1] * b1 + v1[2] * b2 + v1[3] * b3)
+            + a2 * (v2[0] * b0 + v2[1] * b1 + v2[2] * b2 + v2[3] * b3)
+            + a3 * (v3[0] * b0 + v3[1] * b1 + v3[2] * b2 + v3[3] * b3)
+        )
+        ratio = (
+            a0 * (q0[0] * b0 + q0[1] * b1 + q0[2] * b2 + q0[3] * b3)
+            + a1 * (q1[0] * b0 + q1[1] * b1 + q1[2] * b2 + q1[3] * b3)
+            + a2 * (q2[0] * b0 + q2[1] * b1 + q2[2] * b2 + q2[3] * b3)
+            + a3 * (q3[0] * b0 + q3[1] * b1 + q3[2] * b2 + q3[3] * b3)
+        )
         dpdT = ratio * rho * R
         return z * rho * R * T, dpdT / (rho * cv)
 

@@ -192,9 +192,12 @@ def scalar_step(
             om = -math.expm1(-x)
             f = om - x * e
         for _ in range(n):
-            qr0 = K * max(0.0, p - pc)
+            # K·max(0, p − p_c) and min/max below as comparisons: the same floats, fewer calls
+            over = p - pc
+            qr0 = K * (over if over > 0.0 else 0.0)
             pred = advance(G, q_in - d - qr0, hs)
-            qr1 = K * max(0.0, pred[2] - pc)
+            over = pred[2] - pc
+            qr1 = K * (over if over > 0.0 else 0.0)
             qr = 0.5 * (qr0 + qr1)
             r = q_in - d - qr
             if S == 0.0 and pred[0] == 0.0 and r * hs <= 0.0:
@@ -214,8 +217,10 @@ def scalar_step(
             w_relief += (qr * hs) * pbar + excess * (line - pa)
             v_relief += qr * hs + excess
             v_unmet += unmet
-            p_lo = min(p_lo, line)
-            p_hi = max(p_hi, line)
+            if line < p_lo:
+                p_lo = line
+            if line > p_hi:
+                p_hi = line
             S, T, p, G = S1, T1, p1, G1
     u_end = next((u for h, u in reversed(parts) if h > 0), st.u)
     out = dict(
