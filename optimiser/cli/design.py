@@ -6,10 +6,11 @@ import argparse
 import sys
 from pathlib import Path
 
+from stowflow.cli._common import step_limit
 from stowflow.cli._costopts import add_cost_options, cost_settings_from_args
 from stowflow.cli._output import fixed, print_json, print_table, progress
 from stowflow.io.options import DESIGN_OPTIONS, OPTION_CHOICES, design_settings
-from stowflow.io.quantities import parse_duration, parse_pressure_difference, parse_whole
+from stowflow.io.quantities import parse_duration, parse_pressure_difference
 from stowflow.units import abs_to_gauge
 
 __all__ = ["add_design_options", "register", "run", "run_study", "settings_from_args"]
@@ -101,8 +102,8 @@ def register(subparsers, common) -> None:
     p.add_argument(
         "--max-steps",
         metavar="N",
-        help="largest number of time steps of the cycle grid (default 20000); e.g. "
-        "--step 0.1s --max-steps 36000 for a 1-hour cycle at full resolution",
+        help="largest number of time steps of the cycle grid (default 20000 for the "
+        "automatic grid, 100000 with --step), e.g. 40000",
     )
     add_design_options(p)
     p.set_defaults(func=run)
@@ -124,12 +125,11 @@ def run_study(args: argparse.Namespace, cycle, *, out_default: Path, name: str |
     costs = cost_settings_from_args(args)
     min_p = getattr(args, "min_pressure", None)
     step = getattr(args, "step", None)
-    max_steps = getattr(args, "max_steps", None)
     cycle = load_cycle(
         cycle,
         step=parse_duration(step, "--step", above=0.0) if step else None,
         min_pressure=parse_pressure_difference(min_p, "--min-pressure") if min_p else None,
-        **({"max_steps": parse_whole(max_steps, "--max-steps", at_least=1)} if max_steps else {}),
+        max_steps=step_limit(getattr(args, "max_steps", None), step),
     )
     catalogue = load_catalogue(getattr(args, "catalogue", None) or default_catalogue_path())
     out = Path(args.out) if getattr(args, "out", None) else out_default / (name or cycle.name)

@@ -8,7 +8,7 @@ from __future__ import annotations
 import json
 from pathlib import Path
 
-from stowflow.cycle.duty import DEFAULT_MAX_STEPS
+from stowflow.cycle.duty import DEFAULT_MAX_STEPS, STEP_MAX_STEPS
 from stowflow.pipeline import Study, run
 
 REPO = Path(__file__).resolve().parents[2]
@@ -16,10 +16,21 @@ PRESS = REPO / "duty_cycles" / "forming_press.csv"  # 32 s on a 50 ms grid: 640 
 
 
 def test_an_explicit_step_beyond_the_limit_names_the_option(run_cli, tmp_path):
-    code, _, err = run_cli("design", PRESS, "--step", "1ms", "--out", tmp_path / "r")
+    code, _, err = run_cli("design", PRESS, "--step", "0.1ms", "--out", tmp_path / "r")
     assert code == 2
-    assert f"gives 32000 steps; expected at most {DEFAULT_MAX_STEPS}" in err
+    assert f"gives 320000 steps; expected at most {STEP_MAX_STEPS}" in err
     assert "--max-steps" in err
+    code, _, err = run_cli("design", PRESS, "--step", "1ms", "--max-steps", "20000")
+    assert code == 2 and "gives 32000 steps; expected at most 20000" in err
+
+
+def test_a_given_step_may_give_more_steps_than_the_automatic_grid(run_cli):
+    # 32 s at 1 ms: 32,000 steps, more than the automatic grid's limit
+    code, out, err = run_cli("check", PRESS, "--step", "1ms", "--json")
+    assert code == 0, err
+    assert json.loads(out)["steps"] == 32_000 > DEFAULT_MAX_STEPS
+    code, _, err = run_cli("check", PRESS, "--step", "1ms", "--max-steps", "20000")
+    assert code == 2 and "expected at most 20000" in err
 
 
 def test_max_steps_coarsens_the_automatic_grid_of_a_design(run_cli, tmp_path):
