@@ -220,6 +220,7 @@ class _Screen:
         self.bounds: dict[tuple, tuple] = {}
         self.volumes: dict[tuple, np.ndarray] = {}
         self.draw_tables: dict[tuple, np.ndarray] = {}
+        self.split_bounds: dict[tuple, tuple] = {}
         # the widest precharge grid: every pump with the largest motor (more power, higher limit)
         big = max(self.motors, key=lambda m: m.rated_power, default=None)
         p_widest = max((pump_unload_limit(p, big, s) for p in self.pumps), default=s.p_ambient)
@@ -295,9 +296,17 @@ class _Screen:
         bounds at those without (None when every level has one): (T, P, K) tables [m³]."""
         if (key, j, "split") not in self.draw_tables:
             lo, draw = self.bounds[key][1], self._draw(j, key)
+            del self.draw_tables[(key, j)]  # the split copy replaces it
             short = ~(self.deficit_max[j] <= 0)
-            free = None if short.all() else lo[:, :, ~short]
-            self.draw_tables[(key, j, "split")] = (lo[:, :, short], draw[:, :, short], free)
+            if short.all():
+                self.draw_tables[(key, j, "split")] = (lo, draw, None)
+            else:
+                # pumps with the same levels in deficit share the bounds' copies
+                mask = (key, short.tobytes())
+                if mask not in self.split_bounds:
+                    self.split_bounds[mask] = (lo[:, :, short], lo[:, :, ~short])
+                lo_short, lo_free = self.split_bounds[mask]
+                self.draw_tables[(key, j, "split")] = (lo_short, draw[:, :, short], lo_free)
         return self.draw_tables[(key, j, "split")]
 
     def bank_counts(self, j: int, pump: PumpOption, key: tuple, option: AccumulatorOption):

@@ -105,7 +105,8 @@ def scaling(baseline: Path | None) -> None:
         for seconds in (60, 600, 3600):
             steps = 10 * seconds
             cycle = write_shift_cycle(Path(tmp) / f"press_line_{seconds}s.csv", seconds)
-            argv = [sys.executable, "-m", "stowflow", "design", str(cycle), "--out", tmp]
+            out = str(Path(tmp) / "out")
+            argv = [sys.executable, "-m", "stowflow", "design", str(cycle), "--out", out]
             argv += ["--step", "0.1s", "--max-steps", str(max(steps, 20_000))]
             new = measure(argv)
             old = None
