@@ -37,7 +37,9 @@ from _long_cycle import write_shift_cycle  # noqa: E402
 
 
 def measure(argv: list[str], env: dict | None = None) -> tuple[float, float, float, int]:
-    """Run one process; (wall [s], CPU [s], peak resident memory [MiB], exit code)."""
+    """Run one process; (wall [s], CPU [s], peak resident memory [MiB], exit code).
+
+    :func:`_line` prints the exit code 0 as "ok"."""
     import time
 
     t0 = time.perf_counter()
@@ -78,10 +80,11 @@ def median_run(argv: list[str], runs: int, env: dict | None) -> tuple[float, flo
 
 def _line(label: str, new, old) -> str:
     text = f"{label:<22} wall {new[0]:6.2f} s  CPU {new[1]:6.2f} s  peak {new[2]:5.0f} MiB"
-    text += f"  {new[3]}"
+    text += f"  {'ok' if new[3] in (0, 'ok') else new[3]}"
     if old is not None:
         text += (
-            f"  | baseline wall {old[0]:6.2f} s CPU {old[1]:6.2f} s peak {old[2]:5.0f} MiB {old[3]}"
+            f"  | baseline wall {old[0]:6.2f} s CPU {old[1]:6.2f} s peak {old[2]:5.0f} MiB"
+            f" {'ok' if old[3] in (0, 'ok') else old[3]}"
             f"  | CPU ratio {old[1] / max(new[1], 1e-9):4.2f}x"
         )
     return text
