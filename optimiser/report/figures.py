@@ -205,7 +205,7 @@ _THINNED = {
     "text": f"long cycle: each line shown with at most {DISPLAY_POINTS:,} points (first, lowest "
     "and highest of each interval); schedule.csv holds every step",
     "xref": "paper", "x": 1.0, "xanchor": "right",
-    "yref": "paper", "y": 0.0, "yanchor": "top", "yshift": -28,
+    "yref": "paper", "y": 1.0, "yanchor": "bottom", "yshift": 6,
     "showarrow": False, "font": {"size": 10, "color": COLOURS["muted"]},
 }  # fmt: skip
 
