@@ -57,6 +57,9 @@ class Study:
         Minimum working pressure for a cycle without a pressure column, gauge, [Pa].
     step : float | None
         Time step of the cycle grid, [s] (default: chosen automatically).
+    max_steps : int | None
+        Largest number of steps of the cycle grid, [-] (default
+        :data:`~stowflow.cycle.duty.DEFAULT_MAX_STEPS`).
     verify : bool
         Whether to run the time-domain verification (and its closed loop).
     """
@@ -69,6 +72,7 @@ class Study:
     min_pressure: float | None = None
     step: float | None = None
     verify: bool = True
+    max_steps: int | None = None
 
 
 @dataclass(frozen=True)
@@ -148,7 +152,8 @@ def _same_design(a: Design, b: Design) -> bool:
 def _load(study: Study) -> tuple[DutyCycle, Catalogue]:
     cycle = study.cycle
     if not isinstance(cycle, DutyCycle):
-        cycle = load_cycle(cycle, step=study.step, min_pressure=study.min_pressure)
+        limit = {} if study.max_steps is None else {"max_steps": study.max_steps}
+        cycle = load_cycle(cycle, step=study.step, min_pressure=study.min_pressure, **limit)
     cat = study.catalogue
     if cat is None:
         cat = load_catalogue(default_catalogue_path())

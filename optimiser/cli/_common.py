@@ -9,7 +9,7 @@ import numpy as np
 from stowflow.errors import SettingsError
 from stowflow.io.quantities import parse_temperature_range, parse_temperature_step
 
-__all__ = ["MAX_ROWS", "allow_negative_ranges", "temperatures"]
+__all__ = ["MAX_ROWS", "allow_negative_ranges", "step_limit", "temperatures"]
 
 #: Largest temperature table a command prints, [-].
 MAX_ROWS = 1000
@@ -56,3 +56,27 @@ def temperatures(
             f"'{str(text).strip()}'; expected a step that gives at most {MAX_ROWS} rows"
         )
     return lo + step * np.arange(n)
+
+
+def step_limit(max_steps: str | None, step: str | None) -> int:
+    """The grid's step limit from ``--max-steps`` (as typed) and whether ``--step`` was given.
+
+    Parameters
+    ----------
+    max_steps : str or None
+        ``--max-steps`` as typed, [-].
+    step : str or None
+        ``--step`` as typed (only whether it was given counts), [s].
+
+    Returns
+    -------
+    int
+        The limit, [-]: as typed, else :data:`~stowflow.cycle.duty.STEP_MAX_STEPS` for a
+        step the user gave, else :data:`~stowflow.cycle.duty.DEFAULT_MAX_STEPS`.
+    """
+    from stowflow.cycle.duty import DEFAULT_MAX_STEPS, STEP_MAX_STEPS
+    from stowflow.io.quantities import parse_whole
+
+    if max_steps is not None:
+        return parse_whole(max_steps, "--max-steps", at_least=1)
+    return STEP_MAX_STEPS if step else DEFAULT_MAX_STEPS

@@ -11,10 +11,11 @@ import argparse
 import re
 import textwrap
 
+from stowflow.cli._common import step_limit
 from stowflow.cli._output import print_json, print_table
-from stowflow.cycle.duty import DEFAULT_MAX_STEPS, load_cycle, summarize
+from stowflow.cycle.duty import DEFAULT_MAX_STEPS, STEP_MAX_STEPS, load_cycle, summarize
 from stowflow.io.numbers import number
-from stowflow.io.quantities import parse_duration, parse_pressure_difference, parse_whole
+from stowflow.io.quantities import parse_duration, parse_pressure_difference
 
 __all__ = ["register", "run"]
 
@@ -95,9 +96,9 @@ def register(subparsers, common: argparse.ArgumentParser) -> None:
     )
     parser.add_argument(
         "--max-steps",
-        default=str(DEFAULT_MAX_STEPS),
         metavar="N",
-        help=f"largest number of time steps (default {DEFAULT_MAX_STEPS})",
+        help=f"largest number of time steps (default {DEFAULT_MAX_STEPS} for the automatic "
+        f"grid, {STEP_MAX_STEPS} with --step)",
     )
     parser.set_defaults(func=run)
 
@@ -108,7 +109,7 @@ def run(args: argparse.Namespace) -> int:
     min_pressure = None
     if args.min_pressure is not None:  # gauge, as the user means it
         min_pressure = parse_pressure_difference(args.min_pressure, "--min-pressure")
-    max_steps = parse_whole(args.max_steps, "--max-steps", at_least=1)
+    max_steps = step_limit(args.max_steps, args.step)
     cycle = load_cycle(args.cycle, step=step, min_pressure=min_pressure, max_steps=max_steps)
     summary = summarize(cycle).as_dict()
     if args.json:

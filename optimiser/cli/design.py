@@ -6,6 +6,7 @@ import argparse
 import sys
 from pathlib import Path
 
+from stowflow.cli._common import step_limit
 from stowflow.cli._costopts import add_cost_options, cost_settings_from_args
 from stowflow.cli._output import print_json, print_table, progress
 from stowflow.io.numbers import display_value, fmt, shown
@@ -142,6 +143,12 @@ def register(subparsers, common) -> None:
     p.add_argument(
         "--step", metavar="TIME", help="time step of the cycle grid (default: automatic)"
     )
+    p.add_argument(
+        "--max-steps",
+        metavar="N",
+        help="largest number of time steps of the cycle grid (default 20000 for the "
+        "automatic grid, 100000 with --step), e.g. 40000",
+    )
     add_design_options(p)
     add_pdf_options(p)
     p.set_defaults(func=run)
@@ -167,6 +174,7 @@ def run_study(args: argparse.Namespace, cycle, *, out_default: Path, name: str |
         cycle,
         step=parse_duration(step, "--step", above=0.0) if step else None,
         min_pressure=parse_pressure_difference(min_p, "--min-pressure") if min_p else None,
+        max_steps=step_limit(getattr(args, "max_steps", None), step),
     )
     catalogue = load_catalogue(getattr(args, "catalogue", None) or default_catalogue_path())
     out = Path(args.out) if getattr(args, "out", None) else out_default / (name or cycle.name)

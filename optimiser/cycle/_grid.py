@@ -359,7 +359,7 @@ def _grid(raw: RawTable, seg: Segments, step, max_steps: int, notes: list[str]):
         if n > max_steps:
             raise CycleError(
                 f"{raw.source}: step {step:g} s gives {n} steps; expected at most {max_steps} "
-                "(choose a longer step)"
+                "(choose a longer step or allow more steps: --max-steps)"
             )
         dt = total / n
         if raw.form == "phases":

@@ -40,6 +40,7 @@ __all__ = [
     "DEFAULT_MAX_STEPS",
     "FORMS",
     "GRIDS",
+    "STEP_MAX_STEPS",
     "CycleSummary",
     "DutyCycle",
     "cycle_from_arrays",
@@ -51,6 +52,10 @@ __all__ = [
 
 #: Largest number of time steps the automatic grid produces, [-].
 DEFAULT_MAX_STEPS: int = 20_000
+#: Largest number of time steps the command line accepts for a step the user gave without a
+#: limit of their own (``--step`` without ``--max-steps``): a 1-hour cycle at 0.1 s is 36,000;
+#: a typo such as ``--step 1ms`` on it (3.6 million) is still refused, [-].
+STEP_MAX_STEPS: int = 100_000
 
 #: The two CSV forms.
 FORMS: tuple[str, ...] = ("phases", "samples")

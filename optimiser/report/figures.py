@@ -18,6 +18,7 @@ from stowflow.units import to_unit
 
 __all__ = [
     "COLOURS",
+    "DISPLAY_POINTS",
     "FONT",
     "SUPPLY_KEYS",
     "breakdown_figure",
@@ -191,11 +192,52 @@ def _figure(data, axes, height, annotations=(), shapes=(), **layout) -> go.Figur
         "hoverlabel": {"font": {"family": FONT}},
     }
     spec |= {name: ax | _AXIS for name, ax in axes.items()}
+    thinned = [_thin(trace) for trace in data]
+    if any(t is not d for t, d in zip(thinned, data, strict=True)):
+        data = thinned
+        annotations = [*annotations, _THINNED]
     if annotations:
         spec["annotations"] = list(annotations)
     if shapes:
         spec["shapes"] = list(shapes)
     return go.Figure(data=data, layout=spec | layout)
+
+
+#: Most points one line of a figure shows, [-].  A longer line (a long cycle at full
+#: resolution) is thinned for display only: each of DISPLAY_POINTS / 3 intervals keeps its
+#: first, lowest and highest point, so every peak and dip stays visible; the design, the
+#: verification and the CSV exports keep every step.
+DISPLAY_POINTS = 6_000
+_THINNED = {
+    "text": f"long cycle: each line shown with at most {DISPLAY_POINTS:,} points (first, lowest "
+    "and highest of each interval); schedule.csv holds every step",
+    "xref": "paper", "x": 1.0, "xanchor": "right",
+    "yref": "paper", "y": 1.0, "yanchor": "bottom", "yshift": 6,
+    "showarrow": False, "font": {"size": 10, "color": COLOURS["muted"]},
+}  # fmt: skip
+
+
+def _thin(trace: dict) -> dict:
+    """The trace with at most :data:`DISPLAY_POINTS` points (itself when it has no more)."""
+    x, y = trace.get("x"), trace.get("y")
+    if x is None or y is None or len(x) <= DISPLAY_POINTS:
+        return trace
+    n = len(x)
+    values = np.asarray(y, dtype=float)
+    edges = np.linspace(0, n, DISPLAY_POINTS // 3 + 1).astype(np.int64)
+    keep = [n - 1]
+    for a, b in zip(edges[:-1].tolist(), edges[1:].tolist(), strict=True):
+        part = values[a:b]
+        if b > a and not np.isnan(part).all():
+            keep += [a, a + int(np.nanargmin(part)), a + int(np.nanargmax(part))]
+        elif b > a:
+            keep.append(a)
+    idx = np.unique(np.array(keep))
+    out = dict(trace)
+    for key in ("x", "y", "customdata"):
+        if key in trace and len(trace[key]) == n:
+            out[key] = np.asarray(trace[key])[idx]
+    return out
 
 
 def _hline(y: float, line: dict, panel: int = 1) -> dict:

@@ -230,6 +230,7 @@ class _Screen:
         self.bounds: dict[tuple, tuple] = {}
         self.volumes: dict[tuple, np.ndarray] = {}
         self.draw_tables: dict[tuple, np.ndarray] = {}
+        self.split_bounds: dict[tuple, tuple] = {}
         # the widest precharge grid: every pump with the largest motor (more power, higher limit)
         big = max(self.motors, key=lambda m: m.rated_power, default=None)
         p_widest = max((pump_unload_limit(p, big, s) for p in self.pumps), default=s.p_ambient)
@@ -287,14 +288,36 @@ class _Screen:
     def _least_volume(self, j: int, key: tuple, vu: float, cap: np.ndarray) -> np.ndarray:
         """Per precharge, the most any (temperature, level) asks of one unit's volume
         (``vu`` nominal, ``cap`` (T, P) oil at the unload pressure, both m³)."""
-        lo = self.bounds[key][1]
-        draw = self._draw(j, key)
+        lo, draw, free = self._level_split(j, key)
         room = cap[:, :, None] - vu * lo  # (T, P, K), m³ per unit
-        with np.errstate(divide="ignore", invalid="ignore"):
-            need = np.where(room > 0, draw / room, np.inf)
-        # A level with no deficit only needs room ≥ 0 (the store may sit at its top).
-        need = np.where((self.deficit_max[j] <= 0) & (room >= -1e-12 * vu), 0.0, need)
-        return np.max(need, axis=(0, 2))
+        # Levels with a deficit need draw / room (none fits where room ≤ 0).
+        need = np.full(room.shape, np.inf)
+        np.divide(draw, room, out=need, where=room > 0)
+        worst = np.max(need, axis=(0, 2), initial=-np.inf)
+        if free is not None:
+            # A level with no deficit only needs room ≥ 0 (the store may sit at its top).
+            room0 = cap[:, :, None] - vu * free
+            bad = ~np.all(room0 >= -1e-12 * vu, axis=(0, 2))
+            worst = np.where(bad, np.inf, np.maximum(worst, 0.0))
+        return worst
+
+    def _level_split(self, j: int, key: tuple):
+        """The bank's lower bounds and the draws at the levels with a deficit, and the lower
+        bounds at those without (None when every level has one): (T, P, K) tables [m³]."""
+        if (key, j, "split") not in self.draw_tables:
+            lo, draw = self.bounds[key][1], self._draw(j, key)
+            del self.draw_tables[(key, j)]  # the split copy replaces it
+            short = ~(self.deficit_max[j] <= 0)
+            if short.all():
+                self.draw_tables[(key, j, "split")] = (lo, draw, None)
+            else:
+                # pumps with the same levels in deficit share the bounds' copies
+                mask = (key, short.tobytes())
+                if mask not in self.split_bounds:
+                    self.split_bounds[mask] = (lo[:, :, short], lo[:, :, ~short])
+                lo_short, lo_free = self.split_bounds[mask]
+                self.draw_tables[(key, j, "split")] = (lo_short, draw[:, :, short], lo_free)
+        return self.draw_tables[(key, j, "split")]
 
     def bank_counts(self, j: int, pump: PumpOption, key: tuple, option: AccumulatorOption):
         """Least count per precharge for one pump and row (inf where impossible); ``key`` is

@@ -53,6 +53,7 @@ References
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 
@@ -71,6 +72,7 @@ __all__ = [
     "State",
     "accept",
     "propagate",
+    "scalar_gas",
     "start_state",
     "sub_map",
 ]
@@ -154,6 +156,105 @@ def _scalar_table() -> _ScalarRhoT:
     if _SCALAR is None:
         _SCALAR = _ScalarRhoT()
     return _SCALAR
+
+
+@functools.lru_cache(maxsize=64)
+def scalar_gas(model: str, mass: float, volume: float):
+    """``(V, T) -> (p, Γ)`` of a charge for plain floats: :meth:`GasCharge.state1` without
+    (∂p/∂T)_V, with the table's spline unrolled (the same arithmetic in the same order, so
+    the same floats) - the innermost call of the scalar steps.
+
+    Parameters
+    ----------
+    model : str
+        ``"real"`` or ``"ideal"``.
+    mass : float
+        Gas mass, [kg].
+    volume : float
+        Gas volume with no oil stored, [m³].
+
+    Returns
+    -------
+    callable
+        ``pg(V [m³], T [K]) -> (p [Pa], Γ [-])``.
+    """
+    R = R_SPECIFIC
+    if model == "ideal":
+        g_ideal = KAPPA - 1.0
+
+        def pg_ideal(V: float, T: float) -> tuple[float, float]:
+            dpdT = mass / V * R
+            return dpdT * T, g_ideal
+
+        return pg_ideal
+    charge = GasCharge(model, mass, volume)
+    tab = _scalar_table()
+    if not tab.ok:  # pragma: no cover - the table ships with the package
+
+        def pg_fallback(V: float, T: float) -> tuple[float, float]:
+            p, _, g = charge.state1(V, T)
+            return p, g
+
+        return pg_fallback
+    x0, hx, y0, hy = tab.x0, tab.hx, tab.y0, tab.hy
+    i_top, j_top, n1 = tab.nx - 2, tab.ny - 2, tab.stride
+    n2, n3 = 2 * n1, 3 * n1
+    cz, ccv, cr = tab.coef
+    (r_lo, r_hi), (t_lo, t_hi) = tab.rho_range, tab.T_range
+    log, floor = math.log, math.floor
+    cells: dict = {}  # i·stride + j -> the 4 × 4 coefficients of each field at cell (i, j)
+
+    def pg(V: float, T: float) -> tuple[float, float]:
+        rho = mass / V
+        if not (r_lo <= rho <= r_hi and t_lo <= T <= t_hi):
+            p, _, g = charge.state1(V, T)
+            return p, g
+        u = (rho - x0) / hx
+        i = floor(u)
+        i = 0 if i < 0 else (i_top if i > i_top else i)
+        v = (log(T) - y0) / hy
+        j = floor(v)
+        j = 0 if j < 0 else (j_top if j > j_top else j)
+        t = u - i
+        t2 = t * t
+        t3 = t2 * t
+        s = 1.0 - t
+        a0, a1 = s * s * s / 6.0, (3 * t3 - 6 * t2 + 4) / 6.0
+        a2, a3 = (-3 * t3 + 3 * t2 + 3 * t + 1) / 6.0, t3 / 6.0
+        t = v - j
+        t2 = t * t
+        t3 = t2 * t
+        s = 1.0 - t
+        b0, b1 = s * s * s / 6.0, (3 * t3 - 6 * t2 + 4) / 6.0
+        b2, b3 = (-3 * t3 + 3 * t2 + 3 * t + 1) / 6.0, t3 / 6.0
+        r0 = i * n1 + j
+        cell = cells.get(r0)
+        if cell is None:
+            rows = (r0, r0 + n1, r0 + n2, r0 + n3)
+            cell = cells[r0] = tuple(tuple(c[r : r + 4]) for c in (cz, ccv, cr) for r in rows)
+        z0, z1, z2, z3, v0, v1, v2, v3, q0, q1, q2, q3 = cell
+        z = (
+            a0 * (z0[0] * b0 + z0[1] * b1 + z0[2] * b2 + z0[3] * b3)
+            + a1 * (z1[0] * b0 + z1[1] * b1 + z1[2] * b2 + z1[3] * b3)
+            + a2 * (z2[0] * b0 + z2[1] * b1 + z2[2] * b2 + z2[3] * b3)
+            + a3 * (z3[0] * b0 + z3[1] * b1 + z3[2] * b2 + z3[3] * b3)
+        )
+        cv = (
+            a0 * (v0[0] * b0 + v0[1] * b1 + v0[2] * b2 + v0[3] * b3)
+            + a1 * (v1[0] * b0 + v1[1] * b1 + v1[2] * b2 + v1[3] * b3)
+            + a2 * (v2[0] * b0 + v2[1] * b1 + v2[2] * b2 + v2[3] * b3)
+            + a3 * (v3[0] * b0 + v3[1] * b1 + v3[2] * b2 + v3[3] * b3)
+        )
+        ratio = (
+            a0 * (q0[0] * b0 + q0[1] * b1 + q0[2] * b2 + q0[3] * b3)
+            + a1 * (q1[0] * b0 + q1[1] * b1 + q1[2] * b2 + q1[3] * b3)
+            + a2 * (q2[0] * b0 + q2[1] * b1 + q2[2] * b2 + q2[3] * b3)
+            + a3 * (q3[0] * b0 + q3[1] * b1 + q3[2] * b2 + q3[3] * b3)
+        )
+        dpdT = ratio * rho * R
+        return z * rho * R * T, dpdT / (rho * cv)
+
+    return pg
 
 
 @dataclass(frozen=True)

@@ -25,12 +25,15 @@ from stowflow.simulation._integrator import (
     State,
     accept,
     propagate,
+    scalar_gas,
     start_state,
 )
 
 __all__ = [
+    "BUDGET_STEPS",
     "MAX_PERIOD",
     "OIL_TOL",
+    "PASS_STEPS",
     "SUBSTEP_BUDGET",
     "TEMPERATURE_TOL",
     "VECTOR_SUBSTEP_COST",
@@ -61,6 +64,15 @@ _EPS = 1e-12
 #: few thousand; a stiff plant (a pump of 10⁵ L/min on a bank of a few litres) would take
 #: hours and is stopped after a few seconds with a :class:`~stowflow.errors.SimulationError`.
 SUBSTEP_BUDGET = 200_000
+#: Cycle length the budget is set for: a longer cycle gets :data:`SUBSTEP_BUDGET` per this
+#: many steps (the same work per step), [-].
+BUDGET_STEPS = 1_000
+#: Most steps one vectorised pass (:func:`propagate`) integrates at once, [-].  A pass is cut
+#: at the first switch and the rest integrated again, so on a long cycle with many switches
+#: whole-remainder passes would cost steps × switches; passes of at most this many steps keep
+#: the work proportional to the steps.  Cycles up to this length integrate exactly as in one
+#: pass.
+PASS_STEPS = 4_096
 #: What one substep of the vectorised pass (:func:`propagate`, per step and part
 #: of a pass) costs against one scalar substep, [-] (measured: about 50 times cheaper).
 VECTOR_SUBSTEP_COST = 0.02
@@ -74,12 +86,15 @@ class Budget:
     plant : Plant
         The run's fixed data (named in the message).
     limit : float, optional
-        Substeps allowed, [-] (default :data:`SUBSTEP_BUDGET`).
+        Substeps allowed, [-] (default :data:`SUBSTEP_BUDGET`, per :data:`BUDGET_STEPS`
+        steps of a longer cycle).
     """
 
     def __init__(self, plant: Plant, limit: float | None = None) -> None:
         self.plant, self.used = plant, 0.0
-        self.limit = float(SUBSTEP_BUDGET if limit is None else limit)
+        if limit is None:
+            limit = SUBSTEP_BUDGET * max(1.0, plant.n / BUDGET_STEPS)
+        self.limit = float(limit)
 
     def spend(self, substeps: float) -> None:
         """Count ``substeps`` [-]; raise SimulationError once the budget is exceeded."""
@@ -95,24 +110,14 @@ class Budget:
             )
 
 
-def _sub_map1(h, r, Va, Vb, G, T_wall, tau) -> tuple[float, float]:
-    """Scalar :func:`stowflow.simulation._integrator.sub_map` (plain floats, math functions)."""
-    ratio = (Va / Vb) ** G
-    if math.isinf(tau):
-        return ratio, 0.0
-    x = h / tau
-    e = math.exp(-x)
-    one_minus = -math.expm1(-x)
-    return e * ratio, T_wall * (one_minus + G * r * tau * (one_minus - x * e) / Vb)
-
-
 def scalar_step(
     plant: Plant, st: State, k: int, parts, budget: Budget | None = None
 ) -> tuple[State, dict]:
     """Integrate grid step k part by part with the relief valve and the oil limits.
 
     Explicit Heun substeps on the oil (relief flow :math:`K (p - p_c)^+`) with the same
-    exponential map for the temperature; used where the smooth path does not apply.
+    exponential map for the temperature (:func:`~._integrator.sub_map` for one substep, in
+    plain floats); used where the smooth path does not apply.
 
     Parameters
     ----------
@@ -135,22 +140,20 @@ def scalar_step(
     ch = plant.charge
     Vg, pa, pc = ch.volume, plant.p_ambient, plant.relief
     K = plant.relief_gain
+    Tw, tau = plant.T_wall, plant.tau
+    adiabatic = math.isinf(tau)
+    pg = scalar_gas(ch.model, ch.mass, ch.volume)
     d = float(plant.demand[k])
     S, T, p, G = st.S, st.T, st.p, st.G
-    out = dict(
-        p_lo=p,
-        p_hi=p,
-        w_pump=0.0,
-        w_cons=0.0,
-        w_relief=0.0,
-        v_relief=0.0,
-        v_unmet=0.0,
-        out_max=-math.inf,
-        stop=False,
-    )
+    p_lo = p_hi = p
+    w_pump = w_cons = w_relief = v_relief = v_unmet = 0.0
+    out_max = -math.inf
+    stop = False
     hi = min(plant.stop, Vg * (1.0 - 1e-6))
+    e = om = f = 0.0
 
-    def advance(S, T, G, r, hs):
+    def advance(G, r, hs):
+        """One substep of the oil at flow r [m³/s] and the temperature map with Γ = G."""
         S_try = S + r * hs
         unmet = excess = 0.0
         if S_try < 0.0:
@@ -159,17 +162,21 @@ def scalar_step(
             excess, S_new = S_try - hi, hi
         else:
             S_new = S_try
-        r_eff = (S_new - S) / hs
-        a, b = _sub_map1(hs, r_eff, Vg - S, Vg - S_new, G, plant.T_wall, plant.tau)
-        T_new = a * T + b
-        p_new, _, G_new = ch.state1(Vg - S_new, T_new)
+        Vb = Vg - S_new
+        ratio = ((Vg - S) / Vb) ** G
+        if adiabatic:
+            T_new = ratio * T
+        else:
+            r_eff = (S_new - S) / hs
+            T_new = e * ratio * T + Tw * (om + G * r_eff * tau * f / Vb)
+        p_new, G_new = pg(Vb, T_new)
         return S_new, T_new, p_new, G_new, unmet, excess
 
     for h, u in parts:
         if h <= 0:
             continue
         q_in = plant.qp * u
-        out["out_max"] = max(out["out_max"], d - (plant.qp if u >= 1.0 else 0.0))
+        out_max = max(out_max, d - (plant.qp if u >= 1.0 else 0.0))
         V = Vg - S
         stiff = K * KAPPA * max(p, pc) / max(V, _EPS)
         n = max(
@@ -179,28 +186,56 @@ def scalar_step(
         if budget is not None:
             budget.spend(n)
         hs = h / n
+        if not adiabatic:
+            x = hs / tau
+            e = math.exp(-x)
+            om = -math.expm1(-x)
+            f = om - x * e
         for _ in range(n):
-            qr0 = K * max(0.0, p - pc)
-            pred = advance(S, T, G, q_in - d - qr0, hs)
-            qr1 = K * max(0.0, pred[2] - pc)
+            # K·max(0, p − p_c) and min/max below as comparisons: the same floats, fewer calls
+            over = p - pc
+            qr0 = K * (over if over > 0.0 else 0.0)
+            pred = advance(G, q_in - d - qr0, hs)
+            over = pred[2] - pc
+            qr1 = K * (over if over > 0.0 else 0.0)
             qr = 0.5 * (qr0 + qr1)
-            S1, T1, p1, G1, unmet, excess = advance(S, T, 0.5 * (G + pred[3]), q_in - d - qr, hs)
+            r = q_in - d - qr
+            if S == 0.0 and pred[0] == 0.0 and r * hs <= 0.0:
+                # An empty bank that stays empty: the gas volume does not change, so Γ drops
+                # out of the temperature map and the corrector lands where the predictor did.
+                S1, T1, p1, G1 = pred[:4]
+                unmet, excess = max(0.0, -(S + r * hs)), 0.0
+            else:
+                S1, T1, p1, G1, unmet, excess = advance(0.5 * (G + pred[3]), r, hs)
             line = p1
             if excess > 0.0:  # piston at its end stop: the excess goes over the relief
                 line = max(p1, pc + excess / hs / K)
-                out["stop"] = True
+                stop = True
             pbar = 0.5 * (p + line) - pa
-            out["w_pump"] += q_in * hs * pbar
-            out["w_cons"] += (d * hs - unmet) * pbar
-            out["w_relief"] += (qr * hs) * pbar + excess * (line - pa)
-            out["v_relief"] += qr * hs + excess
-            out["v_unmet"] += unmet
-            out["p_lo"] = min(out["p_lo"], line)
-            out["p_hi"] = max(out["p_hi"], line)
+            w_pump += q_in * hs * pbar
+            w_cons += (d * hs - unmet) * pbar
+            w_relief += (qr * hs) * pbar + excess * (line - pa)
+            v_relief += qr * hs + excess
+            v_unmet += unmet
+            if line < p_lo:
+                p_lo = line
+            if line > p_hi:
+                p_hi = line
             S, T, p, G = S1, T1, p1, G1
     # The state after the step is its last part's (an empty last part carries a controller's
     # state, e.g. the schedule's cut-out latch).
     u_end = parts[-1][1] if parts else st.u
+    out = dict(
+        p_lo=p_lo,
+        p_hi=p_hi,
+        w_pump=w_pump,
+        w_cons=w_cons,
+        w_relief=w_relief,
+        v_relief=v_relief,
+        v_unmet=v_unmet,
+        out_max=out_max,
+        stop=stop,
+    )
     return State(S, T, p, G, int(u_end)), out
 
 
@@ -222,6 +257,11 @@ class Controller:
     def plan(self, plant: Plant, k: int, u: int):
         """Plans of steps k … N−1 for pump state u: (h1 [s], u1 [-], u2 [-]) arrays."""
         raise NotImplementedError
+
+    def window(self, plant: Plant, k: int, u: int, steps: int):
+        """Plans of steps k … k+steps−1 only (fewer at the cycle end): :meth:`plan` cut;
+        the controllers here build no more than that."""
+        return tuple(a[:steps] for a in self.plan(plant, k, u))
 
     def find_switch(self, plant: Plant, st: State, ps: Pass) -> tuple[int, float] | None:
         """First step j of the pass and fraction θ ∈ [0, 1] within it where the pump switches."""
@@ -279,10 +319,12 @@ def run_cycle(
     k = 0
     override = None
     while k < n:
-        h1, u1, u2 = ctrl.plan(plant, k, st.u)
+        h1, u1, u2 = ctrl.window(plant, k, st.u, PASS_STEPS)
+        cut = k + h1.size < n  # this pass ends before the cycle does
         if override is not None:
             h1[0], u1[0], u2[0] = override
-        ps = propagate(plant, st, h1, u1, u2, plant.demand[k:], T_guess[k:], substeps)
+        w = k + h1.size
+        ps = propagate(plant, st, h1, u1, u2, plant.demand[k:w], T_guess[k:w], substeps)
         m = ps.S_end.size
         budget.spend(VECTOR_SUBSTEP_COST * 2 * n_sub * max(m, 1))
         special = None
@@ -310,7 +352,11 @@ def run_cycle(
             continue
         if special is None:
             st = accept(rec, k, ps, m, st, plant)
-            break
+            if not cut:
+                break
+            k += m
+            override = None
+            continue
         st = accept(rec, k, ps, special, st, plant)
         k += special
         plan = (float(h1[special]), float(u1[special]), float(u2[special]))
@@ -329,7 +375,7 @@ def run_cycle(
             at_limit = st.S <= 0.0 or st.S >= min(plant.stop, plant.cap)
             if k >= n or not (info["v_relief"] > 0 or st.p >= plant.relief or at_limit):
                 break
-            h1, u1, u2 = ctrl.plan(plant, k, st.u)
+            h1, u1, u2 = ctrl.window(plant, k, st.u, 1)
             plan = (float(h1[0]), float(u1[0]), float(u2[0]))
     return rec, st
 

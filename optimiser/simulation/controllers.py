@@ -110,7 +110,11 @@ class ScheduleController(Controller):
     def plan(self, plant: Plant, k: int, u: int):
         """One part per step, delivering ``fraction`` of the full flow; the state (second,
         empty part) is 1 while armed and 0 from a cut-out to the next load start."""
-        f = self.fraction[k:].copy()
+        return self.window(plant, k, u, plant.n - k)
+
+    def window(self, plant: Plant, k: int, u: int, steps: int):
+        """:meth:`plan` of steps k … k+steps−1 only."""
+        f = self.fraction[k : k + steps].copy()
         armed = np.ones(f.size)
         if self.cut_out is not None:
             if k == 0 and self._latched_in != 0:  # a new cycle
@@ -124,8 +128,8 @@ class ScheduleController(Controller):
                 if self._always and stop < self.fraction.size:
                     # Re-armed at the cycle start, but not before the least unloaded dwell.
                     stop = max(stop, min(math.ceil(self._rearm / plant.dt - 1e-9), plant.n))
-                f[: stop - k] = 0.0
-                armed[: stop - k] = 0.0
+                f[: max(0, stop - k)] = 0.0
+                armed[: max(0, stop - k)] = 0.0
         self._latched_in, self._plan_k, self._prev_u = None, k, u
         return np.full(f.size, plant.dt), f, armed
 
@@ -192,7 +196,11 @@ class HysteresisController(Controller):
 
     def plan(self, plant: Plant, k: int, u: int):
         """The pump keeps its state ``u`` for the rest of the cycle until a switch."""
-        n = plant.n - k
+        return self.window(plant, k, u, plant.n - k)
+
+    def window(self, plant: Plant, k: int, u: int, steps: int):
+        """:meth:`plan` of steps k … k+steps−1 only."""
+        n = max(0, min(steps, plant.n - k))
         return np.full(n, plant.dt), np.full(n, float(u)), np.full(n, float(u))
 
     def find_switch(self, plant: Plant, st: State, ps: Pass) -> tuple[int, float] | None:
