@@ -175,6 +175,8 @@ class _Loop:
     previous: Design | None = None
     stuck: int = 0  # passes in a row that left the design unchanged
     notes: list[str] = field(default_factory=list)  # what the loop changed, for the reader
+    # After a gas cure: (settings before it, the design that ran empty, its shortfall [Pa]).
+    gas_cure: tuple | None = None
 
 
 def _raise_requirement(loop: _Loop, d: Design, shortfall: np.ndarray) -> None:
@@ -218,31 +220,36 @@ def _design_and_verify(study: Study, cycle: DutyCycle, catalogue: Catalogue, rep
             min_power=previous.levels["installed_power [W]"] if previous is not None else 0.0,
         )
         loop.t_design += time.perf_counter() - t1
+        if not d.feasible and loop.gas_cure is not None:
+            # More gas made the design impossible: raise the requirement where the pressure
+            # fell short instead, when it did.
+            settings, (failed, shortfall) = loop.gas_cure[0], loop.gas_cure[1:]
+            loop.gas_cure = None
+            if shortfall is not None and np.any(shortfall > 0):
+                loop.notes.append(
+                    "no design holds the gas volume an empty bank asked for; the requirement "
+                    "is raised where the pressure fell short instead"
+                )
+                _raise_requirement(loop, failed, shortfall)
+                continue
+        loop.gas_cure = None
         if not d.feasible or not study.verify:
             loop.attempts.append(Attempt(float(extra.max()), d.status, None, float("nan")))
             loop.result, loop.verification = d, None
             break
-        t1 = time.perf_counter()
-        v = verify(
-            d,
-            cycle,
-            settings,
-            progress=lambda f, lab, stage=stage: stage(0.5 + 0.5 * f, lab),
-            timed_schedule=True,
-        )
-        loop.t_verify += time.perf_counter() - t1
-        # The exported schedule is the timed one the verification proved, or none.
-        if d.bank is not None:
-            sch = v.schedule if v.schedule is not None else d.schedule.iloc[0:0]
-            d = replace(d, schedule=sch, schedule_timed=v.schedule is not None)
+        progress = lambda f, lab, stage=stage: stage(0.5 + 0.5 * f, lab)  # noqa: E731
+        d, v = _verified(loop, d, cycle, settings, progress)
         loop.attempts.append(Attempt(float(extra.max()), d.status, v.passed, v.min_margin))
         loop.result, loop.verification = d, v
         if v.passed:
+            break
+        if _same_power_pass(loop, d, v, cycle, catalogue, settings, progress):
             break
         cure = _cure(d, v, settings)
         if cure is None:
             break  # nothing a redesign can cure: the failure is not storage or pressure
         if isinstance(cure, DesignSettings):
+            loop.gas_cure = (settings, d, v.shortfall)
             settings = cure  # the bank ran empty: more gas, not more pressure
             loop.notes.append(
                 f"a bank ran empty in the verification: the next pass asked for at least "
@@ -254,9 +261,78 @@ def _design_and_verify(study: Study, cycle: DutyCycle, catalogue: Catalogue, rep
     return loop
 
 
+def _verified(loop: _Loop, d: Design, cycle, settings, progress) -> tuple[Design, Verification]:
+    """Verify a design; the exported schedule becomes the timed one the verification proved,
+    or none."""
+    t1 = time.perf_counter()
+    v = verify(d, cycle, settings, progress=progress, timed_schedule=True)
+    loop.t_verify += time.perf_counter() - t1
+    if d.bank is not None:
+        sch = v.schedule if v.schedule is not None else d.schedule.iloc[0:0]
+        d = replace(d, schedule=sch, schedule_timed=v.schedule is not None)
+    return d, v
+
+
+#: Most other component sets at the same installed power tried, when a design falls short,
+#: before the requirement is raised.
+SAME_POWER_TRIES = 3
+
+
+def _same_power_pass(
+    loop: _Loop, d: Design, v: Verification, cycle, catalogue, settings, progress
+) -> bool:
+    """After a failed verification, the runners-up at the same installed power, in the
+    objective's order, each designed with its own components only (same raised requirement)
+    and verified; the first that passes becomes the result (True).  Their pump-only
+    alternatives and lower bound stay those of the whole catalogue."""
+    power = d.installed_power
+    seen = {(d.pump.name, d.motor.name, d.bank.option.name if d.bank else None)}
+    tries = 0
+    for alt in d.runners_up:
+        key = (alt.pump.name, alt.motor.name, alt.option.name if alt.option else None)
+        if alt.motor.rated_power != power or key in seen:
+            continue
+        seen.add(key)
+        if tries == SAME_POWER_TRIES:
+            break
+        tries += 1
+        only = replace(
+            catalogue,
+            pumps=(alt.pump,),
+            motors=(alt.motor,),
+            accumulators=(alt.option,) if alt.option is not None else (),
+        )
+        t1 = time.perf_counter()
+        d2 = design(cycle, only, settings, extra_pressure=loop.extra)
+        loop.t_design += time.perf_counter() - t1
+        if not d2.feasible:
+            continue
+        d2 = replace(
+            d2,
+            baselines=d.baselines,
+            lower_bound_power=d.lower_bound_power,
+            runners_up=d.runners_up,
+            alternatives=d.alternatives,
+        )
+        d2, v2 = _verified(loop, d2, cycle, settings, progress)
+        loop.attempts.append(Attempt(float(loop.extra.max()), d2.status, v2.passed, v2.min_margin))
+        if v2.passed:
+            loop.notes.append(
+                f"the first choice fell short in the verification ({_failure(d, v)}); the next "
+                f"component set at the same {power / KW:g} kW passed"
+            )
+            loop.result, loop.verification = d2, v2
+            return True
+    return False
+
+
 #: Growth of the gas volume on top of what an empty bank lacked, [-] (a margin; the next
 #: verification checks the result).
 EMPTY_BANK_GROWTH = 1.1
+#: Most the gas volume grows in one pass after a bank ran empty, [-]: the growth is scaled
+#: by what the bank lacked over the oil it delivered, which is unbounded for a bank whose
+#: oil hardly moved.
+EMPTY_BANK_MAX_GROWTH = 4.0
 
 
 def _cure(d: Design, v: Verification, settings: DesignSettings):
@@ -274,6 +350,7 @@ def _cure(d: Design, v: Verification, settings: DesignSettings):
         swing = max(float(np.ptp(r.trace["accumulator_oil [m³]"].to_numpy())) for r in empty)
         lack = max(r.unmet_volume for r in empty)
         grow = EMPTY_BANK_GROWTH * (1.0 + lack / max(swing, 1e-9 * d.bank.gas_volume))
+        grow = min(grow, EMPTY_BANK_MAX_GROWTH)  # a bank that hardly moved says little
         floor = max(settings.min_gas_volume, d.bank.gas_volume * grow)
         return settings.with_(min_gas_volume=floor)
     if v.shortfall is None or not np.any(v.shortfall > 0):

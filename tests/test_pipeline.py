@@ -104,6 +104,7 @@ def test_an_empty_bank_is_cured_with_gas_not_pressure(monkeypatch, repo_root):
         return dataclasses.replace(v, passed=False, runs=runs, reason="bank runs empty")
 
     monkeypatch.setattr(pipeline, "verify", empty_once)
+    monkeypatch.setattr(pipeline, "SAME_POWER_TRIES", 0)  # the cure itself, not the runners-up
     res = run(Study(cycle=repo_root / "duty_cycles" / "forming_press.csv"))
     (first, _), (second, s2) = seen[:2]
     # The floor: the first bank grown by what it lacked over the oil it delivered, +10 %.
@@ -112,6 +113,39 @@ def test_an_empty_bank_is_cured_with_gas_not_pressure(monkeypatch, repo_root):
     # No pressure was added: the second pass's requirement is the first's.
     assert res.attempts[1].extra_pressure_max == 0.0
     assert res.verification.passed
+
+
+def test_a_runner_up_at_the_same_power_is_tried_before_the_requirement_is_raised(
+    monkeypatch, repo_root
+):
+    # The first choice is made to fall short by 3 bar everywhere; the next component set at
+    # the same installed power (a runner-up) is designed and verified as it is, and passes:
+    # no requirement is raised and the motor stays the same.
+    real = pipeline.verify
+    seen = []
+
+    def short_once(design, cycle, settings=None, **kw):
+        v = real(design, cycle, settings, **kw)
+        seen.append(design)
+        if len(seen) > 1:
+            return v
+        short = np.full(cycle.n_steps, 3 * BAR)
+        runs = tuple(
+            dataclasses.replace(r, passed=False, reason="made short", failures=("made short",))
+            for r in v.runs
+        )
+        return dataclasses.replace(v, passed=False, runs=runs, reason="made short", shortfall=short)
+
+    monkeypatch.setattr(pipeline, "verify", short_once)
+    res = run(Study(cycle=repo_root / "duty_cycles" / "forming_press.csv"))
+    first, second = seen[:2]
+    assert second.installed_power == first.installed_power
+    key = lambda d: (d.pump.name, d.bank.option.name if d.bank else None)  # noqa: E731
+    assert key(second) != key(first)
+    assert [a.extra_pressure_max for a in res.attempts[:2]] == [0.0, 0.0]
+    assert res.verification.passed and res.design.installed_power == first.installed_power
+    # Its pump-only alternatives are still those of the whole catalogue.
+    assert [b.kind for b in res.design.baselines] == [b.kind for b in first.baselines]
 
 
 @pytest.mark.slow

@@ -43,7 +43,7 @@ from dataclasses import dataclass, field, replace
 import numpy as np
 import pandas as pd
 from stowflow.cycle.duty import DutyCycle
-from stowflow.errors import SettingsError
+from stowflow.errors import SettingsError, SimulationError
 from stowflow.physics.valves import RELIEF_OVERRIDE
 from stowflow.search.settings import DesignSettings
 from stowflow.search.solution import Design
@@ -656,6 +656,17 @@ def _timed_schedule_runs(
     first run.  When none does, the last one's runs are returned with no schedule: a
     schedule that failed is never exported.
     """
+    try:
+        return _derive_timed(runner, given, sw_runs, tick, notes)
+    except SimulationError as exc:  # the schedule is an extra: its failure is not the design's
+        notes.append(f"schedule: not simulated ({exc}); none is exported")
+        return [], None
+
+
+def _derive_timed(
+    runner: _Runner, given: dict, sw_runs: list, tick: _Progress, notes: list[str]
+) -> tuple[list[ControllerRun], pd.DataFrame | None]:
+    """The body of :func:`_timed_schedule_runs`."""
     design, s = runner.design, runner.s
     if _relief_by_design(design):  # loaded throughout: the plan is the schedule, no cut-out
         runs = _schedule_runs(runner, given, tick, notes)
