@@ -286,10 +286,12 @@ def _same_power_pass(
     and verified; the first that passes becomes the result (True).  Their pump-only
     alternatives and lower bound stay those of the whole catalogue."""
     power = d.installed_power
-    seen = {(d.pump.name, d.motor.name, d.bank.option.name if d.bank else None)}
+    # The verification sees the pump's flow and the bank, not the pump's control: a set that
+    # differs only there would fall short the same way.
+    seen = {(round(d.pump.flow, 12), d.bank.option.name if d.bank else None)}
     tries = 0
     for alt in d.runners_up:
-        key = (alt.pump.name, alt.motor.name, alt.option.name if alt.option else None)
+        key = (round(alt.pump.flow, 12), alt.option.name if alt.option else None)
         if alt.motor.rated_power != power or key in seen:
             continue
         seen.add(key)
