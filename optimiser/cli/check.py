@@ -13,10 +13,11 @@ import textwrap
 
 from stowflow.cli._output import print_json, print_table
 from stowflow.cycle.duty import DEFAULT_MAX_STEPS, load_cycle, summarize
-from stowflow.io.numbers import number
+from stowflow.io.numbers import METRIC, current_system, display_value, number, unit_label
 from stowflow.io.quantities import parse_duration, parse_pressure_difference, parse_whole
+from stowflow.units import BAR, KW, LITRE, LPM, P_AMBIENT
 
-__all__ = ["register", "run"]
+__all__ = ["display_units", "register", "run"]
 
 #: Version tag of the ``--json`` output.
 SCHEMA = "stowflow.check/1"
@@ -50,6 +51,33 @@ _ROWS = (
     ("pump_only_flow_lpm", "pump-only supply: flow", "L/min", "{:.4g}"),
     ("pump_only_hydraulic_power_kw", "pump-only supply: hydraulic power", "kW", "{:.4g}"),
 )
+
+#: Metric unit of a summary row → (kind of quantity, SI value of one unit, SI offset).  A row
+#: in one of these units is shown in the unit system in force (``--units``).
+_KINDS = {
+    "L/min": ("flow", LPM, 0.0),
+    "L": ("volume", LITRE, 0.0),
+    "bar": ("pressure", BAR, P_AMBIENT),  # gauge
+    "kW": ("power", KW, 0.0),
+}
+
+
+def _in_system(key: str, unit: str, value) -> tuple[object, str]:
+    """A summary value in metric ``unit`` → (value, unit) in the unit system in force."""
+    if unit not in _KINDS or value is None or current_system() is METRIC:
+        return value, unit
+    kind, one, offset = _KINDS[unit]
+    return display_value(float(value) * one + offset, kind), unit_label(kind)
+
+
+def display_units(summary: dict) -> dict:
+    """The summary's quantities in the unit system in force: ``{key: {"value", "unit"}}``."""
+    out = {}
+    for key, _shown, unit, _fmt in _ROWS:
+        if unit in _KINDS and summary.get(key) is not None:
+            value, label = _in_system(key, unit, summary[key])
+            out[key] = {"value": value, "unit": label}
+    return out
 
 
 def _show(spec: str, value) -> str:
@@ -112,11 +140,17 @@ def run(args: argparse.Namespace) -> int:
     cycle = load_cycle(args.cycle, step=step, min_pressure=min_pressure, max_steps=max_steps)
     summary = summarize(cycle).as_dict()
     if args.json:
-        print_json({"schema": SCHEMA, **summary})
+        extra = {}
+        if current_system() is not METRIC:  # the metric keys stay; the chosen units beside
+            extra = {"display_units": {"system": current_system().name, **display_units(summary)}}
+        print_json({"schema": SCHEMA, **summary, **extra})
         return 0
     rows = []
     for key, shown, unit, fmt in _ROWS:
-        value = summary[key]
+        metric_value, metric_unit = summary[key], unit
+        value, unit = _in_system(key, unit, metric_value)
+        if unit != metric_unit and metric_unit == "kW" and value is not None:
+            unit = f"{unit} ({_show(fmt, metric_value)} kW)"  # hp beside kW
         rows.append((shown, "n/a" if value is None else _show(fmt, value), unit))
     print_table(rows, title=f"duty cycle '{summary['name']}' ({summary['source']})")
     for note in summary["notes"]:
