@@ -10,7 +10,6 @@ from __future__ import annotations
 import argparse
 
 import pandas as pd
-
 from stowflow.cli._common import allow_negative_ranges, temperatures
 from stowflow.cli._output import print_json, print_table
 from stowflow.errors import SettingsError
