@@ -8,7 +8,7 @@ from pathlib import Path
 
 from stowflow.cli._costopts import add_cost_options, cost_settings_from_args
 from stowflow.cli._output import print_json, print_table, progress
-from stowflow.io.numbers import METRIC, current_system, display_value, fmt, shown, unit_label
+from stowflow.io.numbers import METRIC, current_system, fmt, shown, unit_label
 from stowflow.io.options import DESIGN_OPTIONS, OPTION_CHOICES, design_settings
 from stowflow.io.quantities import parse_duration, parse_pressure_difference
 from stowflow.units import T_REF
@@ -190,7 +190,7 @@ def run_study(args: argparse.Namespace, cycle, *, out_default: Path, name: str |
 
 
 def _bar(p_abs: float) -> str:
-    return shown(display_value(p_abs, "pressure"), "pressure", unit=False)
+    return fmt(p_abs, "pressure", unit=False)
 
 
 def _value(value_si: float, kind: str) -> str:

@@ -9,9 +9,10 @@ scientific form with a ×10 power, never with an "e" exponent.
 
 The conversion from SI to the display unit lives in one place, :class:`UnitSystem`:
 :data:`METRIC` (bar gauge, L, L/min, kW, °C, …) and :data:`US` (psi gauge, US gal, gpm, hp
-beside kW, °F, in³/rev), both by name in :data:`SYSTEMS`.  A call passes ``system=``, or
-leaves it out and gets the system in force: :data:`METRIC` unless a caller (the CLI's
-``--units``, the web form) chose another with ``with using(US): ...``.  Every conversion
+beside kW, °F, in³/rev), both by name in :data:`SYSTEMS`.  A call to :func:`fmt` (an SI
+value) passes ``system=``, or leaves it out and gets the system in force: :data:`METRIC`
+unless a caller (the CLI's ``--units``, the web form) chose another with
+``with using(US): ...``.  Every conversion
 factor comes from the one pint registry (:func:`stowflow.units.to_unit`).
 
 Durations read in words ("under 1 month", "5 months", "2.3 years", "never").
@@ -348,13 +349,14 @@ def shown(
         True: append the kind's unit; False: the number alone; a string: append that label
         (a currency, say).
     system : UnitSystem
-        Display units.
+        Display units the value is in (default :data:`METRIC`: a value already converted
+        by hand is in metric units; :func:`fmt` passes the system in force).
     digits : int, optional
         Significant digits [-] instead of the kind's.
     width : int
         Widest number [characters] before scientific form.
     """
-    du = (system or current_system()).unit(kind)
+    du = (system or METRIC).unit(kind)  # a value already shown: its callers' units are metric
     text = number(
         value,
         du.digits if digits is None else digits,

@@ -15,13 +15,16 @@ stay as written.
 
 from __future__ import annotations
 
+import contextlib
+import contextvars
 import math
 import re
+from collections.abc import Iterable, Iterator
 
 from stowflow.io.numbers import METRIC, current_system, display_value, fmt, unit_label
 from stowflow.units import BAR, KW, LITRE, LPM, P_AMBIENT, celsius_to_kelvin
 
-__all__ = ["display_units_record", "in_system_text"]
+__all__ = ["catalogue_names", "display_units_record", "in_system_text", "keeping"]
 
 
 def _value(value_si, kind: str, p_ambient: float = P_AMBIENT) -> dict | None:
@@ -126,6 +129,61 @@ def _convert(m: re.Match) -> str:
     return fmt(value * one + offset, kind)
 
 
+_KEPT: contextvars.ContextVar[tuple[str, ...]] = contextvars.ContextVar(
+    "stowflow_kept_names", default=()
+)
+
+
+@contextlib.contextmanager
+def keeping(names: Iterable[str]) -> Iterator[None]:
+    """Inside the block, :func:`in_system_text` leaves these texts (catalogue names) as written."""
+    kept = tuple(sorted({str(n) for n in names if n}, key=len, reverse=True))
+    token = _KEPT.set(kept)
+    try:
+        yield
+    finally:
+        _KEPT.reset(token)
+
+
+def catalogue_names(result) -> list[str]:
+    """The catalogue rows' names a study's texts quote: its bank, pumps and motors."""
+    names = []
+    d = result.design
+    if d.bank is not None:
+        names.append(d.bank.option.name)
+    for thing in (getattr(d, "pump", None), getattr(d, "motor", None)):
+        if thing is not None:
+            names.append(thing.name)
+    cat = getattr(result, "catalogue", None)
+    for group in ("accumulators", "pumps", "motors", "drives"):
+        names += [getattr(row, "name", "") for row in getattr(cat, group, ()) or ()]
+    return names
+
+
+def _sub(text: str) -> str:
+    """Metric quantities of ``text`` converted, the kept names left as written."""
+    kept = [n for n in _KEPT.get() if n in text]
+    if not kept:
+        return _METRIC_RE.sub(_convert, text)
+    parts = [text]
+    for name in kept:  # split around each kept name, convert only between them
+        parts = [piece for part in parts for piece in _split_keep(part, name)]
+    return "".join(p if p in kept else _METRIC_RE.sub(_convert, p) for p in parts)
+
+
+def _split_keep(text: str, name: str) -> list[str]:
+    if text == name or name not in text:
+        return [text]
+    out: list[str] = []
+    pieces = text.split(name)
+    for k, piece in enumerate(pieces):
+        if piece:
+            out.append(piece)
+        if k < len(pieces) - 1:
+            out.append(name)
+    return out
+
+
 def in_system_text(text):
     """``text`` with its metric quantities in the unit system in force (as is under metric).
 
@@ -139,12 +197,13 @@ def in_system_text(text):
     -------
     str or object
         E.g. "relief valve set to 4,061 psi, for 10.2 gpm" under the US system.  A
-        catalogue name after "catalogue:" is kept as written.
+        catalogue name after "catalogue:", and the names given to :func:`keeping`, are
+        kept as written.
     """
     if not isinstance(text, str) or current_system() is METRIC:
         return text
     head, sep, tail = text.partition("catalogue: ")
     if sep:  # "catalogue: <row name>[; more]": keep the name, convert what follows it
         name, semi, rest = tail.partition(";")
-        return _METRIC_RE.sub(_convert, head) + sep + name + semi + in_system_text(rest)
-    return _METRIC_RE.sub(_convert, text)
+        return _sub(head) + sep + name + semi + in_system_text(rest)
+    return _sub(text)

@@ -23,6 +23,7 @@ from stowflow.cycle.duty import summarize
 from stowflow.io import numbers
 from stowflow.report import content, figures, objective, schematic, spec
 from stowflow.report.content import money, q
+from stowflow.report.display_units import catalogue_names, in_system_text, keeping
 from stowflow.report.exports import spec_rows
 from stowflow.units import kelvin_to_celsius
 from stowflow.version import __version__
@@ -39,7 +40,7 @@ _CONFIG = {
 
 def e(value) -> str:
     """Escape any value for HTML text or a quoted attribute."""
-    return html.escape("" if value is None else str(value), quote=True)
+    return html.escape("" if value is None else in_system_text(str(value)), quote=True)
 
 
 def figure_html(fig: go.Figure | None, div_id: str, caption: str = "") -> str:
@@ -702,8 +703,15 @@ def render_html(result, *, generated: _dt.date | None = None) -> str:
     Returns
     -------
     str
-        The HTML text: plotly.js inlined once, no external resources.
+        The HTML text: plotly.js inlined once, no external resources.  Texts are in the
+        unit system in force (``--units``); catalogue names stay as the catalogue writes them.
     """
+    with keeping(catalogue_names(result)):
+        return _document(result, generated)
+
+
+def _document(result, generated: _dt.date | None) -> str:
+    """The HTML text of :func:`render_html`."""
     day = (generated or _dt.date.today()).isoformat()
     cyc = result.cycle
     toc = "".join(
@@ -714,7 +722,8 @@ def render_html(result, *, generated: _dt.date | None = None) -> str:
     t_lo = kelvin_to_celsius(result.settings.t_min)
     t_hi = kelvin_to_celsius(result.settings.t_max)
     meta = (
-        f"cycle {cyc.name} · {cyc.n_steps:,} steps of {cyc.dt:g} s · {t_lo:.0f} … {t_hi:.0f} °C · "
+        f"cycle {cyc.name} · {cyc.n_steps:,} steps of {cyc.dt:g} s · "
+        f"{t_lo:.0f} °C … {t_hi:.0f} °C · "
         # the file name only: a report travels, and a local folder means nothing to its reader
         f"catalogue {PurePath(result.catalogue.source).name} · {day} · stowflow {__version__}"
     )
