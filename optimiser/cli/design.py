@@ -11,6 +11,7 @@ from stowflow.cli._output import print_json, print_table, progress
 from stowflow.io.numbers import METRIC, current_system, fmt, shown, unit_label
 from stowflow.io.options import DESIGN_OPTIONS, OPTION_CHOICES, design_settings
 from stowflow.io.quantities import parse_duration, parse_pressure_difference
+from stowflow.report.display_units import catalogue_names, in_system_text, keeping
 from stowflow.units import T_REF
 
 __all__ = [
@@ -280,14 +281,15 @@ def print_summary(result, paths, stream=None) -> None:
         if ref is not None:
             rows.append((f"against {best.key}", ref.note, ""))
     rows.append(("time", shown(result.timings["total"], "time", unit=False), "s"))
-    print_table(rows, title=f"stowflow design: {result.name}", stream=stream)
-    from stowflow.report.content import recommendation
+    with keeping(catalogue_names(result)):  # catalogue names as the catalogue writes them
+        print_table(rows, title=f"stowflow design: {result.name}", stream=stream)
+        from stowflow.report.content import recommendation
 
-    stream.write(f"recommendation: {recommendation(result)}\n")
-    for line in explain:
-        stream.write(f"{line}\n")
-    for note in d.notes:
-        stream.write(f"note: {note}\n")
+        stream.write(f"recommendation: {in_system_text(recommendation(result))}\n")
+        for line in explain:
+            stream.write(f"{line}\n")
+        for note in d.notes:
+            stream.write(f"note: {in_system_text(note)}\n")
     for key, path in paths.items():
         stream.write(f"{key}: {path}\n")
 
