@@ -272,7 +272,10 @@ def test_temperature_ranges(text, celsius):
     assert (lo - ZERO_C, hi - ZERO_C) == pytest.approx(celsius, abs=1e-9)
 
 
-RANGE = "a range in °C as LO..HI or one value, e.g. 10..50, -20..60 or 20 (°F with its unit, e.g. 50degF..120degF)"
+RANGE = (
+    "a range in °C as LO..HI or one value, e.g. 10..50, -20..60 or 20 (°F with its unit, e.g. "
+    "50degF..120degF)"
+)
 
 
 @pytest.mark.parametrize(
