@@ -25,6 +25,7 @@ from stowflow.report import content, figures, objective, schematic, spec
 from stowflow.report.content import money, q
 from stowflow.report.display_units import catalogue_names, in_system_text, keeping
 from stowflow.report.exports import spec_rows
+from stowflow.report.figure_units import figure_in_system
 from stowflow.units import kelvin_to_celsius
 from stowflow.version import __version__
 
@@ -45,6 +46,7 @@ def e(value) -> str:
 
 def figure_html(fig: go.Figure | None, div_id: str, caption: str = "") -> str:
     """A figure as a ``<figure>`` with its Plotly div and script (plotly.js not included)."""
+    fig = figure_in_system(fig)  # axes in the units of --units
     if fig is None:
         return ""
     body = fig.to_html(full_html=False, include_plotlyjs=False, div_id=div_id, config=_CONFIG)

@@ -176,3 +176,17 @@ def test_design_table_is_in_us_units(us_and_metric):
     assert _row(out, "total gas volume")[-1] == "US gal"
     assert _row(out, "motor")[-1].startswith("hp (") and _row(out, "motor")[-1].endswith("kW)")
     assert "precharge at 68 °F" in out
+
+
+def test_report_figures_have_us_axes_and_scaled_lines(us_and_metric):
+    us = (us_and_metric["us"] / "report.html").read_text(encoding="utf-8")
+    metric = (us_and_metric["metric"] / "report.html").read_text(encoding="utf-8")
+    assert '"text":"pressure [psi]"' in us and '"text":"pressure [bar]"' not in us
+    assert '"text":"pressure [bar]"' in metric
+    # the relief line is drawn at the relief setting in psi (bar × 1e5 / 6894.757, NIST SP 811)
+    relief_bar = json.loads((us_and_metric["metric"] / "design.json").read_text())["relief_bar"]
+    lines = [
+        float(y)
+        for y in re.findall(r'"dash":"dashdot","width":1\},"type":"line".*?"y0":([\d.]+)', us)
+    ]
+    assert any(abs(y - relief_bar * 1e5 / PSI) < 1.0 for y in lines)
