@@ -65,5 +65,5 @@ def check_bare_range(text, t_max: float, types: Iterable[str], option: str) -> N
     raise SettingsError(
         f"{option}: '{s}' is read as °C and has {hot:g} °C, above the {limit:g} °C a "
         f"{' or '.join(over)} elastomer takes (common practice); if you meant °F write "
-        f"{f_form}; if you meant °C write {c_form} (and consider --types piston)"
+        f"{f_form}; if you meant °C write {c_form} (a piston type has no such elastomer)"
     )
