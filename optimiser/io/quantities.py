@@ -84,7 +84,7 @@ _DEG = r"(?:\s*(°\s*[CF]|deg\s*[CF]|[CF]))?"
 _TEMPERATURE_RE = re.compile(
     rf"^\s*({_NUM}){_DEG}\s*(?:\.\.\s*({_NUM}){_DEG})?\s*$", re.ASCII | re.I
 )
-_STEP_RE = re.compile(rf"^\s*({_NUM})\s*(?:K|°\s*C|deg\s*C|C)?\s*$", re.ASCII | re.I)
+_STEP_RE = re.compile(rf"^\s*({_NUM})\s*(K|°\s*C|deg\s*C|C|°\s*F|deg\s*F|F)?\s*$", re.ASCII | re.I)
 # number, optional currency word or symbol, "/", energy unit: "0.25/kWh", "0.11 $/kWh".
 _PRICE_RE = re.compile(
     rf"^\s*(?P<num>{_NUM})\s*(?P<cur>[^\d\s/.+-][^\s/]{{0,15}})?\s*/\s*(?P<unit>\S.*?)\s*$",
@@ -571,7 +571,8 @@ def parse_temperature(text: str, option: str) -> float:
 
 
 def parse_temperature_step(text: str, option: str) -> float:
-    """A temperature step in kelvin (= °C), ``"5"``, ``"5K"``.
+    """A temperature step in kelvin (= °C), ``"5"``, ``"5K"``, or in °F with its unit
+    (``"9degF"`` = 5 K).
 
     Parameters
     ----------
@@ -604,6 +605,8 @@ def parse_temperature_step(text: str, option: str) -> float:
     value = float(m.group(1))
     if not math.isfinite(value):
         raise _refusal(option, f"'{s}' is not a finite number", expected)
+    if m.group(2) and m.group(2)[-1] in "fF":  # a step in °F: 1 °F = 5/9 K, through pint
+        value = float(registry().Quantity(value, "delta_degF").to("kelvin").magnitude)
     _check(value, s, option, bounds, fmt, expected)
     return value
 

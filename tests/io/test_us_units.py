@@ -130,3 +130,11 @@ def test_the_python_api_takes_fahrenheit():
 
     s = stowflow.size("5L", "100bar", "200bar", temperature="50degF..122degF")
     assert min(abs(s["worst_temperature_c"] - t) for t in (10.0, 50.0)) < 1e-9
+
+
+def test_a_temperature_step_may_be_in_fahrenheit():
+    from stowflow.io.quantities import parse_temperature_step
+
+    # a difference of 9 °F is 5 K (NIST SP 811, 2008, B.8: °F = 5/9 K as an interval)
+    assert parse_temperature_step("9degF", "--step") == pytest.approx(5.0)
+    assert parse_temperature_step("5", "--step") == pytest.approx(5.0)
