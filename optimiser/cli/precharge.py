@@ -61,7 +61,9 @@ def register(subparsers, common: argparse.ArgumentParser) -> argparse.ArgumentPa
         help="temperature range, °C unless a unit is given: -10..50, 14degF..122degF "
         "(default -10..50)",
     )
-    parser.add_argument("--step", default="5", metavar="K", help="step in kelvin (= °C), default 5")
+    parser.add_argument(
+        "--step", default="5", metavar="K", help="step in kelvin (= °C), or 9degF; default 5"
+    )
     parser.add_argument("--gas", default="real", choices=("real", "ideal"), help="gas model")
     parser.add_argument(
         "--absolute", action="store_true", help="the precharge given is absolute (default gauge)"
