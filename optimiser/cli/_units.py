@@ -38,6 +38,8 @@ _UNITS: dict[str, tuple[str, float, str]] = {
 }
 
 _NUMBER = re.compile(r"-?\d[\d,]*(?:\.\d+)?")
+# a cell of numbers only: one, or a range "3.0 … 15.4", "207.5 – 252.0"
+_NUMBERS = re.compile(r"-?\d[\d,]*(?:\.\d+)?(?:\s*[…–]\s*-?\d[\d,]*(?:\.\d+)?)?")
 _HEADER = re.compile(r"^(.*)\[(bar|bar gauge|L|L/min|kW|cm³/rev|°C)\]\s*$")
 
 
@@ -102,7 +104,7 @@ def table_in_system(
                 continue
             if unit in _UNITS and i == 1:
                 r[i] = _number_cell(cell, unit)
-            elif i in col_units and _NUMBER.fullmatch(cell.strip() or "x"):
+            elif i in col_units and _NUMBERS.fullmatch(cell.strip() or "x"):
                 r[i] = _number_cell(cell, col_units[i])
             else:
                 r[i] = in_system_text(cell)

@@ -186,7 +186,7 @@ US = UnitSystem(
     | {
         "pressure": DisplayUnit("psi", _gauge_psi, digits=4, max_decimals=0),
         "pressure_absolute": DisplayUnit("psia", _factor("psi", "pressure"), 4, 0),
-        "pressure_difference": DisplayUnit("psi", _factor("psi", "pressure"), 3, 1),
+        "pressure_difference": DisplayUnit("psi", _factor("psi", "pressure"), 3, 2),
         "volume": DisplayUnit("US gal", _factor("gallon", "volume"), 3, 3, trim=True),
         "flow": DisplayUnit("gpm", _factor("gallon/minute", "flow"), 3, 1),
         "power": DisplayUnit(

@@ -190,3 +190,23 @@ def test_report_figures_have_us_axes_and_scaled_lines(us_and_metric):
         for y in re.findall(r'"dash":"dashdot","width":1\},"type":"line".*?"y0":([\d.]+)', us)
     ]
     assert any(abs(y - relief_bar * 1e5 / PSI) < 1.0 for y in lines)
+
+
+def test_tables_convert_unit_columns_headers_and_ranges_once():
+    from stowflow.cli._units import table_in_system
+    from stowflow.io.numbers import using
+
+    rows = [
+        ["working pressure", "100", "bar gauge"],
+        ["temperature range", "10 … 50", "°C"],
+        ["already shown", "1,450", "psi"],
+    ]
+    with using("us"):
+        out, headers = table_in_system(rows, ("quantity", "value", "unit"))
+        assert out[0][1:] == ["1,450", "psi gauge"]  # 1e7 Pa / 6894.757 Pa/psi (NIST SP 811)
+        assert out[1][1:] == ["50 … 122", "°F"]  # × 9/5 + 32 (NIST SP 811)
+        assert out[2][1:] == ["1,450", "psi"]  # not converted twice
+        out, headers = table_in_system([["3.0 … 15.4", "2"]], ("gas T [°C]", "V [L]"))
+        assert headers == ["gas T [°F]", "V [US gal]"]
+        assert out == [["37 … 60", "0.528"]]  # 2 L / 3.785411784 L/gal (NIST Handbook 44)
+    assert table_in_system(rows, ("quantity", "value", "unit"))[0] == rows  # metric: as is
