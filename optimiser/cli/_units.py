@@ -21,19 +21,15 @@ import re
 from collections.abc import Sequence
 
 from stowflow.io.numbers import METRIC, current_system, display_value, number, unit_label
-from stowflow.report.display_units import in_system_text
-from stowflow.units import BAR, KW, LITRE, LPM, celsius_to_kelvin
+from stowflow.report.display_units import METRIC_WORDS, in_system_text
+from stowflow.units import celsius_to_kelvin
 
 __all__ = ["table_in_system"]
 
 #: Metric unit text → (kind, SI of one unit, suffix kept after the new unit).
 _UNITS: dict[str, tuple[str, float, str]] = {
-    "bar": ("pressure_difference", BAR, ""),
-    "bar gauge": ("pressure_difference", BAR, " gauge"),
-    "L": ("volume", LITRE, ""),
-    "L/min": ("flow", LPM, ""),
-    "kW": ("power", KW, ""),
-    "cm³/rev": ("displacement", 1e-6, ""),
+    **{word: (kind, one, "") for word, (kind, one) in METRIC_WORDS.items()},
+    "bar gauge": (*METRIC_WORDS["bar"], " gauge"),
     "°C": ("temperature", 1.0, ""),
 }
 

@@ -15,7 +15,7 @@ from stowflow.cli._output import print_json, print_table
 from stowflow.cycle.duty import DEFAULT_MAX_STEPS, load_cycle, summarize
 from stowflow.io.numbers import METRIC, current_system, display_value, number, unit_label
 from stowflow.io.quantities import parse_duration, parse_pressure_difference, parse_whole
-from stowflow.units import BAR, KW, LITRE, LPM, P_AMBIENT
+from stowflow.report.display_units import METRIC_WORDS
 
 __all__ = ["display_units", "register", "run"]
 
@@ -52,22 +52,17 @@ _ROWS = (
     ("pump_only_hydraulic_power_kw", "pump-only supply: hydraulic power", "kW", "{:.4g}"),
 )
 
-#: Metric unit of a summary row → (kind of quantity, SI value of one unit, SI offset).  A row
-#: in one of these units is shown in the unit system in force (``--units``).
-_KINDS = {
-    "L/min": ("flow", LPM, 0.0),
-    "L": ("volume", LITRE, 0.0),
-    "bar": ("pressure", BAR, P_AMBIENT),  # gauge
-    "kW": ("power", KW, 0.0),
-}
+#: Metric units of the summary's rows that are shown in the unit system in force
+#: (``--units``), by the one table of metric words (gauge bar scales as a difference).
+_KINDS = {unit: METRIC_WORDS[unit] for unit in ("L/min", "L", "bar", "kW")}
 
 
 def _in_system(key: str, unit: str, value) -> tuple[object, str]:
     """A summary value in metric ``unit`` → (value, unit) in the unit system in force."""
     if unit not in _KINDS or value is None or current_system() is METRIC:
         return value, unit
-    kind, one, offset = _KINDS[unit]
-    return display_value(float(value) * one + offset, kind), unit_label(kind)
+    kind, one = _KINDS[unit]
+    return display_value(float(value) * one, kind), unit_label(kind)
 
 
 def display_units(summary: dict) -> dict:

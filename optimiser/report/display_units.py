@@ -22,9 +22,15 @@ import re
 from collections.abc import Iterable, Iterator
 
 from stowflow.io.numbers import METRIC, current_system, display_value, fmt, unit_label
-from stowflow.units import BAR, KW, LITRE, LPM, P_AMBIENT, celsius_to_kelvin
+from stowflow.units import BAR, KW, LITRE, LPM, P_AMBIENT, celsius_to_kelvin, si_factor
 
-__all__ = ["catalogue_names", "display_units_record", "in_system_text", "keeping"]
+__all__ = [
+    "METRIC_WORDS",
+    "catalogue_names",
+    "display_units_record",
+    "in_system_text",
+    "keeping",
+]
 
 
 def _value(value_si, kind: str, p_ambient: float = P_AMBIENT) -> dict | None:
@@ -109,14 +115,16 @@ _METRIC_RE = re.compile(
     r"(L/min|cm³/rev|°C|kW|bar(?![·\w])(?! abs)|L(?![\w/·]))"
 )
 
-#: Metric unit → (kind, SI of one unit, offset to SI).  Gauge bar and bar differences scale
-#: alike (psi gauge = bar gauge × the same factor), so "pressure_difference" serves both.
-_TEXT_KINDS = {
-    "bar": ("pressure_difference", BAR, 0.0),
-    "L": ("volume", LITRE, 0.0),
-    "L/min": ("flow", LPM, 0.0),
-    "kW": ("power", KW, 0.0),
-    "cm³/rev": ("displacement", 1e-6, 0.0),
+#: Metric unit word → (kind of quantity, SI value of one unit): the one table the texts, the
+#: CLI's tables and the figures convert by.  Gauge bar and bar differences scale alike (psi
+#: gauge = bar gauge × the same factor), so "pressure_difference" serves both; °C, an
+#: affine unit, is converted on its own.
+METRIC_WORDS: dict[str, tuple[str, float]] = {
+    "bar": ("pressure_difference", BAR),
+    "L": ("volume", LITRE),
+    "L/min": ("flow", LPM),
+    "kW": ("power", KW),
+    "cm³/rev": ("displacement", si_factor("cm3", "displacement")),
 }
 
 
@@ -125,8 +133,8 @@ def _convert(m: re.Match) -> str:
     value = float(number.replace(",", ""))
     if unit == "°C":
         return fmt(celsius_to_kelvin(value), "temperature")
-    kind, one, offset = _TEXT_KINDS[unit]
-    return fmt(value * one + offset, kind)
+    kind, one = METRIC_WORDS[unit]
+    return fmt(value * one, kind)
 
 
 _KEPT: contextvars.ContextVar[tuple[str, ...]] = contextvars.ContextVar(

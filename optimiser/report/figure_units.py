@@ -15,19 +15,13 @@ import re
 import numpy as np
 import plotly.graph_objects as go
 from stowflow.io.numbers import METRIC, current_system, display_value, unit_label
-from stowflow.report.display_units import in_system_text
-from stowflow.units import BAR, KW, LITRE, LPM
+from stowflow.report.display_units import METRIC_WORDS, in_system_text
 
 __all__ = ["figure_in_system"]
 
 #: Metric unit in an axis title → (kind, SI of one unit).  Bar on an axis is gauge or a
 #: difference: both scale alike.
-_AXIS_UNITS = {
-    "bar": ("pressure_difference", BAR),
-    "L": ("volume", LITRE),
-    "L/min": ("flow", LPM),
-    "kW": ("power", KW),
-}
+_AXIS_UNITS = METRIC_WORDS
 _TITLE = re.compile(r"^(.*)\[(bar|L|L/min|kW)\]\s*$")
 _BARE = re.compile(r"^(bar|L|L/min|kW)$")  # an axis titled by its unit alone
 # a hover template's unit after a %{y…} or %{customdata…} field
