@@ -112,7 +112,7 @@ def display_units_record(result) -> dict | None:
 # A number then a metric unit, not inside a longer word; "bar·L" and "bar abs" excluded.
 _METRIC_RE = re.compile(
     r"(?<![\w.,])(-?\d[\d,]*(?:\.\d+)?)\s?"
-    r"(L/min|cm³/rev|°C|kW|bar(?![·\w])(?! abs)|L(?![\w/·]))"
+    r"(L/min(?!\w)|cm³/rev|°C|kW(?![\w·])|bar(?![·\w])(?! abs)|L(?![\w/·]))"
 )
 
 #: Metric unit word → (kind of quantity, SI value of one unit): the one table the texts, the

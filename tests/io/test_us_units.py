@@ -138,3 +138,25 @@ def test_a_temperature_step_may_be_in_fahrenheit():
     # a difference of 9 °F is 5 K (NIST SP 811, 2008, B.8: °F = 5/9 K as an interval)
     assert parse_temperature_step("9degF", "--step") == pytest.approx(5.0)
     assert parse_temperature_step("5", "--step") == pytest.approx(5.0)
+
+
+@pytest.mark.parametrize(
+    ("metric", "us"),
+    [
+        ("relief valve set to 280 bar", "relief valve set to 4,061 psi"),  # 28e6/6894.757
+        ("for 38.6 L/min", "for 10.2 gpm"),  # 38.6 / 3.785411784 (NIST Handbook 44)
+        ("22 kW motor", "29.5 hp (22 kW) motor"),  # 22000 / 745.6999 (NIST SP 811)
+        ("at 20 °C", "at 68 °F"),
+        ("5 kWh a year", "5 kWh a year"),  # energy stays
+        ("0.25/kWh", "0.25/kWh"),
+        ("PS·V = 8,250 bar·L", "PS·V = 8,250 bar·L"),  # defined in bar·L by the directive
+        ("ambient 1.0 bar absolute", "ambient 1.0 bar absolute"),
+        ("catalogue: bladder 25 L 330 bar; 5 L", "catalogue: bladder 25 L 330 bar; 1.32 US gal"),
+    ],
+)
+def test_texts_in_metric_words_are_shown_in_us_units(metric, us):
+    from stowflow.report.display_units import in_system_text
+
+    with using("us"):
+        assert in_system_text(metric) == us
+    assert in_system_text(metric) == metric  # metric in force: as written
