@@ -134,6 +134,9 @@ def _convert(m: re.Match) -> str:
     if unit == "°C":
         return fmt(celsius_to_kelvin(value), "temperature")
     kind, one = METRIC_WORDS[unit]
+    du = current_system().unit(kind)
+    if du.beside is not None and m.string[: m.start()].endswith(f"{du.label} ("):
+        return m.group(0)  # the metric unit fmt shows beside ("29.5 hp (22 kW)"): done
     return fmt(value * one, kind)
 
 

@@ -166,6 +166,7 @@ def test_spec_csv_and_report_show_psi_gpm_and_hp(us_and_metric):
     html = (folder / "report.html").read_text(encoding="utf-8")
     text = re.sub(r"<script.*?</script>", "", html, flags=re.S)
     assert " psi" in text and " gpm" in text and " hp (" in text and "°F" in text
+    assert not re.search(r"hp \([^)]*hp", text)  # the kW beside hp is not converted again
     metric_html = (us_and_metric["metric"] / "report.html").read_text(encoding="utf-8")
     assert " psi" not in re.sub(r"<script.*?</script>", "", metric_html, flags=re.S)
 

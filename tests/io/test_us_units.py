@@ -160,3 +160,14 @@ def test_texts_in_metric_words_are_shown_in_us_units(metric, us):
     with using("us"):
         assert in_system_text(metric) == us
     assert in_system_text(metric) == metric  # metric in force: as written
+
+
+def test_a_text_already_in_us_units_is_not_converted_twice():
+    from stowflow.report.display_units import in_system_text
+
+    with using("us"):
+        once = fmt(22000.0, "power")
+        assert in_system_text(once) == once == "29.5 hp (22 kW)"
+        assert in_system_text(f"motor {once}, pump 10.2 gpm at 3,000 psi") == (
+            f"motor {once}, pump 10.2 gpm at 3,000 psi"
+        )
