@@ -51,9 +51,9 @@ def print_table(
     """Print rows as an aligned table (rich when the output is a terminal, plain otherwise).
 
     Metric cells, headers and the title are shown in the unit system of ``--units``
-    (:func:`stowflow.cli._units.table_in_system`)."""
-    from stowflow.cli._units import table_in_system
+    (:func:`stowflow.report.table_units.table_in_system`)."""
     from stowflow.report.display_units import in_system_text
+    from stowflow.report.table_units import table_in_system
 
     rows = [[("" if c is None else str(c)) for c in r] for r in rows]
     rows, headers = table_in_system(rows, headers)

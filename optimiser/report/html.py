@@ -26,6 +26,7 @@ from stowflow.report.content import money, q
 from stowflow.report.display_units import catalogue_names, in_system_text, keeping
 from stowflow.report.exports import spec_rows
 from stowflow.report.figure_units import figure_in_system
+from stowflow.report.table_units import table_in_system
 from stowflow.units import kelvin_to_celsius
 from stowflow.version import __version__
 
@@ -63,7 +64,8 @@ def _table(
     row_classes: list[str] | None = None,
     caption: str = "",
 ) -> str:
-    """A table from already-escaped cells."""
+    """A table from already-escaped cells (columns headed "… [bar]" in the units of --units)."""
+    rows, headers = table_in_system([list(r) for r in rows], headers, texts=False)
     head = "".join(
         f"<th class='n'>{h}</th>" if i in numeric else f"<th>{h}</th>"
         for i, h in enumerate(headers)

@@ -167,6 +167,7 @@ def test_spec_csv_and_report_show_psi_gpm_and_hp(us_and_metric):
     text = re.sub(r"<script.*?</script>", "", html, flags=re.S)
     assert " psi" in text and " gpm" in text and " hp (" in text and "°F" in text
     assert not re.search(r"hp \([^)]*hp", text)  # the kW beside hp is not converted again
+    assert "installed power [hp]" in text and "gas volume [US gal]" in text  # runners-up
     metric_html = (us_and_metric["metric"] / "report.html").read_text(encoding="utf-8")
     assert " psi" not in re.sub(r"<script.*?</script>", "", metric_html, flags=re.S)
 
@@ -194,8 +195,8 @@ def test_report_figures_have_us_axes_and_scaled_lines(us_and_metric):
 
 
 def test_tables_convert_unit_columns_headers_and_ranges_once():
-    from stowflow.cli._units import table_in_system
     from stowflow.io.numbers import using
+    from stowflow.report.table_units import table_in_system
 
     rows = [
         ["working pressure", "100", "bar gauge"],

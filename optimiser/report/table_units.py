@@ -1,8 +1,8 @@
-"""The commands' tables in the unit system of ``--units``, converted at the last step.
+"""Tables in the unit system of ``--units``, converted at the last step.
 
-The commands build their tables in metric words (a unit column of "bar gauge", "L", "°C"; a
-header "p0(T) [bar]").  Under another unit system :func:`table_in_system` converts, before
-printing:
+The commands (and the report's HTML tables) build their tables in metric words (a unit
+column of "bar gauge", "L", "°C"; a header "p0(T) [bar]").  Under another unit system
+:func:`table_in_system` converts, before printing:
 
 * a cell whose row's unit cell is a metric unit: the number (or each number of a range
   "10 … 50", "207.5 – 252.0") in the chosen unit, and the unit cell with it;
@@ -63,7 +63,7 @@ def _unit_text(unit: str) -> str:
 
 
 def table_in_system(
-    rows: list[list[str]], headers: Sequence[str]
+    rows: list[list[str]], headers: Sequence[str], *, texts: bool = True
 ) -> tuple[list[list[str]], list[str]]:
     """``rows`` and ``headers`` in the unit system in force (unchanged under metric).
 
@@ -73,6 +73,9 @@ def table_in_system(
         The table's cells, metric.
     headers : sequence of str
         Its headers; ``("quantity", "value", "unit")`` marks a table with a unit column.
+    texts : bool
+        Convert the other text cells too (False: they were converted already, as the
+        report's escaped cells are).
 
     Returns
     -------
@@ -89,7 +92,7 @@ def table_in_system(
         if m:
             col_units[i] = m.group(2)
             headers[i] = f"{in_system_text(m.group(1))}[{_unit_text(m.group(2))}]"
-        else:
+        elif texts:
             headers[i] = in_system_text(h)
     out = []
     for r in rows:
@@ -102,7 +105,7 @@ def table_in_system(
                 r[i] = _number_cell(cell, unit)
             elif i in col_units and _NUMBERS.fullmatch(cell.strip() or "x"):
                 r[i] = _number_cell(cell, col_units[i])
-            else:
+            elif texts:
                 r[i] = in_system_text(cell)
         if unit in _UNITS:
             r[unit_col] = _unit_text(unit)
