@@ -171,3 +171,13 @@ def test_a_text_already_in_us_units_is_not_converted_twice():
         assert in_system_text(f"motor {once}, pump 10.2 gpm at 3,000 psi") == (
             f"motor {once}, pump 10.2 gpm at 3,000 psi"
         )
+
+
+def test_the_python_api_design_settings_take_fahrenheit_and_refuse_a_bare_hot_range():
+    import stowflow
+
+    s = stowflow.settings(temperature="50degF..120degF")
+    # (120 − 32) × 5/9 = 48.89 °C (NIST SP 811, 2008, B.8)
+    assert s.design.t_max - 273.15 == pytest.approx((120 - 32) * 5 / 9)
+    with pytest.raises(SettingsError, match="is read as °C"):
+        stowflow.settings(temperature="50..120")
