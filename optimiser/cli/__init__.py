@@ -18,6 +18,7 @@ import signal
 import sys
 
 from stowflow.errors import StowflowError, one_line
+from stowflow.io.numbers import SYSTEMS, using
 from stowflow.version import __version__
 
 __all__ = ["COMMANDS", "build_parser", "join_dash_values", "main"]
@@ -55,6 +56,13 @@ def build_parser() -> argparse.ArgumentParser:
         action="store_true",
         default=argparse.SUPPRESS,
         help="show the full traceback on errors",
+    )
+    common.add_argument(
+        "--units",
+        choices=tuple(SYSTEMS),
+        default="metric",
+        help="units of the output: metric (bar, L, L/min, kW, °C; the default) or us (psi, "
+        "US gal, gpm, hp beside kW, °F); inputs take any unit they carry",
     )
     parser = argparse.ArgumentParser(prog="stowflow", description=_DESCRIPTION)
     parser.add_argument("--debug", action="store_true", help="show the full traceback on errors")
@@ -131,7 +139,8 @@ def main(argv: list[str] | None = None) -> int:
         argv = join_dash_values(argv, parser)
         args = parser.parse_args(argv)
         debug = bool(getattr(args, "debug", False))
-        return int(args.func(args) or 0)
+        with using(getattr(args, "units", None) or "metric"):
+            return int(args.func(args) or 0)
     except StowflowError as exc:
         if debug:
             raise

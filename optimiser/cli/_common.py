@@ -24,7 +24,7 @@ def allow_negative_ranges(parser: argparse.ArgumentParser) -> None:
     """
     if hasattr(parser, "_negative_number_matcher"):
         parser._negative_number_matcher = re.compile(
-            r"^-\d+(?:\.\d*)?(?:\s*°?[cC])?(?:\.\.-?\d+(?:\.\d*)?(?:\s*°?[cC])?)?$"
+            r"^-\d+(?:\.\d*)?(?:\s*(?:°|deg)?[cCfF])?(?:\.\.-?\d+(?:\.\d*)?(?:\s*(?:°|deg)?[cCfF])?)?$"
         )
 
 

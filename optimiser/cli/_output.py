@@ -48,8 +48,16 @@ def print_table(
     headers: Sequence[str] = ("quantity", "value", "unit"),
     stream=None,
 ) -> None:
-    """Print rows as an aligned table (rich when the output is a terminal, plain otherwise)."""
+    """Print rows as an aligned table (rich when the output is a terminal, plain otherwise).
+
+    Metric cells, headers and the title are shown in the unit system of ``--units``
+    (:func:`stowflow.report.table_units.table_in_system`)."""
+    from stowflow.report.display_units import in_system_text
+    from stowflow.report.table_units import table_in_system
+
     rows = [[("" if c is None else str(c)) for c in r] for r in rows]
+    rows, headers = table_in_system(rows, headers)
+    title = None if title is None else in_system_text(title)
     stream = stream or sys.stdout
     try:
         from rich.console import Console

@@ -31,6 +31,7 @@ from stowflow.io.quantities import (
     parse_velocity,
     parse_volume,
 )
+from stowflow.io.temperatures import check_bare_range
 
 __all__ = ["DUTIES", "add_duty_options", "check_duty_options", "motion_from_text", "run_duty"]
 
@@ -229,6 +230,7 @@ def _common(args) -> dict:
     acc_type = (
         "bladder" if args.type is None else parse_choice(args.type, "--type", ACCUMULATOR_TYPES)
     )
+    check_bare_range(args.temperature, t_max, (acc_type,), "--temperature")
     out = {"model": args.gas, "acc_type": acc_type}
     if args.precharge is not None:
         out["precharge"] = _pressure(args, args.precharge, "--precharge")

@@ -14,10 +14,11 @@ import textwrap
 from stowflow.cli._common import step_limit
 from stowflow.cli._output import print_json, print_table
 from stowflow.cycle.duty import DEFAULT_MAX_STEPS, STEP_MAX_STEPS, load_cycle, summarize
-from stowflow.io.numbers import number
+from stowflow.io.numbers import METRIC, current_system, display_value, number, unit_label
 from stowflow.io.quantities import parse_duration, parse_pressure_difference
+from stowflow.report.display_units import METRIC_WORDS
 
-__all__ = ["register", "run"]
+__all__ = ["display_units", "register", "run"]
 
 #: Version tag of the ``--json`` output.
 SCHEMA = "stowflow.check/1"
@@ -51,6 +52,28 @@ _ROWS = (
     ("pump_only_flow_lpm", "pump-only supply: flow", "L/min", "{:.4g}"),
     ("pump_only_hydraulic_power_kw", "pump-only supply: hydraulic power", "kW", "{:.4g}"),
 )
+
+#: Metric units of the summary's rows that are shown in the unit system in force
+#: (``--units``), by the one table of metric words (gauge bar scales as a difference).
+_KINDS = {unit: METRIC_WORDS[unit] for unit in ("L/min", "L", "bar", "kW")}
+
+
+def _in_system(key: str, unit: str, value) -> tuple[object, str]:
+    """A summary value in metric ``unit`` → (value, unit) in the unit system in force."""
+    if unit not in _KINDS or value is None or current_system() is METRIC:
+        return value, unit
+    kind, one = _KINDS[unit]
+    return display_value(float(value) * one, kind), unit_label(kind)
+
+
+def display_units(summary: dict) -> dict:
+    """The summary's quantities in the unit system in force: ``{key: {"value", "unit"}}``."""
+    out = {}
+    for key, _shown, unit, _fmt in _ROWS:
+        if unit in _KINDS and summary.get(key) is not None:
+            value, label = _in_system(key, unit, summary[key])
+            out[key] = {"value": value, "unit": label}
+    return out
 
 
 def _show(spec: str, value) -> str:
@@ -113,11 +136,17 @@ def run(args: argparse.Namespace) -> int:
     cycle = load_cycle(args.cycle, step=step, min_pressure=min_pressure, max_steps=max_steps)
     summary = summarize(cycle).as_dict()
     if args.json:
-        print_json({"schema": SCHEMA, **summary})
+        extra = {}
+        if current_system() is not METRIC:  # the metric keys stay; the chosen units beside
+            extra = {"display_units": {"system": current_system().name, **display_units(summary)}}
+        print_json({"schema": SCHEMA, **summary, **extra})
         return 0
     rows = []
     for key, shown, unit, fmt in _ROWS:
-        value = summary[key]
+        metric_value, metric_unit = summary[key], unit
+        value, unit = _in_system(key, unit, metric_value)
+        if unit != metric_unit and metric_unit == "kW" and value is not None:
+            unit = f"{unit} ({_show(fmt, metric_value)} kW)"  # hp beside kW
         rows.append((shown, "n/a" if value is None else _show(fmt, value), unit))
     print_table(rows, title=f"duty cycle '{summary['name']}' ({summary['source']})")
     for note in summary["notes"]:

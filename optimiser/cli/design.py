@@ -9,9 +9,11 @@ from pathlib import Path
 from stowflow.cli._common import step_limit
 from stowflow.cli._costopts import add_cost_options, cost_settings_from_args
 from stowflow.cli._output import print_json, print_table, progress
-from stowflow.io.numbers import display_value, fmt, shown
+from stowflow.io.numbers import METRIC, current_system, fmt, shown, unit_label
 from stowflow.io.options import DESIGN_OPTIONS, OPTION_CHOICES, design_settings
 from stowflow.io.quantities import parse_duration, parse_pressure_difference
+from stowflow.report.display_units import catalogue_names, in_system_text, keeping
+from stowflow.units import T_REF
 
 __all__ = [
     "PDF_MISSING_EXIT",
@@ -197,7 +199,7 @@ def run_study(args: argparse.Namespace, cycle, *, out_default: Path, name: str |
 
 
 def _bar(p_abs: float) -> str:
-    return shown(display_value(p_abs, "pressure"), "pressure", unit=False)
+    return fmt(p_abs, "pressure", unit=False)
 
 
 def _value(value_si: float, kind: str) -> str:
@@ -212,9 +214,20 @@ LEAST_POWER_TEXT = (
 )
 
 
+def _power_unit(p_si: float) -> str:
+    """The power column's unit: "kW", or "hp (22 kW)" in a system that shows kW beside."""
+    du = current_system().unit("power")
+    if du.beside is None:
+        return du.label
+    return f"{du.label} ({fmt(p_si, 'power', system=METRIC)})"
+
+
 def print_summary(result, paths, stream=None) -> None:
-    """Print the verdict of a study as a table with units, then where the files are."""
+    """Print the verdict of a study as a table with units (those of ``--units``), then where
+    the files are."""
     stream = stream or sys.stdout
+    p_unit = unit_label("pressure")
+    t20 = fmt(T_REF, "temperature")
     d = result.design
     rows = [("status", d.status, "")]
     explain = []
@@ -225,16 +238,16 @@ def print_summary(result, paths, stream=None) -> None:
             b = d.bank
             rows += [
                 ("accumulator", f"{b.count} × {b.option.name}", ""),
-                ("total gas volume", _value(b.gas_volume, "volume"), "L"),
-                ("precharge at 20 °C", _bar(b.precharge), "bar"),
+                ("total gas volume", _value(b.gas_volume, "volume"), unit_label("volume")),
+                (f"precharge at {t20}", _bar(b.precharge), p_unit),
             ]
         else:
             rows.append(("accumulator", "none (pump only)", ""))
         rows += [
-            ("working window", f"{_bar(d.p_min)} – {_bar(d.p_max)}", "bar"),
-            ("relief setting", _bar(d.relief), "bar"),
+            ("working window", f"{_bar(d.p_min)} – {_bar(d.p_max)}", p_unit),
+            ("relief setting", _bar(d.relief), p_unit),
             ("pump", f"{d.pump.name} ({fmt(d.pump.flow, 'flow')})", ""),
-            ("motor", _value(d.motor.rated_power, "power"), "kW"),
+            ("motor", _value(d.motor.rated_power, "power"), _power_unit(d.motor.rated_power)),
         ]
         if d.lower_bound_power > 0:
             rows.append(
@@ -261,25 +274,30 @@ def print_summary(result, paths, stream=None) -> None:
                         "pressure switch",
                         f"load below {_bar(v.setpoints['load_below'])}, "
                         f"unload above {_bar(v.setpoints['unload_above'])}",
-                        "bar",
+                        p_unit,
                     )
                 )
         best, ref = result.comparison.strongest, result.comparison.reference
         if best is not None:
             rows.append(
-                ("pump-only motor", f"{_value(best.installed_power, 'power')} ({best.key})", "kW")
+                (
+                    "pump-only motor",
+                    f"{_value(best.installed_power, 'power')} ({best.key})",
+                    _power_unit(best.installed_power),
+                )
             )
         if ref is not None:
             rows.append((f"against {best.key}", ref.note, ""))
     rows.append(("time", shown(result.timings["total"], "time", unit=False), "s"))
-    print_table(rows, title=f"stowflow design: {result.name}", stream=stream)
-    from stowflow.report.content import recommendation
+    with keeping(catalogue_names(result)):  # catalogue names as the catalogue writes them
+        print_table(rows, title=f"stowflow design: {result.name}", stream=stream)
+        from stowflow.report.content import recommendation
 
-    stream.write(f"recommendation: {recommendation(result)}\n")
-    for line in explain:
-        stream.write(f"{line}\n")
-    for note in d.notes:
-        stream.write(f"note: {note}\n")
+        stream.write(f"recommendation: {in_system_text(recommendation(result))}\n")
+        for line in explain:
+            stream.write(f"{line}\n")
+        for note in d.notes:
+            stream.write(f"note: {in_system_text(note)}\n")
     for key, path in paths.items():
         stream.write(f"{key}: {path}\n")
 

@@ -33,6 +33,7 @@ from stowflow.io.quantities import (
     parse_pressure_difference,
     parse_temperature_range,
 )
+from stowflow.report.display_units import in_system_text
 from stowflow.report.exports import traces_frame
 from stowflow.report.folder import SIMULATION_OUTPUTS, check_out_dir, write_set
 from stowflow.search.settings import DesignSettings
@@ -300,8 +301,10 @@ def _print(v, record: dict, out) -> None:
     sp = record["setpoints"]
     if "load_below_bar" in sp:
         print(
-            f"pressure switch: load below {fixed(sp['load_below_bar'])} bar, unload above "
-            f"{fixed(sp['unload_above_bar'])} bar (gauge)"
+            in_system_text(
+                f"pressure switch: load below {fixed(sp['load_below_bar'])} bar, unload above "
+                f"{fixed(sp['unload_above_bar'])} bar (gauge)"
+            )
         )
     if "load_below_stroke" in sp:
         print(
@@ -309,8 +312,8 @@ def _print(v, record: dict, out) -> None:
             f"{sp['unload_above_stroke']:.3f} of the stroke"
         )
     if v.reason:
-        print(f"reason: {v.reason}")
+        print(f"reason: {in_system_text(v.reason)}")
     for n in record["notes"]:
-        print(f"note: {n}")
+        print(f"note: {in_system_text(n)}")
     if out:
         print(f"simulation.csv, verification.json: {out}")

@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import argparse
 
+from stowflow.catalogue import ACCUMULATOR_TYPES
 from stowflow.cli._common import MAX_ROWS
 from stowflow.cli._output import print_json, print_table
 from stowflow.cli._size_duties import add_duty_options, check_duty_options, run_duty
@@ -24,6 +25,7 @@ from stowflow.io.quantities import (
     parse_temperature_step,
     parse_volume,
 )
+from stowflow.io.temperatures import check_bare_range
 from stowflow.units import abs_to_gauge, to_unit
 
 __all__ = [
@@ -179,6 +181,7 @@ def storage_inputs(args: argparse.Namespace) -> dict:
         return parse_pressure(text, option, absolute=args.absolute)
 
     t_min, t_max = parse_temperature_range(args.temperature, "--temperature")
+    check_bare_range(args.temperature, t_max, ACCUMULATOR_TYPES, "--temperature")
     kwargs = {
         "oil_volume": parse_volume(args.volume, "--volume"),
         "p_min": pressure(args.min_pressure, "--min-pressure"),

@@ -8,9 +8,12 @@ whose fixed form would be wider than its column (1e-300 L/min, 1e300 kW) is show
 scientific form with a ×10 power, never with an "e" exponent.
 
 The conversion from SI to the display unit lives in one place, :class:`UnitSystem`:
-:data:`METRIC` is the system in force (bar gauge, L, L/min, kW, °C, …).  Another system (US
-customary, say) is one more :class:`UnitSystem` with a :class:`DisplayUnit` per kind, passed as
-``system=``; nothing else changes.
+:data:`METRIC` (bar gauge, L, L/min, kW, °C, …) and :data:`US` (psi gauge, US gal, gpm, hp
+beside kW, °F, in³/rev), both by name in :data:`SYSTEMS`.  A call to :func:`fmt` (an SI
+value) passes ``system=``, or leaves it out and gets the system in force: :data:`METRIC`
+unless a caller (the CLI's ``--units``, the web form) chose another with
+``with using(US): ...``.  Every conversion
+factor comes from the one pint registry (:func:`stowflow.units.to_unit`).
 
 Durations read in words ("under 1 month", "5 months", "2.3 years", "never").
 
@@ -24,8 +27,10 @@ Durations read in words ("under 1 month", "5 months", "2.3 years", "never").
 
 from __future__ import annotations
 
+import contextlib
+import contextvars
 import math
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
 from dataclasses import dataclass, field
 
 from stowflow.units import BAR, P_AMBIENT, to_unit
@@ -34,9 +39,12 @@ __all__ = [
     "DASH",
     "KINDS",
     "METRIC",
+    "SYSTEMS",
+    "US",
     "DisplayUnit",
     "UnitSystem",
     "count_words",
+    "current_system",
     "display_value",
     "duration_words",
     "fmt",
@@ -44,6 +52,8 @@ __all__ = [
     "plural",
     "shown",
     "unit_label",
+    "unit_system",
+    "using",
     "years_words",
 ]
 
@@ -76,6 +86,8 @@ class DisplayUnit:
         Most decimals shown, [-].
     trim : bool
         Drop trailing zeros after the point (a temperature of 20 °C, not 20.0 °C).
+    beside : DisplayUnit, optional
+        A second unit :func:`fmt` shows in brackets after the first ("29.5 hp (22 kW)").
     """
 
     label: str
@@ -83,6 +95,7 @@ class DisplayUnit:
     digits: int = 3
     max_decimals: int = 2
     trim: bool = False
+    beside: DisplayUnit | None = None
 
 
 def _factor(unit: str, dimension: str) -> Callable[[float, dict], float]:
@@ -146,6 +159,86 @@ METRIC = UnitSystem(
 
 #: The kinds of quantity every unit system shows.
 KINDS: tuple[str, ...] = tuple(METRIC.units)
+
+
+def _gauge_psi(v: float, ctx: dict) -> float:
+    return to_unit(v - ctx.get("p_ambient", P_AMBIENT), "psi", "pressure")
+
+
+def _fahrenheit(v: float, _ctx: dict) -> float:
+    from stowflow.units import registry
+
+    return float(registry().Quantity(float(v), "kelvin").to("degF").magnitude)
+
+
+def _fahrenheit_difference(v: float, _ctx: dict) -> float:
+    from stowflow.units import registry
+
+    return float(registry().Quantity(float(v), "delta_degC").to("delta_degF").magnitude)
+
+
+#: US customary units: psi gauge, US gallons, US gal/min (gpm), hp (mechanical, 550 ft·lbf/s)
+#: with kW beside it, °F, in³/rev; energy stays kJ and MWh (electricity is billed in kWh).
+#: Conversions from pint (NIST Handbook 44 appendix C factors).
+US = UnitSystem(
+    "us",
+    METRIC.units
+    | {
+        "pressure": DisplayUnit("psi", _gauge_psi, digits=4, max_decimals=0),
+        "pressure_absolute": DisplayUnit("psia", _factor("psi", "pressure"), 4, 0),
+        "pressure_difference": DisplayUnit("psi", _factor("psi", "pressure"), 3, 2),
+        "volume": DisplayUnit("US gal", _factor("gallon", "volume"), 3, 3, trim=True),
+        "flow": DisplayUnit("gpm", _factor("gallon/minute", "flow"), 3, 1),
+        "power": DisplayUnit(
+            "hp", _factor("hp", "power"), 3, 1, trim=True, beside=METRIC.units["power"]
+        ),
+        "temperature": DisplayUnit("°F", _fahrenheit, 3, 0, trim=True),
+        "temperature_difference": DisplayUnit("°F", _fahrenheit_difference, 3, 1, trim=True),
+        "displacement": DisplayUnit("in³/rev", _factor("in**3", "displacement"), 3, 2, trim=True),
+    },
+)
+
+#: The unit systems by the name ``--units`` takes.
+SYSTEMS: dict[str, UnitSystem] = {"metric": METRIC, "us": US}
+
+_CURRENT: contextvars.ContextVar[UnitSystem] = contextvars.ContextVar(
+    "stowflow_unit_system", default=METRIC
+)
+
+
+def unit_system(name) -> UnitSystem:
+    """The unit system called ``name`` ("metric", "us"; a :class:`UnitSystem` is returned as is).
+
+    Raises
+    ------
+    stowflow.errors.SettingsError
+        An unknown name (the message lists the known ones).
+    """
+    if isinstance(name, UnitSystem):
+        return name
+    key = str(name or "metric").strip().lower()
+    if key not in SYSTEMS:
+        from stowflow.errors import SettingsError
+
+        raise SettingsError(
+            f"--units: '{name}' is not a unit system; expected one of {', '.join(SYSTEMS)}"
+        )
+    return SYSTEMS[key]
+
+
+def current_system() -> UnitSystem:
+    """The unit system in force (:data:`METRIC` unless :func:`using` chose another)."""
+    return _CURRENT.get()
+
+
+@contextlib.contextmanager
+def using(system) -> Iterator[UnitSystem]:
+    """Show every number in ``system`` (a :class:`UnitSystem` or its name) inside the block."""
+    token = _CURRENT.set(unit_system(system))
+    try:
+        yield _CURRENT.get()
+    finally:
+        _CURRENT.reset(token)
 
 
 def _scientific(x: float, digits: int) -> str:
@@ -212,7 +305,7 @@ def number(
     return text
 
 
-def display_value(value_si, kind: str, *, system: UnitSystem = METRIC, **context) -> float:
+def display_value(value_si, kind: str, *, system: UnitSystem | None = None, **context) -> float:
     """An SI value converted to the display unit of ``kind`` in ``system``.
 
     Parameters
@@ -222,16 +315,17 @@ def display_value(value_si, kind: str, *, system: UnitSystem = METRIC, **context
     kind : str
         Kind of quantity (:data:`KINDS`).
     system : UnitSystem
-        Display units (default :data:`METRIC`).
+        Display units (default: the system in force, :func:`current_system`).
     **context
         Study values a conversion needs: ``p_ambient`` [Pa] for gauge pressure.
     """
+    system = system or current_system()
     return float(system.unit(kind).from_si(float(value_si), context))
 
 
-def unit_label(kind: str, *, system: UnitSystem = METRIC) -> str:
+def unit_label(kind: str, *, system: UnitSystem | None = None) -> str:
     """The display unit of ``kind`` ("bar", "L/min"; "" for a plain number)."""
-    return system.unit(kind).label
+    return (system or current_system()).unit(kind).label
 
 
 def shown(
@@ -239,7 +333,7 @@ def shown(
     kind: str,
     *,
     unit: bool | str = True,
-    system: UnitSystem = METRIC,
+    system: UnitSystem | None = None,
     digits: int | None = None,
     width: int = WIDTH,
 ) -> str:
@@ -255,13 +349,14 @@ def shown(
         True: append the kind's unit; False: the number alone; a string: append that label
         (a currency, say).
     system : UnitSystem
-        Display units.
+        Display units the value is in (default :data:`METRIC`: a value already converted
+        by hand is in metric units; :func:`fmt` passes the system in force).
     digits : int, optional
         Significant digits [-] instead of the kind's.
     width : int
         Widest number [characters] before scientific form.
     """
-    du = system.unit(kind)
+    du = (system or METRIC).unit(kind)  # a value already shown: its callers' units are metric
     text = number(
         value,
         du.digits if digits is None else digits,
@@ -280,7 +375,7 @@ def fmt(
     kind: str,
     *,
     unit: bool | str = True,
-    system: UnitSystem = METRIC,
+    system: UnitSystem | None = None,
     digits: int | None = None,
     width: int = WIDTH,
     **context,
@@ -308,9 +403,10 @@ def fmt(
         v = float(value_si)
     except (TypeError, ValueError):
         return str(value_si)
+    system = system or current_system()
     if not math.isfinite(v):
         return shown(v, kind, unit=unit, system=system, digits=digits, width=width)
-    return shown(
+    text = shown(
         display_value(v, kind, system=system, **context),
         kind,
         unit=unit,
@@ -318,6 +414,17 @@ def fmt(
         digits=digits,
         width=width,
     )
+    other = system.unit(kind).beside
+    if other is None or unit is not True:
+        return text
+    second = number(
+        other.from_si(v, context),
+        other.digits,
+        max_decimals=other.max_decimals,
+        trim=other.trim,
+        width=width,
+    )
+    return f"{text} ({second} {other.label})"
 
 
 def duration_words(seconds) -> str:

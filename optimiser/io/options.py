@@ -29,6 +29,7 @@ from stowflow.io.quantities import (
     parse_temperature_range,
     parse_whole,
 )
+from stowflow.io.temperatures import check_bare_range
 from stowflow.physics.gas import GAS_MODELS
 from stowflow.search.objective import CATEGORIES, OBJECTIVES
 from stowflow.search.settings import ACCUMULATOR_TYPES, MOTOR_SIZING, DesignSettings
@@ -49,8 +50,8 @@ DESIGN_OPTIONS: dict[str, tuple[str, str, str]] = {
     "temperature": (
         "t_min/t_max",
         "temperature range",
-        "operating temperature range of gas and oil in °C, e.g. 10..50 (default "
-        "10..50, an example)",
+        "operating temperature range of gas and oil, °C unless a unit is given, e.g. 10..50, "
+        "10degC..50degC or 50degF..120degF (default 10..50, an example)",
     ),
     "gas": ("gas_model", "choice", "nitrogen model: real (Span et al. 2000 EOS) or ideal"),
     "process": (
@@ -268,7 +269,11 @@ def design_settings(
         except SettingsError as exc:
             raise SettingsError(f"{_flag(key)}: {exc}") from None
         changes.update(change)
-    return start.with_(**changes)
+    result = start.with_(**changes)
+    given = _given(values)
+    if "temperature" in given:  # a bare range too hot for the types in play: °F meant?
+        check_bare_range(given["temperature"], result.t_max, result.types, "--temperature")
+    return result
 
 
 _COST_DEFAULTS = CostSettings()

@@ -16,7 +16,9 @@ Conventions shared by every parser:
   Arabic-Indic, ...), which Python's ``float`` would read, are refused by name;
 * no ``nan``, ``inf`` or ``1_000``: a number is ``[-+]digits[.digits][e[-+]digits]``;
 * a bare zero needs no unit (0 s = 0 min, 0 bar = 0 psi);
-* temperatures are °C (a trailing ``°C``, ``degC`` or ``C`` is allowed), temperature steps K.
+* temperatures are °C unless they carry a unit: ``°C``, ``degC``, ``C`` or ``°F``, ``degF``,
+  ``F`` (``50degF..120degF``; a unit on one end of a range holds for both); temperature
+  steps K.
 
 The option tables and the settings built from these parsers are in :mod:`stowflow.io.options`.
 """
@@ -77,11 +79,12 @@ _NUMBER_RE = re.compile(rf"^\s*({_NUM})\s*$", re.ASCII)
 _WHOLE_RE = re.compile(r"^\s*([-+]?\d+)\s*$", re.ASCII)
 _FRACTION_RE = re.compile(rf"^\s*({_NUM})\s*(%)?\s*$", re.ASCII)
 _RATE_RE = re.compile(rf"^\s*({_NUM})\s*(?:/\s*(h|hour|min|minute))?\s*$", re.ASCII | re.I)
-_DEG_C = r"(?:\s*(?:°\s*C|deg\s*C|C))?"
+# A temperature's unit: °C (also degC, C) or °F (also degF, F); none means °C.
+_DEG = r"(?:\s*(°\s*[CF]|deg\s*[CF]|[CF]))?"
 _TEMPERATURE_RE = re.compile(
-    rf"^\s*({_NUM}){_DEG_C}\s*(?:\.\.\s*({_NUM}){_DEG_C})?\s*$", re.ASCII | re.I
+    rf"^\s*({_NUM}){_DEG}\s*(?:\.\.\s*({_NUM}){_DEG})?\s*$", re.ASCII | re.I
 )
-_STEP_RE = re.compile(rf"^\s*({_NUM})\s*(?:K|°\s*C|deg\s*C|C)?\s*$", re.ASCII | re.I)
+_STEP_RE = re.compile(rf"^\s*({_NUM})\s*(K|°\s*C|deg\s*C|C|°\s*F|deg\s*F|F)?\s*$", re.ASCII | re.I)
 # number, optional currency word or symbol, "/", energy unit: "0.25/kWh", "0.11 $/kWh".
 _PRICE_RE = re.compile(
     rf"^\s*(?P<num>{_NUM})\s*(?P<cur>[^\d\s/.+-][^\s/]{{0,15}})?\s*/\s*(?P<unit>\S.*?)\s*$",
@@ -469,33 +472,50 @@ def parse_expansion_coefficient(
 
 
 # --------------------------------------------------------------------------- temperatures
-_RANGE_EXPECTED = "a range in °C as LO..HI or one value, e.g. 10..50, -20..60 or 20"
+_RANGE_EXPECTED = (
+    "a range in °C as LO..HI or one value, e.g. 10..50, -20..60 or 20 (°F with its unit, "
+    "e.g. 50degF..120degF)"
+)
+
+
+def _to_celsius(value: float, unit: str | None) -> float:
+    """A temperature in ``unit`` (a °F spelling, or °C / None) in °C, through pint."""
+    if unit is None or not unit.strip()[-1:].upper() == "F":
+        return value
+    return float(registry().Quantity(value, "degF").to("degC").magnitude)
 
 
 def _celsius(text: str, option: str, expected: str) -> tuple[str, float, float, bool]:
-    """``(text, lo, hi, is_range)`` in °C, each value within the glossary's plausible range."""
+    """``(text, lo, hi, is_range)`` in °C, each value within the glossary's plausible range.
+
+    A value may be written in °F (``50degF``); it is converted to °C here.
+    """
     s = str(text).strip()
     check_digits(s, option, expected)
     m = _TEMPERATURE_RE.match(s)
     if not m:
-        raise _refusal(option, f"'{s}' is not a temperature in °C", expected)
-    lo = float(m.group(1))
-    hi = float(m.group(2)) if m.group(2) is not None else lo
+        raise _refusal(option, f"'{s}' is not a temperature in °C or °F", expected)
+    unit_lo, unit_hi = m.group(2), m.group(4)
+    if m.group(3) is not None and (unit_lo is None) != (unit_hi is None):
+        unit_lo = unit_hi = unit_lo or unit_hi  # "50..120degF": the unit holds for both ends
+    lo = _to_celsius(float(m.group(1)), unit_lo)
+    hi = _to_celsius(float(m.group(3)), unit_hi) if m.group(3) is not None else lo
     low, high = term("temperature").plausible
     for v in (lo, hi):
         if not low <= v <= high:
             raise _refusal(
                 option,
-                f"'{s}' has {v:g} °C, outside the plausible {low:g} … {high:g} °C",
+                f"'{s}' has {v:.4g} °C, outside the plausible {low:g} … {high:g} °C",
                 f"temperatures in °C from {low:g} to {high:g}, e.g. 10..50",
             )
-    return s, lo, hi, m.group(2) is not None
+    return s, lo, hi, m.group(3) is not None
 
 
 def parse_temperature_range(text: str, option: str) -> tuple[float, float]:
     """An operating temperature range in °C: ``"10..50"``, ``"-20..60"``, ``"20"``.
 
-    Each value may carry ``°C``, ``degC`` or ``C``; one value is a range of one temperature.
+    Each value may carry ``°C``, ``degC`` or ``C``, or ``°F``, ``degF`` or ``F``
+    (``"50degF..120degF"``); a bare number is °C; one value is a range of one temperature.
     Each value lies in the glossary's plausible range; the colder one comes first.
 
     Parameters
@@ -518,13 +538,13 @@ def parse_temperature_range(text: str, option: str) -> tuple[float, float]:
     s, lo, hi, _ = _celsius(text, option, _RANGE_EXPECTED)
     if hi < lo:
         raise _refusal(
-            option, f"'{s}' runs from hot to cold", f"the colder end first, {hi:g}..{lo:g} (°C)"
+            option, f"'{s}' runs from hot to cold", f"the colder end first, {hi:.4g}..{lo:.4g} (°C)"
         )
     return celsius_to_kelvin(lo), celsius_to_kelvin(hi)
 
 
 def parse_temperature(text: str, option: str) -> float:
-    """One temperature in °C, ``"15"`` or ``"15°C"``.
+    """One temperature in °C, ``"15"`` or ``"15°C"`` (or in °F with its unit, ``"59degF"``).
 
     Parameters
     ----------
@@ -551,7 +571,8 @@ def parse_temperature(text: str, option: str) -> float:
 
 
 def parse_temperature_step(text: str, option: str) -> float:
-    """A temperature step in kelvin (= °C), ``"5"``, ``"5K"``.
+    """A temperature step in kelvin (= °C), ``"5"``, ``"5K"``, or in °F with its unit
+    (``"9degF"`` = 5 K).
 
     Parameters
     ----------
@@ -584,6 +605,8 @@ def parse_temperature_step(text: str, option: str) -> float:
     value = float(m.group(1))
     if not math.isfinite(value):
         raise _refusal(option, f"'{s}' is not a finite number", expected)
+    if m.group(2) and m.group(2)[-1] in "fF":  # a step in °F: 1 °F = 5/9 K, through pint
+        value = float(registry().Quantity(value, "delta_degF").to("kelvin").magnitude)
     _check(value, s, option, bounds, fmt, expected)
     return value
 

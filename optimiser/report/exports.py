@@ -20,6 +20,7 @@ from stowflow.errors import StowflowError
 from stowflow.io.jsonable import to_jsonable
 from stowflow.physics.gas import parse_process
 from stowflow.report import content, spec
+from stowflow.report.display_units import display_units_record, in_system_text
 from stowflow.report.objective import objective_record
 from stowflow.units import kelvin_to_celsius, to_unit
 from stowflow.version import __version__
@@ -147,6 +148,9 @@ def design_record(result) -> dict:
     rec["notes"] = content.notes(result)
     rec["safety"] = [*list(content.SAFETY_CAUTIONS), content.DISCLAIMER]
     rec["generator"] = f"stowflow {__version__}"
+    shown = display_units_record(result)  # only under --units other than metric
+    if shown is not None:
+        rec["display_units"] = shown
     return to_jsonable(rec)
 
 
@@ -639,12 +643,12 @@ def spec_rows(result) -> list[dict]:
         rows.append(
             {
                 "item": it.item,
-                "description": it.description,
+                "description": in_system_text(it.description),
                 "quantity [-]": it.quantity,
                 up: it.unit_price,
                 tot: it.total,
-                "notes": it.notes,
-                "sizing_rule": it.rule,
+                "notes": in_system_text(it.notes),
+                "sizing_rule": in_system_text(it.rule),
             }
         )
     o = result.comparison.option("design")

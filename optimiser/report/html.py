@@ -23,7 +23,10 @@ from stowflow.cycle.duty import summarize
 from stowflow.io import numbers
 from stowflow.report import content, figures, objective, schematic, spec
 from stowflow.report.content import money, q
+from stowflow.report.display_units import catalogue_names, in_system_text, keeping
 from stowflow.report.exports import spec_rows
+from stowflow.report.figure_units import figure_in_system
+from stowflow.report.table_units import table_in_system
 from stowflow.units import kelvin_to_celsius
 from stowflow.version import __version__
 
@@ -39,11 +42,12 @@ _CONFIG = {
 
 def e(value) -> str:
     """Escape any value for HTML text or a quoted attribute."""
-    return html.escape("" if value is None else str(value), quote=True)
+    return html.escape("" if value is None else in_system_text(str(value)), quote=True)
 
 
 def figure_html(fig: go.Figure | None, div_id: str, caption: str = "") -> str:
     """A figure as a ``<figure>`` with its Plotly div and script (plotly.js not included)."""
+    fig = figure_in_system(fig)  # axes in the units of --units
     if fig is None:
         return ""
     body = fig.to_html(full_html=False, include_plotlyjs=False, div_id=div_id, config=_CONFIG)
@@ -60,7 +64,8 @@ def _table(
     row_classes: list[str] | None = None,
     caption: str = "",
 ) -> str:
-    """A table from already-escaped cells."""
+    """A table from already-escaped cells (columns headed "… [bar]" in the units of --units)."""
+    rows, headers = table_in_system([list(r) for r in rows], headers, texts=False)
     head = "".join(
         f"<th class='n'>{h}</th>" if i in numeric else f"<th>{h}</th>"
         for i, h in enumerate(headers)
@@ -702,8 +707,15 @@ def render_html(result, *, generated: _dt.date | None = None) -> str:
     Returns
     -------
     str
-        The HTML text: plotly.js inlined once, no external resources.
+        The HTML text: plotly.js inlined once, no external resources.  Texts are in the
+        unit system in force (``--units``); catalogue names stay as the catalogue writes them.
     """
+    with keeping(catalogue_names(result)):
+        return _document(result, generated)
+
+
+def _document(result, generated: _dt.date | None) -> str:
+    """The HTML text of :func:`render_html`."""
     day = (generated or _dt.date.today()).isoformat()
     cyc = result.cycle
     toc = "".join(
@@ -714,7 +726,8 @@ def render_html(result, *, generated: _dt.date | None = None) -> str:
     t_lo = kelvin_to_celsius(result.settings.t_min)
     t_hi = kelvin_to_celsius(result.settings.t_max)
     meta = (
-        f"cycle {cyc.name} · {cyc.n_steps:,} steps of {cyc.dt:g} s · {t_lo:.0f} … {t_hi:.0f} °C · "
+        f"cycle {cyc.name} · {cyc.n_steps:,} steps of {cyc.dt:g} s · "
+        f"{t_lo:.0f} °C … {t_hi:.0f} °C · "
         # the file name only: a report travels, and a local folder means nothing to its reader
         f"catalogue {PurePath(result.catalogue.source).name} · {day} · stowflow {__version__}"
     )

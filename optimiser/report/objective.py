@@ -13,6 +13,7 @@ import math
 from html import escape
 
 from stowflow.report.content import currency, kilowatts, litres
+from stowflow.report.table_units import table_in_system
 from stowflow.units import KWH
 
 __all__ = ["OBJECTIVE_WORDS", "objective_html", "objective_record", "runner_rows"]
@@ -147,12 +148,15 @@ def objective_html(result) -> str:
             for i, v in enumerate(values)
         )
 
-    head = cells("th", [h.format(cur=cur) for _, h, _ in _COLUMNS])
+    table, headers = table_in_system(  # columns "[kW]", "[L]" in the units of --units
+        [[_cell(r[key], sp) for key, _, sp in _COLUMNS] for r in rows],
+        [h.format(cur=cur) for _, h, _ in _COLUMNS],
+        texts=False,
+    )
+    head = cells("th", headers)
     body = "".join(
-        ("<tr class='rec'>" if k == 0 else "<tr>")
-        + cells("td", [_cell(r[key], sp) for key, _, sp in _COLUMNS])
-        + "</tr>"
-        for k, r in enumerate(rows)
+        ("<tr class='rec'>" if k == 0 else "<tr>") + cells("td", r) + "</tr>"
+        for k, r in enumerate(table)
     )
     return (
         "<h3>Objective and runners-up</h3>"

@@ -18,6 +18,7 @@ from html import escape
 
 from stowflow.report.bom import circuit
 from stowflow.report.content import bar_delta, bar_g, fmt, kilowatts, litres, lpm, setpoints_bar
+from stowflow.report.display_units import in_system_text
 from stowflow.units import to_unit
 
 __all__ = ["SYMBOLS", "alternative_svg", "design_svg", "schematics_html"]
@@ -84,7 +85,7 @@ def _line(*pts, cls: str = "sf-w") -> str:
 
 def _label(x: float, y: float, lines, anchor: str = "middle") -> str:
     spans = "".join(
-        f"<tspan x='{_n(x)}' dy='{0 if k == 0 else 13}'>{escape(t)}</tspan>"
+        f"<tspan x='{_n(x)}' dy='{0 if k == 0 else 13}'>{escape(in_system_text(t))}</tspan>"
         for k, t in enumerate(lines)
     )
     return f"<text class='sf-t' x='{_n(x)}' y='{_n(y)}' text-anchor='{anchor}'>{spans}</text>"

@@ -21,6 +21,7 @@ import traceback
 from multiprocessing.connection import Connection
 
 from stowflow.errors import StowflowError
+from stowflow.io.numbers import using
 from stowflow.physics.gas import density
 from stowflow.pipeline import Study, run
 from stowflow.report import write_study
@@ -45,7 +46,7 @@ def _finite(x) -> float | None:
     return x if math.isfinite(x) else None
 
 
-def run_job(conn: Connection, study: Study, out_dir: str) -> None:
+def run_job(conn: Connection, study: Study, out_dir: str, units: str = "metric") -> None:
     """Run one study and write its report and exports to ``out_dir``; report on ``conn``.
 
     Parameters
@@ -56,7 +57,15 @@ def run_job(conn: Connection, study: Study, out_dir: str) -> None:
         The study, cycle and catalogue already parsed.
     out_dir : str
         The study's folder (server-made, inside the server's temporary folder).
+    units : str
+        Unit system of the report, its files and the figures sent back ("metric", "us").
     """
+    with using(units):
+        _run_job(conn, study, out_dir)
+
+
+def _run_job(conn: Connection, study: Study, out_dir: str) -> None:
+    """The body of :func:`run_job`, in the unit system in force."""
     last = {"t": -math.inf, "label": None}
 
     def progress(fraction: float, label: str) -> None:

@@ -67,6 +67,7 @@ from stowflow.web.forms import (
     TEXT_FIELDS,
     FormLimits,
     build_study,
+    chosen_units,
     form_sections,
 )
 from stowflow.web.jobs import Job, JobManager, QueueFull
@@ -440,6 +441,7 @@ class _Pages:
         values = {k: v for k, v in form.fields.items() if k != DEMO_FIELD}
         try:
             study, source = await run_in_threadpool(build_study, form, self.limits, self.demo_cycle)
+            units = chosen_units(form)
         except StowflowError as exc:
             return self.form_page(request, error=one_line(exc), values=values, status=422)
         except Exception as exc:  # a bad upload is a 4xx, never a 500; the trace is for us
@@ -450,7 +452,7 @@ class _Pages:
             )
             return self.form_page(request, error=message, values=values, status=400)
         try:
-            job = self.manager.submit(study, name=study.name or "study", source=source)
+            job = self.manager.submit(study, name=study.name or "study", source=source, units=units)
         except QueueFull as exc:
             return self.busy(request, exc.retry_after, values)
         return RedirectResponse(f"/studies/{job.id}", status_code=303)

@@ -21,6 +21,7 @@ from stowflow.catalogue import ACCUMULATOR_TYPES, Catalogue, parse_catalogue_tex
 from stowflow.cycle.csvtable import utf8_text
 from stowflow.cycle.duty import DutyCycle, parse_cycle_bytes
 from stowflow.errors import CatalogueError, SettingsError
+from stowflow.io.numbers import SYSTEMS, unit_system
 from stowflow.io.options import (
     COST_OPTIONS,
     DESIGN_OPTIONS,
@@ -39,9 +40,11 @@ __all__ = [
     "DEMO_FIELD",
     "FILE_FIELDS",
     "TEXT_FIELDS",
+    "UNITS_FIELD",
     "FormField",
     "FormLimits",
     "build_study",
+    "chosen_units",
     "form_sections",
     "study_name",
 ]
@@ -89,9 +92,11 @@ _LABELS = {
     "currency": "Currency label",
     "min_pressure": "Minimum working pressure (gauge)",
     "step": "Time step of the cycle grid",
+    "units": "Units of the report",
 }
 #: Options shown first, in this order; the rest sit under "More settings".
 _MAIN = (
+    "units",
     "d_temperature",
     "c_cycles_per_hour",
     "c_cycle_time",
@@ -107,7 +112,15 @@ _CYCLE_OPTIONS = {
     "step": "time step of the cycle grid, e.g. 0.05s (default: automatic)",
 }
 
+#: The report's unit system (not a setting of the design: the design is the same in any units).
+UNITS_FIELD = "units"
+_UNITS_HELP = (
+    "units of the report and its files: metric (bar, L, L/min, kW, °C) or us (psi, US gal, "
+    "gpm, hp beside kW, °F); design.json keeps its metric keys either way"
+)
+
 TEXT_FIELDS: tuple[str, ...] = (
+    UNITS_FIELD,
     *(f"d_{k}" for k in DESIGN_OPTIONS),
     *(f"c_{k}" for k in COST_OPTIONS),
     *_CYCLE_OPTIONS,
@@ -214,6 +227,9 @@ def form_sections(limits: FormLimits) -> list[tuple[str, list[FormField]]]:
     for key, (_metavar, text) in COST_OPTIONS.items():
         fields[f"c_{key}"] = _field(f"c_{key}", key, text, limits)
     cycle = [_field(k, k, text, limits) for k, text in _CYCLE_OPTIONS.items()]
+    fields[UNITS_FIELD] = FormField(
+        UNITS_FIELD, _LABELS[UNITS_FIELD], _UNITS_HELP, choices=("", *SYSTEMS)
+    )
     main = [fields.pop(name) for name in _MAIN]
     design = [f for n, f in fields.items() if n.startswith("d_")]
     costs = [f for n, f in fields.items() if n.startswith("c_")]
@@ -223,6 +239,17 @@ def form_sections(limits: FormLimits) -> list[tuple[str, list[FormField]]]:
         ("Design", design),
         ("Costs", costs),
     ]
+
+
+def chosen_units(form: UploadedForm) -> str:
+    """The unit system the form asks for ("metric" when left at the default).
+
+    Raises
+    ------
+    SettingsError
+        A name that is not a unit system.
+    """
+    return unit_system(_optional(form, UNITS_FIELD) or "metric").name
 
 
 def study_name(filename: str) -> str:

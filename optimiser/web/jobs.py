@@ -86,6 +86,8 @@ class Job:
         Current stage.
     message : str
         One-line reason of ``failed`` or ``stopped``.
+    units : str
+        Unit system of the report and its files ("metric", "us").
     summary : dict or None
         Status, reason, MIP gap [-], verification verdict and run time [s] of a ``done`` job.
     started, finished : float or None
@@ -104,6 +106,7 @@ class Job:
     started: float | None = None
     finished: float | None = None
     study: Study | None = field(default=None, repr=False)
+    units: str = "metric"
     process: multiprocessing.process.BaseProcess | None = field(default=None, repr=False)
     conn: object | None = field(default=None, repr=False)
 
@@ -232,11 +235,12 @@ class JobManager:
         waiting = len(self.pending) / max(self.workers, 1)
         return max(1, math.ceil(typical * (1.0 + waiting) / max(self.workers, 1)))
 
-    def submit(self, study: Study, *, name: str, source: str) -> Job:
-        """Queue a study; raise :class:`QueueFull` when there is no room."""
+    def submit(self, study: Study, *, name: str, source: str, units: str = "metric") -> Job:
+        """Queue a study (its report in ``units``); raise :class:`QueueFull` when there is no
+        room."""
         if self.full():
             raise QueueFull(self.retry_after())
-        job = Job(id=secrets.token_hex(8), name=name, source=source, study=study)
+        job = Job(id=secrets.token_hex(8), name=name, source=source, study=study, units=units)
         self.jobs[job.id] = job
         self.pending.append(job.id)
         self._evict()
@@ -282,8 +286,14 @@ class JobManager:
         reader, writer = self._ctx.Pipe(duplex=False)
         out = self.folder(job)
         out.mkdir()
+        # the unit system travels only when it is not the default, so a target that knows
+        # nothing of units (a test's stand-in) still runs
+        extra = {} if job.units == "metric" else {"kwargs": {"units": job.units}}
         proc = self._ctx.Process(
-            target=self.target, args=(writer, job.study, str(out)), name=f"stowflow-job-{job.id}"
+            target=self.target,
+            args=(writer, job.study, str(out)),
+            name=f"stowflow-job-{job.id}",
+            **extra,
         )
         job.state, job.label = "running", "starting a worker"
         job.process, job.conn, job.study = proc, reader, None

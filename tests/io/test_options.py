@@ -272,15 +272,18 @@ def test_temperature_ranges(text, celsius):
     assert (lo - ZERO_C, hi - ZERO_C) == pytest.approx(celsius, abs=1e-9)
 
 
-RANGE = "a range in °C as LO..HI or one value, e.g. 10..50, -20..60 or 20"
+RANGE = (
+    "a range in °C as LO..HI or one value, e.g. 10..50, -20..60 or 20 (°F with its unit, e.g. "
+    "50degF..120degF)"
+)
 
 
 @pytest.mark.parametrize(
     ("text", "message"),
     [
-        ("warm", f"'warm' is not a temperature in °C; expected {RANGE}"),
-        ("10 to 50", f"'10 to 50' is not a temperature in °C; expected {RANGE}"),
-        ("10..50K", f"'10..50K' is not a temperature in °C; expected {RANGE}"),
+        ("warm", f"'warm' is not a temperature in °C or °F; expected {RANGE}"),
+        ("10 to 50", f"'10 to 50' is not a temperature in °C or °F; expected {RANGE}"),
+        ("10..50K", f"'10..50K' is not a temperature in °C or °F; expected {RANGE}"),
         (
             "50..10",
             "'50..10' runs from hot to cold; expected the colder end first, 10..50 (°C)",
