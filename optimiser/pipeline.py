@@ -287,12 +287,16 @@ def _same_power_pass(
     alternatives and lower bound stay those of the whole catalogue."""
     power = d.installed_power
     # The verification sees the pump's flow and the bank, not the pump's control: a set that
-    # differs only there would fall short the same way.
+    # differs only there would fall short the same way, and so would one that puts the same
+    # pump flow on no more nominal volume than the bank that fell short.
     seen = {(round(d.pump.flow, 12), d.bank.option.name if d.bank else None)}
+    volume = d.bank.count * d.bank.option.nominal_volume if d.bank else 0.0
     tries = 0
     for alt in d.runners_up:
         key = (round(alt.pump.flow, 12), alt.option.name if alt.option else None)
-        if alt.motor.rated_power != power or key in seen:
+        alt_volume = alt.count * alt.option.nominal_volume if alt.option else 0.0
+        smaller = key[0] == round(d.pump.flow, 12) and alt_volume <= volume * (1 + 1e-9)
+        if alt.motor.rated_power != power or key in seen or smaller:
             continue
         seen.add(key)
         if tries == SAME_POWER_TRIES:
