@@ -151,6 +151,8 @@ def main(argv: list[str] | None = None) -> int:
     except BrokenPipeError:  # e.g. `stowflow check x.csv --json | head`
         return 0
     except Exception as exc:
+        if _from_interrupt(exc):
+            return _interrupted()
         if debug:
             raise
         print(
@@ -159,6 +161,19 @@ def main(argv: list[str] | None = None) -> int:
             file=sys.stderr,
         )
         return 1
+
+
+def _from_interrupt(exc: BaseException) -> bool:
+    """Whether a Ctrl+C caused ``exc``: some code turns a KeyboardInterrupt into another
+    error (Python itself, when it lands while a class is being created: "Error calling
+    __set_name__"), keeping it as the cause or the context."""
+    seen: set[int] = set()
+    while exc is not None and id(exc) not in seen:
+        if isinstance(exc, KeyboardInterrupt):
+            return True
+        seen.add(id(exc))
+        exc = exc.__cause__ or exc.__context__
+    return False
 
 
 def entry() -> int:

@@ -110,3 +110,25 @@ def test_ctrl_c_anywhere_leaves_one_complete_set(tmp_path):
     # The moments spread over the run: at least one interrupted run.
     print(f"SIGINT at {MOMENTS} of {span:.2f} s: {seen}")
     assert seen[130] >= 1, seen
+
+
+def test_an_interrupt_turned_into_another_error_is_still_an_interrupt(monkeypatch, capsys):
+    # Python turns a Ctrl+C that lands while a class is being created (here: inside a
+    # library's import) into "RuntimeError: Error calling __set_name__ …" with the
+    # KeyboardInterrupt as its cause; found by the random-moment test above in CI.
+    import argparse
+
+    import stowflow.cli as cli
+
+    def interrupted_import(args):
+        try:
+            raise KeyboardInterrupt
+        except KeyboardInterrupt as k:
+            raise RuntimeError("Error calling __set_name__ on 'Field' instance") from k
+
+    parser = argparse.ArgumentParser()
+    parser.set_defaults(func=interrupted_import)
+    monkeypatch.setattr(cli, "build_parser", lambda: parser)
+    monkeypatch.setattr(cli, "join_dash_values", lambda argv, p: argv)
+    assert cli.main([]) == 130
+    assert capsys.readouterr().err.strip() == "stowflow: interrupted"
