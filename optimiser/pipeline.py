@@ -237,7 +237,10 @@ def _design_and_verify(study: Study, cycle: DutyCycle, catalogue: Catalogue, rep
             loop.attempts.append(Attempt(float(extra.max()), d.status, None, float("nan")))
             loop.result, loop.verification = d, None
             break
-        progress = lambda f, lab, stage=stage: stage(0.5 + 0.5 * f, lab)  # noqa: E731
+
+        def progress(frac: float, label: str, stage=stage) -> None:
+            stage(0.5 + 0.5 * frac, label)
+
         d, v = _verified(loop, d, cycle, settings, progress)
         loop.attempts.append(Attempt(float(extra.max()), d.status, v.passed, v.min_margin))
         loop.result, loop.verification = d, v
@@ -289,13 +292,14 @@ def _same_power_pass(
     # The verification sees the pump's flow and the bank, not the pump's control: a set that
     # differs only there would fall short the same way, and so would one that puts the same
     # pump flow on no more nominal volume than the bank that fell short.
-    seen = {(round(d.pump.flow, 12), d.bank.option.name if d.bank else None)}
+    flow = round(d.pump.flow, 12)
+    seen = {(flow, d.bank.option.name if d.bank else None)}
     volume = d.bank.count * d.bank.option.nominal_volume if d.bank else 0.0
     tries = 0
     for alt in d.runners_up:
         key = (round(alt.pump.flow, 12), alt.option.name if alt.option else None)
         alt_volume = alt.count * alt.option.nominal_volume if alt.option else 0.0
-        smaller = key[0] == round(d.pump.flow, 12) and alt_volume <= volume * (1 + 1e-9)
+        smaller = key[0] == flow and alt_volume <= volume * (1 + 1e-9)
         if alt.motor.rated_power != power or key in seen or smaller:
             continue
         seen.add(key)
