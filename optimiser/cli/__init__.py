@@ -18,7 +18,6 @@ import signal
 import sys
 
 from stowflow.errors import StowflowError, one_line
-from stowflow.io.numbers import SYSTEMS, using
 from stowflow.version import __version__
 
 __all__ = ["COMMANDS", "build_parser", "join_dash_values", "main"]
@@ -59,7 +58,7 @@ def build_parser() -> argparse.ArgumentParser:
     )
     common.add_argument(
         "--units",
-        choices=tuple(SYSTEMS),
+        choices=("metric", "us"),  # stowflow.io.numbers.SYSTEMS (a test keeps them equal)
         default="metric",
         help="units of the output: metric (bar, L, L/min, kW, °C; the default) or us (psi, "
         "US gal, gpm, hp beside kW, °F); inputs take any unit they carry",
@@ -139,6 +138,10 @@ def main(argv: list[str] | None = None) -> int:
         argv = join_dash_values(argv, parser)
         args = parser.parse_args(argv)
         debug = bool(getattr(args, "debug", False))
+        # Imported here, not at the top: numpy comes with it, and the Ctrl+C handling of
+        # entry() must be in place before the slow imports start.
+        from stowflow.io.numbers import using
+
         with using(getattr(args, "units", None) or "metric"):
             return int(args.func(args) or 0)
     except StowflowError as exc:

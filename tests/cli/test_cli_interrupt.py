@@ -132,3 +132,23 @@ def test_an_interrupt_turned_into_another_error_is_still_an_interrupt(monkeypatc
     monkeypatch.setattr(cli, "join_dash_values", lambda argv, p: argv)
     assert cli.main([]) == 130
     assert capsys.readouterr().err.strip() == "stowflow: interrupted"
+
+
+def test_the_command_line_module_imports_nothing_slow_before_its_ctrl_c_handling():
+    # entry() installs the Ctrl+C handling; numpy (and what comes with it) must be imported
+    # after that, inside main(), or a Ctrl+C during its import escapes as a traceback.
+    code = "import sys, stowflow.cli; print('numpy' in sys.modules)"
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "False"
+
+
+def test_the_units_choices_are_the_unit_systems():
+    import argparse
+
+    from stowflow.cli import build_parser
+    from stowflow.io.numbers import SYSTEMS
+
+    sub = next(a for a in build_parser()._actions if isinstance(a, argparse._SubParsersAction))
+    for name, command in sub.choices.items():
+        units = next(a for a in command._actions if a.dest == "units")
+        assert tuple(units.choices) == tuple(SYSTEMS), name
