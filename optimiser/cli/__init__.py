@@ -179,6 +179,21 @@ def _from_interrupt(exc: BaseException) -> bool:
     return False
 
 
+#: Set when a Ctrl+C was swallowed where Python cannot raise it (an "unraisable" exception,
+#: e.g. inside the import system's module-lock callback): the command then ends as
+#: interrupted after it finishes.
+_swallowed: list[bool] = []
+
+
+def _unraisable(info) -> None:
+    """``sys.unraisablehook``: a swallowed Ctrl+C is remembered, not printed; anything else
+    goes to Python's own hook."""
+    if isinstance(info.exc_value, KeyboardInterrupt):
+        _swallowed.append(True)
+        return
+    sys.__unraisablehook__(info)
+
+
 def entry() -> int:
     """The ``stowflow`` program: :func:`main`, then leave the heap to the process's exit.
 
@@ -192,9 +207,12 @@ def entry() -> int:
     it out of the collector's reach; files are closed by then and exit handlers still run.
     """
     try:
+        sys.unraisablehook = _unraisable
         signal.signal(signal.SIGINT, signal.default_int_handler)
         code = main()
     except KeyboardInterrupt:  # between the handler's installation and main's own
+        code = _interrupted()
+    if _swallowed and code != 130:  # the command finished (its files as one set)
         code = _interrupted()
     signal.signal(signal.SIGINT, signal.SIG_DFL)  # a second Ctrl+C now ends the process quietly
     gc.freeze()
