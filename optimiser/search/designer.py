@@ -80,8 +80,8 @@ class Family:
     volume : float
         Bank gas volume at precharge (gas-over-oil: less its residual oil), [m³].
     robust : bool
-        True when one open-loop schedule holds at every temperature of the range; False when
-        it is planned at the middle temperature.
+        True when the schedule is planned against the bounds of both temperature ends; False
+        when it is planned at the coldest.
     p_top : float
         Where a discharge starts on the quasi-static curve, absolute, [Pa]
         (:func:`stowflow.search.store.top_pressure`).

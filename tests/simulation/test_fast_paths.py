@@ -4,8 +4,8 @@ Internal checks (no outside source; demo data is never an expected value here):
 
 * :func:`~stowflow.simulation._integrator.scalar_gas` (the spline unrolled for the scalar
   steps) returns the floats of :meth:`GasCharge.state1`, bit for bit;
-* :func:`~stowflow.simulation._loop.scalar_step` returns the floats of a plain transcription
-  of its Heun scheme (below) with the relief valve open, an empty bank and in between;
+* :func:`~stowflow.simulation._loop.scalar_step` returns the floats of a plain, step-by-step
+  version of its Heun scheme (below) with the relief valve open, an empty bank and in between;
 * passes cut at :data:`~stowflow.simulation._loop.PASS_STEPS` (long cycles) give the runs of
   whole-remainder passes within the Picard iteration's tolerance;
 * the work budget grows with the cycle length.
